@@ -1,0 +1,467 @@
+"""Axial force in a hanging string by the pressure-area method.
+
+Engine module: numpy arrays of SI floats; no units, no I/O.
+
+Method
+------
+Fluid pressure acts on the string only through its horizontal faces.  Cut the
+string at the top of joint ``j`` and take joints 1..j as a free body.  With
+joint 1 at the bottom and "interface" ``i`` the bottom face of joint ``i``
+(interface 1 is the bottom end, below which there is no steel), the true
+axial force at the cut is::
+
+    F(j) = sum_{i<=j} W_i
+         + sum_{i<=j} [ P_o(z_i) (A_o,i-1 - A_o,i)
+                        + P_in,i(z_i) A_b,i - P_in,i-1(z_i) A_b,i-1 ]
+
+with ``A_o = pi D^2/4`` the outside and ``A_b = pi d^2/4`` the bore area,
+``A_o,0 = A_b,0 = 0``, ``P_o`` the annulus pressure and ``P_in,i`` the
+pressure of whatever fills the bore of joint ``i`` (hole fluid below the
+check valve, fill fluid above it).  A check valve is simply an interface
+where the fluid changes; a float shoe is a valve at interface 1.
+
+Effective tension ``T_eff = F + P_o A_o - P_in A_b`` at the same depth.
+
+Sources: Lubinski, "Influence of tension and compression on straightness
+and buckling of tubular goods in oil wells", API Drilling and Production
+Practice (1951) (effective force); Bourgoyne et al., *Applied Drilling
+Engineering* (1986), ch. 7 (pressure-area method, buoyancy); the project's
+mechanics reference for the sign conventions (depth down, tension positive).
+
+Cost
+----
+Only interfaces where something changes (the bottom end, an OD or bore
+change, the check valve) carry a pressure force.  Between two such
+"active" interfaces the force differs only by the air weight of the joints
+between, so the true force at every connection at every step needs
+``O(N x I)`` work, ``N`` joints and ``I`` active interfaces, not
+``O(N^2)``.  It is quadratic only when every joint changes cross-section.
+Memory is bounded by processing the steps in blocks.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+from rigplan.stringmodel import G, Closure, Hole, JointArrays
+
+_BLOCK_ELEMENTS = 1 << 20
+
+
+@dataclass(frozen=True)
+class StringGeometry:
+    """Derived geometry of a string in running order [m, m^2].
+
+    ``bottom`` and ``top`` are heights of each joint's bottom and top face
+    above the shoe; the shoe depth at step k (1-based) is ``top[k-1]``.
+    ``fill_side`` marks the bores above the check valve.
+    """
+
+    bottom: np.ndarray
+    top: np.ndarray
+    outside_area: np.ndarray
+    bore_area: np.ndarray
+    fill_side: np.ndarray
+    cum_weight: np.ndarray
+    active: np.ndarray        # indices of active interfaces (sorted)
+    section: np.ndarray       # per joint: index into ``active`` of its section
+    valve_height: float       # height of the check valve above the shoe [m] (nan: open)
+
+
+def string_geometry(joints: JointArrays, closure: Closure) -> StringGeometry:
+    """Heights, areas and the active interfaces of a string.
+
+    Parameters
+    ----------
+    joints : JointArrays
+        The string in running order (index 0 is joint 1, at the bottom).
+    closure : Closure
+        Check-valve position: None (open shoe), 0 (float shoe) or m >= 1
+        (float collar at the top of joint m).
+    """
+    n = joints.n
+    if n == 0:
+        raise ValueError("the string has no joints")
+    length = np.asarray(joints.length, dtype=float)
+    if np.any(~np.isfinite(length)) or np.any(length <= 0):
+        raise ValueError("every joint length must be positive [m]")
+    top = np.cumsum(length)
+    bottom = np.concatenate(([0.0], top[:-1]))
+    ao = 0.25 * np.pi * np.asarray(joints.od, dtype=float) ** 2
+    ab = 0.25 * np.pi * np.asarray(joints.bore, dtype=float) ** 2
+    if np.any(ab >= ao):
+        raise ValueError("each joint's bore must be smaller than its outside diameter")
+    fill_side = np.zeros(n, dtype=bool)
+    valve_height = float("nan")
+    m = closure.valve_joint
+    if m is not None:
+        if not 0 <= m < n:
+            raise ValueError(
+                f"float collar at joint {m} lies outside the string (joints 1..{n - 1} "
+                "can carry a float collar; 0 is a float shoe)")
+        fill_side[m:] = True
+        valve_height = float(bottom[m])
+    ao_low = np.concatenate(([0.0], ao[:-1]))
+    ab_low = np.concatenate(([0.0], ab[:-1]))
+    side_low = np.concatenate(([False], fill_side[:-1]))
+    active_mask = (ao_low != ao) | (ab_low != ab) | (side_low != fill_side)
+    active_mask[0] = True
+    active = np.flatnonzero(active_mask)
+    section = np.searchsorted(active, np.arange(n), side="right") - 1
+    return StringGeometry(
+        bottom=bottom, top=top, outside_area=ao, bore_area=ab, fill_side=fill_side,
+        cum_weight=np.cumsum(np.asarray(joints.weight, dtype=float)),
+        active=active, section=section, valve_height=valve_height,
+    )
+
+
+def _interface_terms(geo: StringGeometry, rows: np.ndarray, hole: Hole,
+                     fill_density: float, fill_level: np.ndarray) -> np.ndarray:
+    """Pressure force [N] on each active interface at the given steps.
+
+    ``rows`` are 0-based step indices; interfaces not yet in the hole (above
+    the floor at that step) contribute zero.  Shape (len(rows), I).
+    """
+    act = geo.active
+    shoe = geo.top[rows]
+    z = shoe[:, None] - geo.bottom[act][None, :]
+    p_out = hole.fluid_density * G * np.maximum(0.0, z - hole.fluid_level)
+    p_fill = fill_density * G * np.maximum(0.0, z - fill_level[rows][:, None])
+    up_fill = geo.fill_side[act]
+    low_fill = np.where(act > 0, geo.fill_side[np.maximum(act - 1, 0)], False)
+    ao_up = geo.outside_area[act]
+    ab_up = geo.bore_area[act]
+    ao_low = np.where(act > 0, geo.outside_area[np.maximum(act - 1, 0)], 0.0)
+    ab_low = np.where(act > 0, geo.bore_area[np.maximum(act - 1, 0)], 0.0)
+    p_up = np.where(up_fill[None, :], p_fill, p_out)
+    p_low = np.where(low_fill[None, :], p_fill, p_out)
+    terms = p_out * (ao_low - ao_up) + p_up * ab_up - p_low * ab_low
+    terms[act[None, :] > rows[:, None]] = 0.0
+    return terms
+
+
+def _fill_levels(geo: StringGeometry, closure: Closure, fill_level) -> np.ndarray:
+    n = len(geo.top)
+    if closure.is_open or fill_level is None:
+        return np.zeros(n)
+    level = np.broadcast_to(np.asarray(fill_level, dtype=float), (n,)).copy()
+    if np.any(~np.isfinite(level)) or np.any(level < 0):
+        raise ValueError("fill levels must be depths >= 0 below the floor [m]")
+    return level
+
+
+@dataclass(frozen=True)
+class RunningLoads:
+    """Loads over a whole run, SI units.  Index k-1 is running step k;
+    index j-1 is joint j (its top connection for the force envelopes).
+
+    shoe_depth : depth of the shoe at each step [m]
+    fill_level : inside fill level at each step [m] (0 for an open string)
+    string_load : true force at the top of the string at each step [N]
+        (the hook load less the dead load of the hoisting gear)
+    effective_top : effective tension at the top of the string [N]
+    envelope_max, envelope_step : largest true force at each joint's top
+        over all steps [N] and the 1-based step where it first occurs
+    envelope_min, envelope_min_step : least true force (most compressive)
+    collapse_max, collapse_step : largest collapse load P_o - P_in on each
+        joint over all steps [Pa] and where it occurs
+    burst_max : largest burst load P_in - P_o on each joint [Pa]
+    """
+
+    shoe_depth: np.ndarray
+    fill_level: np.ndarray
+    string_load: np.ndarray
+    effective_top: np.ndarray
+    envelope_max: np.ndarray
+    envelope_step: np.ndarray
+    envelope_min: np.ndarray
+    envelope_min_step: np.ndarray
+    collapse_max: np.ndarray
+    collapse_step: np.ndarray
+    burst_max: np.ndarray
+
+
+def running_loads(joints: JointArrays, hole: Hole, closure: Closure,
+                  fill_density: float = 0.0, fill_level=None) -> RunningLoads:
+    """True axial force at every connection at every running step.
+
+    Parameters
+    ----------
+    joints : JointArrays
+        String in running order, joint 1 first.
+    hole : Hole
+        Annulus fluid density [kg/m^3] and level [m].
+    closure : Closure
+        Open shoe, float shoe or float collar.
+    fill_density : float
+        Density of the fluid inside above the check valve [kg/m^3].
+    fill_level : float or array of N
+        Depth from the floor to the inside fill surface at each step [m]
+        (0 = full; the valve depth or deeper = empty above the valve).
+        Ignored for an open shoe.
+
+    Returns
+    -------
+    RunningLoads
+
+    Notes
+    -----
+    Pressure-area method (module docstring).  Static: no drag, no
+    acceleration, no surge.  The reductions to the buoyancy factor
+    (open end, one fluid) and to ``W_air - P_shoe A_o`` (closed, empty) are
+    checked in the tests.
+    """
+    geo = string_geometry(joints, closure)
+    n = len(geo.top)
+    level = _fill_levels(geo, closure, fill_level)
+    n_act = len(geo.active)
+    block = max(1, _BLOCK_ELEMENTS // max(1, n_act))
+
+    string_load = np.empty(n)
+    env_max = np.empty(n)
+    env_step = np.empty(n, dtype=int)
+    env_min = np.empty(n)
+    env_min_step = np.empty(n, dtype=int)
+    carry_max = np.full(n_act, -np.inf)
+    carry_max_at = np.full(n_act, n, dtype=int)
+    carry_min = np.full(n_act, np.inf)
+    carry_min_at = np.full(n_act, n, dtype=int)
+    steps = np.arange(n)
+    # Walk the steps from the last block to the first so that suffix maxima
+    # (largest force at a connection from the step it enters the hole on)
+    # can be carried between blocks.
+    for r1 in range(n, 0, -block):
+        r0 = max(0, r1 - block)
+        rows = steps[r0:r1]
+        q = np.cumsum(_interface_terms(geo, rows, hole, fill_density, level), axis=1)
+        sec = geo.section[rows]
+        string_load[rows] = geo.cum_weight[rows] + q[rows - r0, sec]
+        for sign, carry, carry_at, out, out_step in (
+                (1.0, carry_max, carry_max_at, env_max, env_step),
+                (-1.0, carry_min, carry_min_at, env_min, env_min_step)):
+            v = sign * q
+            suffix = np.maximum.accumulate(v[::-1], axis=0)[::-1]
+            suffix = np.maximum(suffix, sign * carry[None, :])
+            at = np.where(v == suffix, rows[:, None], n)
+            at = np.minimum.accumulate(at[::-1], axis=0)[::-1]
+            at = np.where(at == n, carry_at[None, :], at)
+            out[rows] = geo.cum_weight[rows] + sign * suffix[rows - r0, sec]
+            out_step[rows] = at[rows - r0, sec] + 1
+            carry[:] = sign * suffix[0]
+            carry_at[:] = at[0]
+
+    shoe = geo.top
+    top_depth = 0.0
+    p_out_top = hole.fluid_density * G * max(0.0, top_depth - hole.fluid_level)
+    p_in_top = np.where(geo.fill_side, fill_density * G * np.maximum(0.0, top_depth - level),
+                        p_out_top)
+    effective_top = string_load + p_out_top * geo.outside_area - p_in_top * geo.bore_area
+
+    cmax, cstep, bmax = collapse_envelope(geo, hole, fill_density, level)
+    return RunningLoads(
+        shoe_depth=shoe.copy(), fill_level=level, string_load=string_load,
+        effective_top=effective_top, envelope_max=env_max, envelope_step=env_step,
+        envelope_min=env_min, envelope_min_step=env_min_step,
+        collapse_max=cmax, collapse_step=cstep, burst_max=bmax,
+    )
+
+
+def differential_pressure(geo: StringGeometry, hole: Hole, fill_density: float,
+                          shoe_depth, fill_level, height, joint):
+    """Collapse load ``P_o - P_in`` [Pa] at a height above the shoe.
+
+    ``shoe_depth``, ``fill_level``, ``height`` [m] and ``joint`` (0-based
+    joint index whose bore holds the point) broadcast together.  Below the
+    check valve the bore holds hole fluid and the load is zero.
+    """
+    z = np.asarray(shoe_depth) - np.asarray(height)
+    p_out = hole.fluid_density * G * np.maximum(0.0, z - hole.fluid_level)
+    p_in = fill_density * G * np.maximum(0.0, z - np.asarray(fill_level))
+    return np.where(geo.fill_side[joint], p_out - p_in, 0.0)
+
+
+def _step_segments(geo: StringGeometry, hole: Hole, level: np.ndarray):
+    """Split the steps into runs with a constant fill level (level held by
+    topping up) or a constant fill height above the shoe (fluid carried down
+    with the pipe).  Returns a list of (first, last, mode) 0-based steps."""
+    n = len(level)
+    if n == 1:
+        return [(0, 0, 0)]
+    scale = 1e-9 * max(1.0, float(geo.top[-1]))
+    height = geo.top - level
+    same_level = np.abs(np.diff(level)) <= scale
+    same_height = np.abs(np.diff(height)) <= scale
+    mode = np.where(same_level, 1, np.where(same_height, 2, 0))
+    change = np.flatnonzero(np.diff(mode) != 0) + 1
+    starts = np.concatenate(([0], change))
+    ends = np.concatenate((change, [n - 1]))
+    segments = []
+    covered = np.zeros(n, dtype=bool)
+    for s, e in zip(starts, ends):
+        m = int(mode[s])
+        if m:
+            segments.append((int(s), int(e), m))
+            covered[s:e + 1] = True
+    for k in np.flatnonzero(~covered):
+        segments.append((int(k), int(k), 0))
+    return segments
+
+
+def collapse_envelope(geo: StringGeometry, hole: Hole, fill_density: float,
+                      level: np.ndarray):
+    """Largest collapse and burst load on each joint over all steps.
+
+    Within one joint at one step the load ``P_o - P_in`` is piecewise linear
+    in height with breaks at the fill surface and the annulus fluid top, so
+    its extremes lie at the joint's ends or those breaks.  Over a run of
+    steps with a constant fill level, or a constant fill height, it is
+    piecewise linear in shoe depth with breaks where a face passes a fluid
+    surface, so only the run's ends and the steps either side of each break
+    need evaluating.  Exact for the static model.
+
+    Returns (collapse_max [Pa], step of it (1-based), burst_max [Pa]).
+    """
+    n = len(geo.top)
+    cmax = np.zeros(n)
+    cstep = np.zeros(n, dtype=int)
+    bmax = np.zeros(n)
+    cand_fill = np.flatnonzero(geo.fill_side)
+    if len(cand_fill) == 0:
+        cstep[:] = np.arange(1, n + 1)
+        return cmax, cstep, bmax
+    cmax[:] = -np.inf
+    bmax[:] = -np.inf
+    shoe = geo.top
+    h_o = hole.fluid_level
+    for first, last, mode in _step_segments(geo, hole, level):
+        j = cand_fill[cand_fill <= last]
+        if len(j) == 0:
+            continue
+        lo = np.maximum(first, j)
+        x0 = geo.bottom[j]
+        x1 = geo.top[j]
+        cands = [lo, np.full_like(lo, last)]
+        breaks = [x0 + h_o, x1 + h_o]
+        if mode == 1:
+            hf = level[first]
+            breaks += [x0 + hf, x1 + hf]
+        for b in breaks:
+            kk = np.searchsorted(shoe, b)
+            cands += [np.clip(kk - 1, lo, last), np.clip(kk, lo, last)]
+        k = np.stack(cands, axis=1)                       # (joints, candidates)
+        zs = shoe[k]
+        lv = level[k]
+        s = zs - lv                                       # fill height above shoe
+        xo = zs - h_o                                     # annulus top height
+        pts = [x0[:, None], x1[:, None],
+               np.clip(s, x0[:, None], x1[:, None]),
+               np.clip(xo, x0[:, None], x1[:, None])]
+        jj = j[:, None]
+        loads = np.stack([differential_pressure(geo, hole, fill_density, zs, lv, p, jj)
+                          for p in pts], axis=2)
+        worst = loads.max(axis=2)
+        best = (-loads).max(axis=2)
+        pick = np.argmax(worst, axis=1)
+        wv = worst[np.arange(len(j)), pick]
+        better = wv > cmax[j]
+        cmax[j[better]] = wv[better]
+        cstep[j[better]] = k[np.arange(len(j)), pick][better] + 1
+        bmax[j] = np.maximum(bmax[j], best.max(axis=1))
+    below = ~geo.fill_side
+    cmax[below] = 0.0
+    bmax[below] = 0.0
+    cstep[below] = np.arange(1, n + 1)[below]
+    return cmax, cstep, bmax
+
+
+@dataclass(frozen=True)
+class StepProfile:
+    """Forces along the string at one running step, SI units.
+
+    Index j-1 is joint j (only joints 1..k are in the hole).
+    top_depth : depth of each joint's top [m]
+    true_force_top / true_force_bottom : true axial force just below the top
+        face / just above the bottom face of each joint [N]
+    effective_top / effective_bottom : effective tension there [N]
+    """
+
+    step: int
+    top_depth: np.ndarray
+    bottom_depth: np.ndarray
+    true_force_top: np.ndarray
+    true_force_bottom: np.ndarray
+    effective_top: np.ndarray
+    effective_bottom: np.ndarray
+
+
+def step_profile(joints: JointArrays, hole: Hole, closure: Closure, step: int,
+                 fill_density: float = 0.0, fill_level: float = 0.0,
+                 slack_off: float = 0.0) -> StepProfile:
+    """True and effective force along the string at running step ``step``.
+
+    ``slack_off`` [N] is weight set down on bottom: it reduces the true
+    force everywhere by that amount (a reaction at the shoe).
+    """
+    n = joints.n
+    if not 1 <= step <= n:
+        raise ValueError(f"step must be 1..{n}")
+    geo = string_geometry(joints, closure)
+    sub = np.arange(step)
+    shoe = geo.top[step - 1]
+    z_bottom = shoe - geo.bottom[sub]
+    z_top = shoe - geo.top[sub]
+    ao, ab = geo.outside_area[sub], geo.bore_area[sub]
+    fill = geo.fill_side[sub]
+
+    def p_out(z):
+        return hole.fluid_density * G * np.maximum(0.0, z - hole.fluid_level)
+
+    def p_in(z):
+        pf = fill_density * G * np.maximum(0.0, z - fill_level)
+        return np.where(fill, pf, p_out(z))
+
+    ao_low = np.concatenate(([0.0], ao[:-1]))
+    ab_low = np.concatenate(([0.0], ab[:-1]))
+    pin_b = p_in(z_bottom)
+    pin_low = np.concatenate(([0.0], np.where(fill[:-1],
+                                              fill_density * G * np.maximum(0.0, z_bottom[1:] - fill_level),
+                                              p_out(z_bottom[1:]))))
+    face = p_out(z_bottom) * (ao_low - ao) + pin_b * ab - pin_low * ab_low
+    below_faces = np.cumsum(face)
+    w = np.asarray(joints.weight, dtype=float)[sub]
+    f_bottom = np.cumsum(w) - w + below_faces - slack_off
+    f_top = f_bottom + w
+    e_top = f_top + p_out(z_top) * ao - p_in(z_top) * ab
+    e_bottom = f_bottom + p_out(z_bottom) * ao - pin_b * ab
+    return StepProfile(step=step, top_depth=z_top, bottom_depth=z_bottom,
+                       true_force_top=f_top, true_force_bottom=f_bottom,
+                       effective_top=e_top, effective_bottom=e_bottom)
+
+
+def neutral_point_depth(profile: StepProfile) -> float:
+    """Depth [m] where the effective tension passes through zero.
+
+    Effective tension is linear along a uniform joint, so the crossing is
+    found by linear interpolation between the faces.  Returns ``nan`` when
+    the whole string is in effective tension, and ``0.0`` when the whole
+    string is in effective compression (more set down than it weighs).
+    Source: Lubinski (1951); the neutral point for buckling is where the
+    effective force is zero.
+    """
+    eb, et = profile.effective_bottom, profile.effective_top
+    zb, zt = profile.bottom_depth, profile.top_depth
+    if np.all(eb >= 0) and np.all(et >= 0):
+        return float("nan")
+    if np.all(eb <= 0) and np.all(et <= 0):
+        return 0.0
+    # Scan upward from the shoe for the first joint whose top is in tension.
+    crossing = np.flatnonzero((eb <= 0) & (et > 0))
+    if len(crossing) == 0:
+        crossing = np.flatnonzero((eb < 0) | (et < 0))
+        i = int(crossing[-1])
+        return float(zt[i])
+    i = int(crossing[-1])
+    frac = -eb[i] / (et[i] - eb[i])
+    return float(zb[i] + frac * (zt[i] - zb[i]))

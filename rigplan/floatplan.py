@@ -1,0 +1,458 @@
+"""Floating a closed string: fill window, switch point and fill schedule.
+
+Engine module: numpy arrays of SI floats; no units, no I/O.
+
+With a check valve (float shoe, or float collar at the top of joint m) the
+bore above the valve holds only what the crew puts in it.  Heights ``s``
+here are measured up the string from the shoe [m]: the fill surface at
+height ``s`` lies at depth ``Z_k - s`` at running step k.  When the crew
+stops filling, the fluid goes down with the pipe, so ``s`` stays constant;
+filling raises it.  ``s`` never falls (fluid cannot leave through the valve).
+
+At each step the allowed fill heights form an interval (the fill window):
+
+* collapse: ``DF_c (P_o - P_in) <= P_collapse`` on every rated joint above
+  the valve (emptier pipe = more collapse load);
+* check valve: ``P_o - P_in <= valve rating`` at the valve, where rated;
+* running weight: string load ``>= minimum running weight`` (the string
+  must still go down; emptier pipe = lighter);
+* hoisting capacity: string load ``<= available capacity`` (fuller pipe =
+  heavier).
+
+The string load with fill is the empty-string load plus the weight of the
+fill inside, ``rho_f g V(s)``: the fluid above the valve rests only on the
+pipe's faces, so the pressure-area sum over those faces equals its weight
+(the tests check this against ``rigplan.axial``).
+
+Sources: the mechanics reference (floating and fill-up conventions);
+Bourgoyne et al., *Applied Drilling Engineering* (1986), ch. 7 (casing
+design loads).  The schedule search is this project's own method.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+import numpy as np
+
+from rigplan.axial import StringGeometry, running_loads, string_geometry
+from rigplan.stringmodel import G, Closure, Hole, JointArrays
+
+_EMPTY = 1e12  # a fill level deeper than any string [m]: empty above the valve
+
+
+def bore_volume_below(geo: StringGeometry, height):
+    """Bore volume from the shoe up to a height above it [m^3].
+
+    Piecewise linear through the joint tops: ``V(x) = sum A_b,i L_i`` over
+    the joints below ``x`` plus the part of the joint holding ``x``.
+    """
+    knots = np.concatenate(([0.0], geo.top))
+    vols = np.concatenate(([0.0], np.cumsum(geo.bore_area * np.diff(knots))))
+    return np.interp(height, knots, vols)
+
+
+def height_for_bore_volume(geo: StringGeometry, volume):
+    """Inverse of :func:`bore_volume_below` [m]."""
+    knots = np.concatenate(([0.0], geo.top))
+    vols = np.concatenate(([0.0], np.cumsum(geo.bore_area * np.diff(knots))))
+    return np.interp(volume, vols, knots)
+
+
+def collapse_sections(geo: StringGeometry, allowable: np.ndarray):
+    """Runs of consecutive joints above the valve with the same allowable
+    collapse load [Pa].  Unrated joints (nan) are left out.  Returns arrays
+    (first joint, last joint, allowable), 0-based."""
+    idx = np.flatnonzero(geo.fill_side & np.isfinite(allowable))
+    if len(idx) == 0:
+        return np.zeros(0, int), np.zeros(0, int), np.zeros(0)
+    a = allowable[idx]
+    brk = np.flatnonzero((np.diff(idx) != 1) | (np.diff(a) != 0)) + 1
+    first = idx[np.concatenate(([0], brk))]
+    last = idx[np.concatenate((brk - 1, [len(idx) - 1]))]
+    return first, last, allowable[first]
+
+
+def collapse_required_height(geo: StringGeometry, hole: Hole, fill_density: float,
+                             allowable: np.ndarray, valve_allowable: float = float("nan")):
+    """Least fill height above the shoe [m] that keeps collapse within limits,
+    at every step.
+
+    For a section of equal allowable load ``R`` spanning heights
+    ``[x_b, x_t]``, with ``P_o(x)`` the annulus pressure at height ``x``,
+    ``P_o - P_in`` is largest at the section bottom, at its top, or at the
+    fill surface (where the empty part above it sees ``P_o`` alone), so::
+
+        s >= x_b + (P_o(x_b) - R) / (rho_f g)        when P_o(x_b) > R
+        s >= x*  (where P_o(x*) = R)                  when x_b < x* <= x_t
+        s >= x_t + (P_o(x_t) - R) / (rho_f g)        when x* > x_t
+
+    Returns (required height per step [m], name of the binding limit per
+    step: "collapse", "check valve" or "").  ``-inf`` means no requirement;
+    ``+inf`` means none is possible (e.g. an air-filled string).
+    """
+    n = len(geo.top)
+    shoe = geo.top
+    first, last, r = collapse_sections(geo, allowable)
+    rho_o, h_o = hole.fluid_density, hole.fluid_level
+    grad_f = fill_density * G
+    need = np.full(n, -np.inf)
+    limit = np.full(n, "", dtype=object)
+
+    def from_face(p_face, x_face, allow):
+        excess = p_face - allow
+        with np.errstate(divide="ignore", invalid="ignore"):
+            s = np.where(excess > 0,
+                         np.where(grad_f > 0, x_face + excess / (grad_f if grad_f > 0 else 1.0),
+                                  np.inf),
+                         -np.inf)
+        return s
+
+    if len(first):
+        k = np.arange(n)[:, None]
+        in_hole = first[None, :] <= k
+        x_b = geo.bottom[first][None, :]
+        x_t = geo.top[np.minimum(last[None, :], k)]
+        z_ref = shoe[:, None] - h_o
+        p_b = rho_o * G * np.maximum(0.0, z_ref - x_b)
+        p_t = rho_o * G * np.maximum(0.0, z_ref - x_t)
+        s_a = from_face(p_b, x_b, r[None, :])
+        if rho_o > 0:
+            x_star = z_ref - r[None, :] / (rho_o * G)
+        else:
+            x_star = np.full_like(p_b, -np.inf)
+        s_top = from_face(p_t, x_t, r[None, :])
+        s_c = np.where(x_star <= x_b, -np.inf, np.where(x_star <= x_t, x_star, s_top))
+        s_req = np.where(in_hole, np.maximum(s_a, s_c), -np.inf)
+        need = s_req.max(axis=1)
+        limit = np.where(np.isfinite(need) | (need == np.inf), "collapse", "").astype(object)
+    if np.isfinite(valve_allowable) and np.isfinite(geo.valve_height):
+        xv = geo.valve_height
+        p_v = rho_o * G * np.maximum(0.0, shoe - h_o - xv)
+        s_v = from_face(p_v, xv, valve_allowable)
+        s_v = np.where(shoe > xv, s_v, -np.inf)
+        use = s_v > need
+        need = np.where(use, s_v, need)
+        limit = np.where(use, "check valve", limit).astype(object)
+    return need, limit
+
+
+@dataclass(frozen=True)
+class FillWindow:
+    """Allowed inside fill at every running step (index k-1 = step k), SI.
+
+    min_fill_level / max_fill_level : shallowest / deepest allowed depth of
+        the fill surface [m] (nan before the valve is in the hole or when
+        the window is empty)
+    min_volume / max_volume : fill volume above the valve at those levels [m^3]
+    full_volume : bore volume above the valve with the pipe full [m^3]
+    low_height / high_height : the window as fill heights above the shoe [m]
+    empty_limit : what stops the pipe being left emptier ("collapse",
+        "check valve", "running weight", or "" when it may run empty)
+    full_limit : what stops it being fuller ("hoisting capacity" or "")
+    closing_limit : for an empty window, the limits that overlap
+    feasible : the window is not empty
+    """
+
+    joint: np.ndarray
+    shoe_depth: np.ndarray
+    valve_in_hole: np.ndarray
+    low_height: np.ndarray
+    high_height: np.ndarray
+    min_fill_level: np.ndarray
+    max_fill_level: np.ndarray
+    min_volume: np.ndarray
+    max_volume: np.ndarray
+    full_volume: np.ndarray
+    empty_string_load: np.ndarray
+    weight_floor: np.ndarray
+    empty_limit: tuple
+    full_limit: tuple
+    closing_limit: tuple
+    feasible: np.ndarray
+
+
+def fill_window(joints: JointArrays, hole: Hole, closure: Closure, fill_density: float,
+                string_limit: float, min_running_weight: float = 0.0,
+                collapse_factor: float = 1.0) -> FillWindow:
+    """Fill window at every running step for a string with a check valve.
+
+    Parameters
+    ----------
+    joints, hole, closure : the string, the hole and the valve position
+        (``closure.valve_joint`` must not be None).
+    fill_density : fill fluid density [kg/m^3] (0 for air: no filling).
+    string_limit : largest allowed string load [N] (hook capacity less the
+        dead load, reserve and dynamic allowance).
+    min_running_weight : least string load that still runs the pipe [N].
+    collapse_factor : collapse design factor [-]; allowable = rating / DF.
+    """
+    if closure.is_open:
+        raise ValueError("a fill window needs a float shoe or float collar")
+    geo = string_geometry(joints, closure)
+    n = len(geo.top)
+    shoe = geo.top
+    xv = geo.valve_height
+    m = closure.valve_joint
+    valve_in = np.arange(n) >= m
+    empty = running_loads(joints, hole, closure, fill_density, _EMPTY).string_load
+    v_valve = float(bore_volume_below(geo, xv))
+    full_vol = bore_volume_below(geo, shoe) - v_valve
+    grad = fill_density * G
+    with np.errstate(divide="ignore", invalid="ignore"):
+        vol_cap = np.where(grad > 0, (string_limit - empty) / (grad if grad > 0 else 1.0),
+                           np.where(empty <= string_limit, np.inf, -np.inf))
+        vol_w = np.where(grad > 0, (min_running_weight - empty) / (grad if grad > 0 else 1.0),
+                         np.where(empty >= min_running_weight, -np.inf, np.inf))
+    s_cap = np.where(vol_cap >= full_vol, shoe,
+                     np.where(vol_cap < 0, -np.inf,
+                              height_for_bore_volume(geo, v_valve + np.clip(vol_cap, 0, None))))
+    # A string lighter than the minimum running weight even when full must
+    # be kept full; it is impossible only when it would float full.
+    full_load = empty + grad * full_vol
+    vol_w = np.where((vol_w > full_vol) & (full_load > 0), full_vol, vol_w)
+    s_w = np.where(vol_w <= 0, -np.inf,
+                   np.where(vol_w > full_vol, np.inf,
+                            height_for_bore_volume(geo, v_valve + np.clip(vol_w, 0, None))))
+    allowable = np.asarray(joints.collapse_rating, dtype=float) / collapse_factor
+    s_col, col_name = collapse_required_height(geo, hole, fill_density, allowable,
+                                               closure.valve_rating)
+    lo = np.full(n, xv)
+    empty_limit = np.full(n, "", dtype=object)
+    use = s_col > lo
+    lo = np.where(use, s_col, lo)
+    empty_limit = np.where(use, col_name, empty_limit)
+    use = s_w > lo
+    lo = np.where(use, s_w, lo)
+    empty_limit = np.where(use, "running weight", empty_limit)
+    hi = np.minimum(shoe, s_cap)
+    full_limit = np.where(s_cap < shoe, "hoisting capacity", "")
+    tol = 1e-9 * max(1.0, float(shoe[-1]))
+    feasible = (lo <= hi + tol) | ~valve_in
+    closing = np.where(feasible, "", np.char.add(np.char.add(
+        np.asarray(empty_limit, dtype=str), " vs "),
+        np.where(full_limit == "", "a full pipe", full_limit)))
+    closing = np.where(feasible, empty_limit, closing).astype(object)
+    with np.errstate(invalid="ignore"):
+        ok = feasible & valve_in
+        min_level = np.where(ok, shoe - hi, np.nan)
+        max_level = np.where(ok, shoe - np.clip(lo, xv, None), np.nan)
+        vmin = np.where(ok, bore_volume_below(geo, np.clip(lo, xv, shoe)) - v_valve, np.nan)
+        vmax = np.where(ok, bore_volume_below(geo, np.clip(hi, xv, shoe)) - v_valve, np.nan)
+    return FillWindow(
+        joint=np.arange(1, n + 1), shoe_depth=shoe.copy(), valve_in_hole=valve_in,
+        low_height=np.where(valve_in, lo, np.nan), high_height=np.where(valve_in, hi, np.nan),
+        min_fill_level=min_level, max_fill_level=max_level,
+        min_volume=vmin, max_volume=vmax, full_volume=np.where(valve_in, full_vol, 0.0),
+        empty_string_load=empty,
+        weight_floor=np.minimum(min_running_weight, np.maximum(full_load, 0.0)),
+        empty_limit=tuple(np.where(valve_in, empty_limit, "")),
+        full_limit=tuple(np.where(valve_in, full_limit, "")),
+        closing_limit=tuple(np.where(valve_in, closing, "")),
+        feasible=feasible,
+    )
+
+
+@dataclass(frozen=True)
+class TopUp:
+    """Fluid the crew adds with joint ``joint`` at the floor."""
+
+    joint: int          # 1-based step (joint number) at which to add it
+    volume: float       # [m^3]
+    level_after: float  # depth of the fill surface after adding [m]
+
+
+@dataclass(frozen=True)
+class FillSchedule:
+    """A crew-followable fill schedule and its result at every step, SI.
+
+    fill_to_top_through : fill every joint to the top through this joint
+        (0: never filled to the top; the string's last joint: never floated)
+    top_ups : further additions after filling stops
+    fill_level, fill_volume : inside level [m] and volume above the valve
+        [m^3] at each step (after any addition made at that step)
+    string_load : true force at the string top [N]
+    capacity_margin : (limit - load) / limit [-]
+    collapse_utilization : largest DF x load / rating over rated joints [-]
+    weight_margin : (load - minimum running weight) / limit [-]
+    least_margin : smallest of all margins over all steps [-]
+    least_margin_step : where it occurs (1-based)
+    feasible : every step inside its window
+    failure_step, failure : first step that cannot be kept inside the
+        window, and why (0, "" when feasible)
+    """
+
+    fill_density: float
+    fill_to_top_through: int
+    top_ups: tuple
+    fill_level: np.ndarray
+    fill_volume: np.ndarray
+    string_load: np.ndarray
+    capacity_margin: np.ndarray
+    collapse_utilization: np.ndarray
+    weight_margin: np.ndarray
+    least_margin: float
+    least_margin_step: int
+    feasible: bool
+    failure_step: int = 0
+    failure: str = ""
+    added_volume: float = 0.0
+    notes: tuple = field(default_factory=tuple)
+
+
+def collapse_utilization_by_step(joints: JointArrays, hole: Hole, closure: Closure,
+                                 fill_density: float, fill_level, collapse_factor: float):
+    """Largest ``DF x (P_o - P_in) / rating`` over the rated joints in the
+    hole at each step [-], evaluated at each equal-rating section's bottom,
+    top and the fill surface (the only places the maximum can sit)."""
+    geo = string_geometry(joints, closure)
+    n = len(geo.top)
+    if closure.is_open:
+        return np.zeros(n)
+    allowable = np.asarray(joints.collapse_rating, dtype=float) / collapse_factor
+    first, last, r = collapse_sections(geo, allowable)
+    if len(first) == 0:
+        return np.zeros(n)
+    level = np.broadcast_to(np.asarray(fill_level, dtype=float), (n,))
+    k = np.arange(n)[:, None]
+    shoe = geo.top[:, None]
+    s = shoe - level[:, None]
+    x_b = geo.bottom[first][None, :]
+    x_t = geo.top[np.minimum(last[None, :], k)]
+    best = np.zeros((n, len(first)))
+    for x in (x_b + 0 * s, x_t + 0 * s, np.clip(s, x_b, x_t)):
+        z = shoe - x
+        dp = (hole.fluid_density * G * np.maximum(0.0, z - hole.fluid_level)
+              - fill_density * G * np.maximum(0.0, z - level[:, None]))
+        best = np.maximum(best, dp / r[None, :])
+    best = np.where(first[None, :] <= k, best, 0.0)
+    return best.max(axis=1)
+
+
+def _evaluate(geo, joints, hole, closure, fill_density, heights, string_limit,
+              min_weight, collapse_factor, empty_load):
+    """Loads and margins of one candidate schedule; ``min_weight`` is the
+    per-step running-weight floor (never above the full-pipe load)."""
+    shoe = geo.top
+    v_valve = float(bore_volume_below(geo, geo.valve_height))
+    vol = np.clip(bore_volume_below(geo, heights) - v_valve, 0.0, None)
+    load = empty_load + fill_density * G * vol
+    level = shoe - heights
+    col = collapse_utilization_by_step(joints, hole, closure, fill_density, level,
+                                       collapse_factor)
+    cap_margin = (string_limit - load) / string_limit
+    w_margin = (load - min_weight) / string_limit
+    # A full pipe cannot be made heavier: its weight margin sets no choice.
+    full = heights >= shoe - 1e-9 * max(1.0, float(shoe[-1]))
+    w_margin = np.where(full, np.inf, w_margin)
+    margins = np.minimum(np.minimum(cap_margin, 1.0 - col), w_margin)
+    i = int(np.argmin(margins))
+    return level, vol, load, cap_margin, col, w_margin, float(margins[i]), i + 1
+
+
+def fill_schedule(joints: JointArrays, hole: Hole, closure: Closure, fill_density: float,
+                  string_limit: float, min_running_weight: float = 0.0,
+                  collapse_factor: float = 1.0, window: FillWindow | None = None,
+                  shares=(1.0, 0.95, 0.9, 0.85, 0.8, 0.7, 0.6, 0.5)) -> FillSchedule:
+    """Fill schedule with the fewest top-ups and, among those, the largest
+    least margin.
+
+    Fill each joint to the top while the full string stays within every
+    future step's window (the fluid cannot be taken out again), then stop.
+    When the carried fill no longer keeps a step inside its window, top up
+    to a height between the step's least allowed height and the lowest
+    upper bound of all later steps; ``shares`` are the tried fractions of
+    that band (1.0 = fill as high as every later step allows, fewest
+    top-ups).  Each variant is evaluated and the best kept.
+    """
+    if window is None:
+        window = fill_window(joints, hole, closure, fill_density, string_limit,
+                             min_running_weight, collapse_factor)
+    geo = string_geometry(joints, closure)
+    n = len(geo.top)
+    shoe = geo.top
+    m = closure.valve_joint
+    xv = geo.valve_height
+    tol = 1e-9 * max(1.0, float(shoe[-1]))
+    lo = np.where(window.valve_in_hole, window.low_height, -np.inf)
+    hi = np.where(window.valve_in_hole, window.high_height, np.inf)
+    hi_ahead = np.minimum.accumulate(hi[::-1])[::-1]
+    full_ok = (shoe <= hi_ahead + tol) & (lo <= shoe + tol)
+    full_ok[:m] = True
+    bad = np.flatnonzero(~full_ok)
+    longest = n if len(bad) == 0 else int(bad[0])   # joints 1..longest may be full
+    best = None
+    for share in shares:
+        # Stop filling once the carried fill would reach this share of the
+        # longest full length (share 1: fill to the top as long as possible).
+        if longest >= n or longest <= m:
+            through = longest
+        else:
+            target = xv + share * (shoe[longest - 1] - xv)
+            through = max(m + 1, min(longest, int(np.searchsorted(shoe, target + tol, side="right"))))
+        heights = np.empty(n)
+        heights[:through] = shoe[:through]
+        s = float(shoe[through - 1]) if through > 0 else xv
+        if through > 0 and through <= m:
+            s = xv
+        tops = []
+        failure_step, failure = 0, ""
+        k = through
+        while k < n:
+            seg_lo = lo[k:]
+            need = np.flatnonzero(seg_lo > s + tol)
+            over = np.flatnonzero(hi[k:] < s - tol)
+            nxt = need[0] if len(need) else n - k
+            if len(over) and over[0] <= nxt:
+                kk = k + int(over[0])
+                heights[k:kk] = s
+                failure_step = kk + 1
+                failure = f"the carried fill is over the {window.full_limit[kk] or 'window'}"
+                heights[kk:] = s
+                break
+            heights[k:k + nxt] = s
+            k += nxt
+            if k >= n:
+                break
+            floor, ceiling = lo[k], min(hi_ahead[k], shoe[k])
+            if floor > ceiling + tol:
+                failure_step = k + 1
+                failure = (f"no fill level works at joint {k + 1}: "
+                           f"{window.closing_limit[k] or window.empty_limit[k]}")
+                heights[k:] = max(s, min(floor, shoe[k]))
+                break
+            new = floor + share * (ceiling - floor)
+            new = max(new, s)
+            tops.append((k, s, new))
+            s = new
+        level, vol, load, capm, col, wm, least, at = _evaluate(
+            geo, joints, hole, closure, fill_density, heights, string_limit,
+            window.weight_floor, collapse_factor, window.empty_string_load)
+        v_valve = float(bore_volume_below(geo, xv))
+        top_ups = tuple(
+            TopUp(joint=k + 1,
+                  volume=float(bore_volume_below(geo, new) - bore_volume_below(geo, old)),
+                  level_after=float(shoe[k] - new))
+            for k, old, new in tops)
+        sched = FillSchedule(
+            fill_density=fill_density, fill_to_top_through=through, top_ups=top_ups,
+            fill_level=np.where(np.arange(n) >= m, level, np.nan),
+            fill_volume=np.where(np.arange(n) >= m, vol, 0.0),
+            string_load=load, capacity_margin=capm, collapse_utilization=col,
+            weight_margin=wm, least_margin=least, least_margin_step=at,
+            feasible=failure_step == 0, failure_step=failure_step, failure=failure,
+            added_volume=float(vol[-1] if n else 0.0),
+        )
+        key = (sched.feasible, -len(top_ups), round(least, 4))
+        if best is None or key > best[0]:
+            best = (key, sched)
+        if failure_step:
+            break
+    return best[1]
+
+
+def switch_point(string_load: np.ndarray, string_limit: float) -> int:
+    """First joint (1-based) at which the string load exceeds the limit, or
+    0 when it never does: the joint at which floating must begin."""
+    over = np.flatnonzero(np.asarray(string_load) > string_limit)
+    return int(over[0]) + 1 if len(over) else 0

@@ -1,0 +1,73 @@
+"""Hydrostatic pressure of a fluid column and buoyancy factor.
+
+Engine module: SI floats and numpy arrays only.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+from rigplan.stringmodel import G
+
+#: Oilfield gradient per lb/gal [psi/ft per lb/gal]:
+#: 0.051948 = (1 lb/gal x g x 1 ft) / 1 psi (exact unit definitions, NIST SP 811).
+PSI_PER_FT_PER_PPG = 0.45359237 / 0.003785411784 * 9.80665 * 0.3048 / 6894.757293168361
+
+
+def hydrostatic_pressure(depth, density, level=0.0):
+    """Gauge pressure of a static fluid column at a depth.
+
+    ``P(z) = rho * g * max(0, z - z_level)``
+
+    Parameters
+    ----------
+    depth : float or array
+        Depth below the rig floor [m].
+    density : float or array
+        Fluid density [kg/m^3], >= 0.
+    level : float or array
+        Depth of the top of the fluid column [m] (0 = full to the floor).
+
+    Returns
+    -------
+    float or ndarray
+        Gauge pressure [Pa]; zero above the fluid top.
+
+    Notes
+    -----
+    Incompressible fluid at rest; valid for water-well depths where mud
+    compressibility and temperature effects are negligible.  Source: any
+    fluid-statics text; the oilfield form is 0.052 psi/ft per lb/gal
+    (Bourgoyne et al., *Applied Drilling Engineering*, 1986, ch. 4).
+
+    Examples
+    --------
+    Fresh water, 8.33 lb/gal, gives about 0.433 psi/ft:
+
+    >>> ppg = 0.45359237 / 0.003785411784          # kg/m^3 per lb/gal
+    >>> p = hydrostatic_pressure(0.3048, 8.33 * ppg)  # one foot down
+    >>> round(p / 6894.757293168361, 3)
+    0.433
+    """
+    z = np.asarray(depth, dtype=float)
+    return density * G * np.maximum(0.0, z - level)
+
+
+def buoyancy_factor(fluid_density, pipe_density):
+    """Buoyancy factor of an open-ended string in one fluid.
+
+    ``BF = 1 - rho_fluid / rho_pipe``  [-]
+
+    Valid for a string open at the bottom with the same fluid inside and
+    out, fully submerged.  The pressure-area engine (``rigplan.axial``)
+    reduces to this case; see its tests.  Source: Bourgoyne et al.,
+    *Applied Drilling Engineering* (1986), ch. 7; mechanics reference
+    ``BF = 1 - MW/65.4`` with MW in lb/gal for steel.
+
+    >>> ppg = 0.45359237 / 0.003785411784
+    >>> round(buoyancy_factor(10 * ppg, 65.4 * ppg), 4)
+    0.8471
+    """
+    if np.any(np.asarray(pipe_density) <= 0):
+        raise ValueError("pipe density must be positive [kg/m^3]")
+    return 1.0 - np.asarray(fluid_density, dtype=float) / pipe_density
