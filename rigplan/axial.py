@@ -309,6 +309,30 @@ def _step_segments(geo: StringGeometry, hole: Hole, level: np.ndarray):
     return segments
 
 
+def _loads_at(geo, hole, fill_density, level, k, j):
+    """Extreme collapse loads on joints ``j`` (above the valve) at steps
+    ``k`` (broadcast arrays of 0-based indices): max and min of
+    ``P_o - P_in`` over each joint's bottom, top, fill surface and annulus
+    fluid top [Pa]."""
+    zs = geo.top[k]
+    lv = level[k]
+    x0 = geo.bottom[j]
+    x1 = geo.top[j]
+    h_o = hole.fluid_level
+    go = hole.fluid_density * G
+    gf = fill_density * G
+    points = [x0, x1, np.clip(zs - lv, x0, x1)]
+    if h_o > 0:
+        points.append(np.clip(zs - h_o, x0, x1))
+    worst = best = None
+    for p in points:
+        z = zs - p
+        d = go * np.maximum(0.0, z - h_o) - gf * np.maximum(0.0, z - lv)
+        worst = d if worst is None else np.maximum(worst, d)
+        best = d if best is None else np.minimum(best, d)
+    return worst, best
+
+
 def collapse_envelope(geo: StringGeometry, hole: Hole, fill_density: float,
                       level: np.ndarray):
     """Largest collapse and burst load on each joint over all steps.
@@ -316,63 +340,76 @@ def collapse_envelope(geo: StringGeometry, hole: Hole, fill_density: float,
     Within one joint at one step the load ``P_o - P_in`` is piecewise linear
     in height with breaks at the fill surface and the annulus fluid top, so
     its extremes lie at the joint's ends or those breaks.  Over a run of
-    steps with a constant fill level, or a constant fill height, it is
-    piecewise linear in shoe depth with breaks where a face passes a fluid
-    surface, so only the run's ends and the steps either side of each break
-    need evaluating.  Exact for the static model.
+    steps with a constant fill height above the shoe (fluid carried down
+    with the pipe) it is monotone in shoe depth, so the run's first and last
+    steps and each joint's entry step bound it.  Over a run with a constant
+    fill level it is piecewise linear in shoe depth with breaks where a
+    face passes a fluid surface, so the steps either side of each break are
+    added.  Exact for the static model.
 
     Returns (collapse_max [Pa], step of it (1-based), burst_max [Pa]).
     """
     n = len(geo.top)
     cmax = np.zeros(n)
-    cstep = np.zeros(n, dtype=int)
+    cstep = np.arange(1, n + 1)
     bmax = np.zeros(n)
-    cand_fill = np.flatnonzero(geo.fill_side)
-    if len(cand_fill) == 0:
-        cstep[:] = np.arange(1, n + 1)
+    fill_j = np.flatnonzero(geo.fill_side)
+    if len(fill_j) == 0:
         return cmax, cstep, bmax
-    cmax[:] = -np.inf
-    bmax[:] = -np.inf
-    shoe = geo.top
+    segments = _step_segments(geo, hole, level)
+    ends = np.unique([e for seg in segments for e in seg[:2]])
+    wmax = np.full(len(fill_j), -np.inf)
+    wstep = np.zeros(len(fill_j), dtype=int)
+    bbest = np.full(len(fill_j), -np.inf)
+
+    def take(k, worst, best):
+        nonlocal wmax, wstep, bbest
+        worst = np.where(np.isfinite(worst), worst, -np.inf)
+        pick = np.argmax(worst, axis=0)
+        cols = np.arange(worst.shape[1])
+        wv = worst[pick, cols]
+        better = wv > wmax
+        wmax = np.where(better, wv, wmax)
+        wstep = np.where(better, np.broadcast_to(k, worst.shape)[pick, cols], wstep)
+        bbest = np.maximum(bbest, np.where(np.isfinite(best), -best, -np.inf).max(axis=0))
+
+    # Run ends and single steps, all joints at once (in blocks of steps).
+    block = max(1, _BLOCK_ELEMENTS // (4 * len(fill_j)))
+    for i0 in range(0, len(ends), block):
+        k = ends[i0:i0 + block][:, None]
+        jj = fill_j[None, :]
+        worst, best = _loads_at(geo, hole, fill_density, level, k, jj)
+        inside = jj <= k
+        take(k, np.where(inside, worst, -np.inf), np.where(inside, best, np.inf))
+    # Each joint's entry step (it is then the top joint).
+    k = fill_j[None, :]
+    worst, best = _loads_at(geo, hole, fill_density, level, k, fill_j[None, :])
+    take(k, worst, best)
+    # Breaks inside runs of constant fill level.
     h_o = hole.fluid_level
-    for first, last, mode in _step_segments(geo, hole, level):
-        j = cand_fill[cand_fill <= last]
-        if len(j) == 0:
+    for first, last, mode in segments:
+        if mode != 1 or last - first < 2:
             continue
+        sel = fill_j <= last
+        j = fill_j[sel]
         lo = np.maximum(first, j)
-        x0 = geo.bottom[j]
-        x1 = geo.top[j]
-        cands = [lo, np.full_like(lo, last)]
-        breaks = [x0 + h_o, x1 + h_o]
-        if mode == 1:
-            hf = level[first]
-            breaks += [x0 + hf, x1 + hf]
-        for b in breaks:
-            kk = np.searchsorted(shoe, b)
+        hf = level[first]
+        cands = []
+        for b in (geo.bottom[j] + h_o, geo.top[j] + h_o, geo.bottom[j] + hf, geo.top[j] + hf):
+            kk = np.searchsorted(geo.top, b)
             cands += [np.clip(kk - 1, lo, last), np.clip(kk, lo, last)]
-        k = np.stack(cands, axis=1)                       # (joints, candidates)
-        zs = shoe[k]
-        lv = level[k]
-        s = zs - lv                                       # fill height above shoe
-        xo = zs - h_o                                     # annulus top height
-        pts = [x0[:, None], x1[:, None],
-               np.clip(s, x0[:, None], x1[:, None]),
-               np.clip(xo, x0[:, None], x1[:, None])]
-        jj = j[:, None]
-        loads = np.stack([differential_pressure(geo, hole, fill_density, zs, lv, p, jj)
-                          for p in pts], axis=2)
-        worst = loads.max(axis=2)
-        best = (-loads).max(axis=2)
-        pick = np.argmax(worst, axis=1)
-        wv = worst[np.arange(len(j)), pick]
-        better = wv > cmax[j]
-        cmax[j[better]] = wv[better]
-        cstep[j[better]] = k[np.arange(len(j)), pick][better] + 1
-        bmax[j] = np.maximum(bmax[j], best.max(axis=1))
-    below = ~geo.fill_side
-    cmax[below] = 0.0
-    bmax[below] = 0.0
-    cstep[below] = np.arange(1, n + 1)[below]
+        k = np.stack(cands, axis=0)
+        worst, best = _loads_at(geo, hole, fill_density, level, k, j[None, :])
+        full_w = np.full((k.shape[0], len(fill_j)), -np.inf)
+        full_b = np.full((k.shape[0], len(fill_j)), np.inf)
+        full_k = np.zeros((k.shape[0], len(fill_j)), dtype=int)
+        full_w[:, sel] = worst
+        full_b[:, sel] = best
+        full_k[:, sel] = k
+        take(full_k, full_w, full_b)
+    cmax[fill_j] = wmax
+    cstep[fill_j] = wstep + 1
+    bmax[fill_j] = bbest
     return cmax, cstep, bmax
 
 

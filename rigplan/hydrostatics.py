@@ -46,7 +46,7 @@ def hydrostatic_pressure(depth, density, level=0.0):
 
     >>> ppg = 0.45359237 / 0.003785411784          # kg/m^3 per lb/gal
     >>> p = hydrostatic_pressure(0.3048, 8.33 * ppg)  # one foot down
-    >>> round(p / 6894.757293168361, 3)
+    >>> round(float(p) / 6894.757293168361, 3)
     0.433
     """
     z = np.asarray(depth, dtype=float)
@@ -65,7 +65,7 @@ def buoyancy_factor(fluid_density, pipe_density):
     ``BF = 1 - MW/65.4`` with MW in lb/gal for steel.
 
     >>> ppg = 0.45359237 / 0.003785411784
-    >>> round(buoyancy_factor(10 * ppg, 65.4 * ppg), 4)
+    >>> round(float(buoyancy_factor(10 * ppg, 65.4 * ppg)), 4)
     0.8471
     """
     if np.any(np.asarray(pipe_density) <= 0):

@@ -1,0 +1,3 @@
+from rigplan.cli import entry
+
+entry()

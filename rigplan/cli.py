@@ -1,0 +1,163 @@
+"""Command line: ``rigplan [open|check|report|demo|rigs] ...``.
+
+Exit codes: 0 the string lands within every limit; 1 a limit is exceeded
+(or a loaded part is unrated, so landing cannot be confirmed); 2 an input
+error (one line on stderr naming the file, the key or row, and what was
+expected).  Textual is imported only by ``open`` and the bare command.
+"""
+
+from __future__ import annotations
+
+import argparse
+import json
+import sys
+from pathlib import Path
+
+from rigplan.errors import InputError
+
+EXIT_LANDS, EXIT_LIMIT, EXIT_INPUT = 0, 1, 2
+
+
+def _parser() -> argparse.ArgumentParser:
+    p = argparse.ArgumentParser(
+        prog="rigplan",
+        description="Hoisting, running-load, float and fill planning for water-well casing "
+                    "and screen strings. With no command, opens the terminal app on the "
+                    "bundled demo job.")
+    sub = p.add_subparsers(dest="command")
+
+    def job_args(sp, need_rig=True):
+        sp.add_argument("plan", help="string plan file (strings/*.toml)")
+        sp.add_argument("--rig", required=need_rig,
+                        help="rig capacity profile (rigs/*.toml, or a bundled rig's name)")
+        sp.add_argument("--path", default=None,
+                        help="hoisting path to use (default: the one with most capacity)")
+        sp.add_argument("--units", choices=("us", "si"), default="us",
+                        help="display units: US field or SI (default us)")
+        sp.add_argument("--materials", default=None,
+                        help="extra materials file (TOML) to add to the library")
+
+    c = sub.add_parser("check", help="check whether the rig can land the string")
+    job_args(c)
+    c.add_argument("--format", choices=("text", "json"), default="text")
+    c.add_argument("--brief", action="store_true",
+                   help="text: show only the first and last steps and the summary")
+    o = sub.add_parser("open", help="open the terminal app on a job")
+    job_args(o)
+    r = sub.add_parser("report", help="write the printable job plan (HTML or text)")
+    job_args(r)
+    r.add_argument("-o", "--output", required=True,
+                   help="output file: .html for a printable page, anything else for text")
+    d = sub.add_parser("demo", help="check every bundled demo job and list the verdicts")
+    d.add_argument("--units", choices=("us", "si"), default="us")
+    sub.add_parser("rigs", help="list the bundled rig profiles and their hoisting paths")
+    return p
+
+
+def _load(args):
+    from rigplan.job import load_job, plan_job
+    job = load_job(args.plan, args.rig, args.path, args.materials)
+    landing = plan_job(job.plan, job.rig, job.path_name)
+    return job, landing
+
+
+def _exit_for(landing) -> int:
+    return EXIT_LANDS if landing.lands else EXIT_LIMIT
+
+
+def cmd_check(args) -> int:
+    from rigplan.report import plan_dict, text_renderables
+    job, landing = _load(args)
+    if args.format == "json":
+        doc = plan_dict(landing, job.plan, job.warnings, job.rig.name)
+        doc["exit_code"] = _exit_for(landing)
+        json.dump(doc, sys.stdout, indent=1, allow_nan=False)
+        sys.stdout.write("\n")
+    else:
+        from rich.console import Console
+        console = Console(highlight=False)
+        for r in text_renderables(landing, job.plan, args.units, job.warnings, job.rig.name,
+                                  all_steps=not args.brief):
+            console.print(r)
+    return _exit_for(landing)
+
+
+def cmd_report(args) -> int:
+    from rich.console import Console
+    from rigplan.atomicio import atomic_write_text
+    from rigplan.report import text_renderables
+    job, landing = _load(args)
+    out = Path(args.output)
+    console = Console(record=True, width=110, file=open("/dev/null", "w") if sys.platform != "win32"
+                      else None, highlight=False)
+    for r in text_renderables(landing, job.plan, args.units, job.warnings, job.rig.name):
+        console.print(r)
+    if out.suffix.lower() in (".html", ".htm"):
+        text = console.export_html(inline_styles=True)
+    else:
+        text = console.export_text()
+    atomic_write_text(out, text)
+    print(f"wrote {out} ({landing.verdict})")
+    return _exit_for(landing)
+
+
+def cmd_demo(args) -> int:
+    from rigplan.job import demo_jobs, load_job, plan_job
+    worst = EXIT_LANDS
+    for plan, rig in demo_jobs():
+        job = load_job(plan, rig)
+        landing = plan_job(job.plan, job.rig)
+        g = landing.governing
+        print(f"{plan.name:28s} on {rig.name:24s} {landing.verdict:24s}"
+              f" {g.name if g else ''} margin {100 * g.margin:.1f} %" if g else "")
+        worst = max(worst, _exit_for(landing))
+    return EXIT_LANDS
+
+
+def cmd_rigs(args) -> int:
+    from rigplan.formats.rigfile import read_rig
+    from rigplan.hoisting import path_capacity
+    from rigplan.job import demo_dir
+    from rigplan import units as U
+    for f in sorted(demo_dir("rigs").glob("*.toml")):
+        rig = read_rig(f)
+        print(f"{f.name}: {rig.name}")
+        for p in rig.paths:
+            c = path_capacity(p)
+            print(f"  path {p.name!r}: string limit {U.format(c.string_limit, 'force', 'us', 0)}"
+                  f" ({U.format(c.string_limit, 'force', 'si', 1)}), governed by {c.governing}")
+    return EXIT_LANDS
+
+
+def cmd_open(args) -> int:
+    from rigplan.job import load_job
+    job = load_job(args.plan, args.rig, args.path, args.materials)   # fail fast, one line
+    from rigplan.tui.app import run_app
+    run_app(job.plan_path, job.rig_path, args.path, args.units)
+    return EXIT_LANDS
+
+
+def main(argv=None) -> int:
+    args = _parser().parse_args(argv)
+    try:
+        if args.command is None:
+            from rigplan.job import demo_paths
+            plan, rig = demo_paths()
+            from rigplan.tui.app import run_app
+            run_app(plan, rig, None, "us")
+            return EXIT_LANDS
+        return {"check": cmd_check, "open": cmd_open, "report": cmd_report,
+                "demo": cmd_demo, "rigs": cmd_rigs}[args.command](args)
+    except InputError as err:
+        print(f"rigplan: {err}", file=sys.stderr)
+        return EXIT_INPUT
+    except BrokenPipeError:
+        return EXIT_LANDS
+
+
+def entry() -> None:
+    sys.exit(main())
+
+
+if __name__ == "__main__":
+    entry()

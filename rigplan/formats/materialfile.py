@@ -1,0 +1,133 @@
+"""User material files (TOML): extra pipe and screen materials.
+
+Schema (version 1; bare numbers in the file's ``units`` system, default
+``"si"``: kg/m3 and MPa; ``"us"``: ppg and psi -- so write the unit)::
+
+    version = 1
+    units = "si"
+
+    [[material]]
+    key = "ss316l_wire"              # required, lower case, not already known
+    name = "..."                     # required
+    family = "stainless"             # steel | stainless | hsla | api | pvc | fiberglass
+    density = "8000 kg/m3"           # density or "unknown"
+    yield_strength = "170 MPa"       # stress or "unknown"
+    youngs_modulus = "193000 MPa"    # stress or "unknown"
+    poisson = 0.29                   # [-] or "unknown"
+    wall_under_tolerance = "12.5 %"  # [-], 0 <= u < 1, required
+    collapse_method = "timoshenko"   # timoshenko | api_5c3 | thermoplastic | entered
+    source = "maker's data sheet ..."   # where the values come from (required
+                                        # unless every value has its own below)
+    replace = false                  # true: replace a material with this key
+
+    [material.sources]               # optional: a source per value
+    yield_strength = "..."
+
+``"unknown"`` stores nan: a rating that needs the value is then unrated.
+"""
+
+from __future__ import annotations
+
+import math
+
+from rigplan.errors import InputError
+from rigplan.formats import Table, check_version, file_system, parse_toml_text, read_toml
+
+TOP_KEYS = ("version", "units", "material")
+MATERIAL_KEYS = ("key", "name", "family", "density", "yield_strength", "youngs_modulus",
+                 "poisson", "wall_under_tolerance", "collapse_method", "source", "sources",
+                 "replace")
+_SOURCE_FIELDS = ("density", "yield_strength", "youngs_modulus", "poisson",
+                  "wall_under_tolerance", "collapse_method")
+UNKNOWN = "unknown"
+
+
+def _maybe_unknown(t: Table, key: str, kind: str):
+    value = t.raw(key)
+    if value is None:
+        raise t.missing(key, f"a value or \"unknown\" ({'plain number' if kind == 'dimensionless' else kind})")
+    if isinstance(value, str) and value.strip().lower() == UNKNOWN:
+        return math.nan
+    if kind == "dimensionless":
+        return t.number(key)
+    return t.quantity(key, kind, positive=True)
+
+
+def materials_from_data(data: dict, source: str) -> list:
+    """Materials defined in a parsed file (not registered)."""
+    from rigplan.materials import COLLAPSE_METHODS, FAMILIES, Material
+
+    check_version(data, source)
+    system = file_system(data, source)
+    top = Table(data, source, "", system, TOP_KEYS)
+    out = []
+    keys = {}
+    for t in top.tables("material", MATERIAL_KEYS, required=True):
+        key = t.text("key", required=True).strip().lower()
+        if not key:
+            raise InputError(t.where("key"), "expected a material key, got an empty text")
+        if key in keys:
+            raise InputError(t.where("key"), f"key {key!r} already defined in {keys[key]}")
+        keys[key] = t.path
+        name = t.text("name", required=True)
+        family = t.choice("family", FAMILIES, required=True)
+        method = t.choice("collapse_method", COLLAPSE_METHODS, required=True)
+        values = {
+            "density": _maybe_unknown(t, "density", "density"),
+            "yield_strength": _maybe_unknown(t, "yield_strength", "stress"),
+            "youngs_modulus": _maybe_unknown(t, "youngs_modulus", "stress"),
+            "poisson": _maybe_unknown(t, "poisson", "dimensionless"),
+        }
+        nu = values["poisson"]
+        if not math.isnan(nu) and not 0.0 <= nu < 0.5:
+            raise InputError(t.where("poisson"), f"expected a Poisson ratio 0 <= nu < 0.5, got "
+                                                 f"{t.raw('poisson')!r}")
+        if "wall_under_tolerance" not in t:
+            raise t.missing("wall_under_tolerance", "the fraction the wall may be under the "
+                                                    "specified wall (e.g. \"12.5 %\" or 0.125; 0 if none)")
+        u = t.number("wall_under_tolerance")
+        if not 0.0 <= u < 1.0:
+            raise InputError(t.where("wall_under_tolerance"),
+                             f"expected 0 <= under-tolerance < 1 (e.g. \"12.5 %\"), got "
+                             f"{t.raw('wall_under_tolerance')!r}")
+        general = t.text("source", default="").strip()
+        st = t.table("sources", _SOURCE_FIELDS)
+        sources = {}
+        for f in _SOURCE_FIELDS:
+            own = st.text(f, default="").strip() if st is not None else ""
+            text = own or general
+            if not text:
+                raise InputError(t.where("source"), f"required: where the values come from "
+                                                    f"(no source for {f})")
+            sources[f] = f"{text} (user file {source})"
+        try:
+            m = Material(key=key, name=name, family=family, collapse_method=method,
+                         wall_under_tolerance=u, sources=sources, **values)
+        except ValueError as exc:
+            raise InputError(f"{source}: {t.path}", str(exc)) from None
+        out.append((m, t.boolean("replace"), t.where("key")))
+    return out
+
+
+def parse_materials(text: str, source: str = "<materials>") -> list:
+    """Materials (not registered) from TOML text."""
+    return [m for m, _, _ in materials_from_data(parse_toml_text(text, source), source)]
+
+
+def register_materials(data: dict, source: str) -> list:
+    """Check every material of a parsed file, then register them all."""
+    from rigplan import materials
+
+    entries = materials_from_data(data, source)
+    for m, replace, where in entries:
+        if m.key in materials.LIBRARY and not replace:
+            raise InputError(where, f"material {m.key!r} is already known; choose another key "
+                                    "or add replace = true")
+    for m, replace, _ in entries:
+        materials.register_material(m, replace=replace)
+    return [m for m, _, _ in entries]
+
+
+def read_materials(path) -> list:
+    """Read a user material file and register its materials; returns them."""
+    return register_materials(read_toml(path), str(path))

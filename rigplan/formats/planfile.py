@@ -1,0 +1,618 @@
+"""String plan files (``strings/*.toml``) <-> :class:`rigplan.stringmodel.StringPlan`.
+
+Schema (version 1).  Bare numbers are read in the file's ``units`` system
+(default ``"si"``: m, mm, kg/m3, kPa, MPa, kN, kg/m; ``"us"``: ft, in, ppg,
+psi, psi, lbf, lb/ft); a quantity with its unit in a string (``"20 ft"``,
+``"9-5/8 in"``, ``"1.10 SG"``) is read as written.  Kinds: length (L),
+diameter (D: od, wall, bore), density (rho), pressure (P), force (F), linear
+weight (w)::
+
+    version = 1                  # optional
+    units = "us"                 # unit system of bare numbers
+    name = "..."                 # default: the file name
+    well = "..."
+    site = "..."
+    notes = "..."
+    tally = "x.tally.csv"        # optional tally CSV, path relative to this file
+
+    [hole]                       # required
+    fluid_density = "9.2 ppg"    # rho, required, > 0
+    fluid_level = "0 ft"         # L, depth to the annulus fluid top, default 0
+    depth = "1150 ft"            # L, drilled depth, optional
+    diameter = "22 in"           # D, bit diameter, optional
+
+    [[section]]                  # the string in sections, listed in running
+    kind = "blank"               # order: the first goes in the hole first
+    material = "a53b"            # library key, required
+    od = "16 in"                 # D, required
+    wall = "0.375 in"            # D, specified wall, required, < od/2
+    joint_length = "20 ft"       # L, required, > 0
+    count = 12                   # joints, required, >= 1
+    connection = "butt_weld"     # butt_weld | threaded_coupled | spline | flush | integral | none
+    weld_efficiency = 0.85       # (0, 1]
+    connection_rating = "..."    # F or "unrated"
+    tensile_rating = "..."       # F or "unrated" (screens)
+    collapse_rating = "..."      # P or "unrated" (screens)
+    burst_rating = "..."         # P or "unrated"
+    joint_weight = "..."         # F, own air weight of one joint
+    weight_per_length = "..."    # w, own air weight per length
+    ellipticity = 0.01           # [-], 0 <= e < 1
+    measured_wall = "..."        # D, measured minimum wall
+    bore = "..."                 # D, pressure bore if not od - 2 wall
+    dmax = "..."                 # D, measured largest OD  } both or neither,
+    dmin = "..."                 # D, measured smallest OD } dmin <= dmax
+
+    [[joint]]                    # or joint by joint (not both): the same keys
+    label = "J1"                 # as a section without joint_length/count,
+    length = "20 ft"             # plus label (default J<n>), length (L,
+    measured_length = "..."      # required), measured_length (L) and
+    rejected = false             # rejected (true/false)
+
+    [float_equipment]            # optional; none when absent
+    type = "float_collar"        # none | float_shoe | float_collar
+    collar_joint = 2             # float_collar only: position 1..n or a label
+    valve_rating = "..."         # P, differential the valve holds, optional
+
+    [running]                    # optional
+    fill_density = "8.34 ppg"    # rho, fluid added inside, default 998.2 kg/m3
+    fill_alternatives = ["9 ppg"]  # rho list, other fill fluids to compare
+    min_running_weight = "..."   # F, default 0
+    set_down_weight = "..."      # F, default 0
+    collar_candidates = [1, 2, 3]  # float collar positions to compare
+
+    [design_factors]             # optional, plain numbers
+    tension = 1.6                # defaults from rigplan.stringmodel.DesignFactors
+    collapse = 1.125
+    burst = 1.1
+
+    [grout]                      # optional
+    density = "14.8 ppg"         # rho, required
+    height = "200 ft"            # L, column above the shoe, required
+    inside_density = "8.34 ppg"  # rho, default 998.2 kg/m3
+    inside_level = "0 ft"        # L, depth to the inside fluid top, default 0
+
+Joints are labelled J1..Jn in running order (J1 is the bottom joint, first in
+the hole).  A tally's measured lengths, rejections and measured walls are
+applied by label.  Warnings (not errors) are returned with the plan: grout
+lighter than the hole fluid, a string longer than the hole, an OD larger than
+the hole, a design factor below 1, float-equipment joints without a
+``[float_equipment]`` table.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field, fields
+from pathlib import Path
+
+from rigplan.errors import InputError
+from rigplan.formats import (SCHEMA_VERSION, Table, check_version, dump_toml, file_system,
+                             parse_toml_text, quantity_text, read_toml)
+from rigplan.stringmodel import (CONNECTION_KINDS, JOINT_KINDS, Closure, DesignFactors, GroutSpec,
+                                 Hole, JointSpec, Settings, StringPlan)
+
+TOP_KEYS = ("version", "units", "name", "well", "site", "notes", "tally", "hole", "section",
+            "joint", "float_equipment", "running", "design_factors", "grout")
+HOLE_KEYS = ("fluid_density", "fluid_level", "depth", "diameter")
+COMMON_JOINT_KEYS = ("kind", "material", "od", "wall", "connection", "weld_efficiency",
+                     "connection_rating", "tensile_rating", "collapse_rating", "burst_rating",
+                     "joint_weight", "weight_per_length", "ellipticity", "measured_wall", "bore",
+                     "dmax", "dmin")
+SECTION_KEYS = COMMON_JOINT_KEYS + ("joint_length", "count")
+JOINT_KEYS = ("label",) + COMMON_JOINT_KEYS + ("length", "measured_length", "rejected")
+FLOAT_KEYS = ("type", "collar_joint", "valve_rating")
+FLOAT_TYPES = ("none", "float_shoe", "float_collar")
+RUNNING_KEYS = ("fill_density", "fill_alternatives", "min_running_weight", "set_down_weight",
+                "collar_candidates")
+DESIGN_KEYS = ("tension", "collapse", "burst")
+GROUT_KEYS = ("density", "height", "inside_density", "inside_level")
+
+# file key -> (JointSpec field, quantity kind) for the optional quantities
+_OPTIONAL_QUANTITIES = (
+    ("connection_rating", "connection_rating", "force", True),
+    ("tensile_rating", "tensile_rating", "force", True),
+    ("collapse_rating", "collapse_rating", "pressure", True),
+    ("burst_rating", "burst_rating", "pressure", True),
+    ("joint_weight", "weight", "force", False),
+    ("weight_per_length", "weight_per_length", "linear_weight", False),
+    ("measured_wall", "measured_wall", "diameter", False),
+    ("bore", "bore", "diameter", False),
+    ("dmax", "dmax", "diameter", False),
+    ("dmin", "dmin", "diameter", False),
+)
+
+#: Densities accepted for a drilling fluid, fill fluid or grout [kg/m^3]
+#: (about 5 to 25 ppg): a value outside is almost surely a unit slip.
+FLUID_DENSITY_RANGE = (600.0, 3000.0)
+
+_DEFAULT_SETTINGS = Settings()
+_DEFAULT_DESIGN = DesignFactors()
+
+
+@dataclass(frozen=True)
+class PlanRead:
+    """What :func:`read_plan` returns.
+
+    plan : the :class:`StringPlan` (SI units)
+    warnings : one-line messages about doubtful but accepted input
+    tally_path : the tally CSV applied, or None
+    units : the file's unit system of bare numbers ("si" or "us")
+    """
+
+    plan: StringPlan
+    warnings: tuple = ()
+    tally_path: Path | None = None
+    units: str = "si"
+
+
+def read_plan(path) -> PlanRead:
+    """Read a string plan file (and the tally it names) into a :class:`PlanRead`."""
+    data = read_toml(path)
+    p = Path(path)
+    return plan_from_data(data, str(path), base_dir=p.parent, default_name=p.stem)
+
+
+def parse_plan(text: str, source: str = "<plan>", base_dir=".") -> PlanRead:
+    """Plan from TOML text; a tally path is taken relative to ``base_dir``."""
+    return plan_from_data(parse_toml_text(text, source), source, base_dir=Path(base_dir),
+                          default_name=Path(source).stem)
+
+
+# ---------------------------------------------------------------------------
+# joints
+
+
+def _fluid_density(t: Table, key: str, default=None, required: bool = False, index=None, value=None):
+    """A fluid or grout density [kg/m^3], checked for plausibility."""
+    if value is None and key not in t:
+        return t.quantity(key, "density", default=default, required=required)
+    rho = t.quantity(key, "density", positive=True, index=index, value=value)
+    lo, hi = FLUID_DENSITY_RANGE
+    if not lo <= rho <= hi:
+        where = t.where(key) if index is None else f"{t.where(key)}[{index}]"
+        shown = t.raw(key) if value is None else value
+        raise InputError(where, f"{shown!r} is {rho:.0f} kg/m3: expected a fluid density between "
+                                f"{lo:.0f} and {hi:.0f} kg/m3 (about 5 to 25 ppg); check the unit "
+                                "(bare numbers are in the file's units)")
+    return rho
+
+
+def _material_key(t: Table, key: str = "material") -> str:
+    from rigplan import materials
+
+    name = t.text(key, required=True)
+    try:
+        return materials.get_material(name).key
+    except KeyError:
+        raise InputError(t.where(key), f"unknown material {name!r}; known: "
+                                       f"{', '.join(materials.known_keys())} "
+                                       "(add others with a materials file)") from None
+
+
+def _joint_fields(t: Table) -> dict:
+    """The keys a section and a joint share, checked, as JointSpec fields."""
+    out = {
+        "kind": t.choice("kind", JOINT_KINDS, default="blank"),
+        "material": _material_key(t),
+        "connection": t.choice("connection", CONNECTION_KINDS, default="butt_weld"),
+    }
+    od = t.quantity("od", "diameter", required=True, positive=True)
+    wall = t.quantity("wall", "diameter", required=True, positive=True)
+    if wall >= od / 2.0:
+        raise InputError(t.where("wall"), f"wall {t.raw('wall')!r} is not less than half the od "
+                                          f"{t.raw('od')!r}: expected a wall thickness < od/2")
+    out["od"], out["wall"] = od, wall
+    for key, attr, kind, may_be_unrated in _OPTIONAL_QUANTITIES:
+        value = t.quantity(key, kind, default=None, allow_unrated=may_be_unrated, positive=True)
+        if value is not None and math.isnan(value):
+            value = None          # "unrated" is what an absent rating means
+        out[attr] = value
+    if out["measured_wall"] is not None and out["measured_wall"] >= od / 2.0:
+        raise InputError(t.where("measured_wall"), f"measured wall {t.raw('measured_wall')!r} is not "
+                                                   f"less than half the od {t.raw('od')!r}")
+    if out["bore"] is not None and out["bore"] >= od:
+        raise InputError(t.where("bore"), f"bore {t.raw('bore')!r} is not smaller than the od "
+                                          f"{t.raw('od')!r}")
+    if (out["dmax"] is None) != (out["dmin"] is None):
+        given = "dmax" if out["dmax"] is not None else "dmin"
+        other = "dmin" if given == "dmax" else "dmax"
+        raise InputError(t.where(other), f"required with {given}: a diameter (e.g. 16.05 in or 407.7 mm)")
+    if out["dmax"] is not None and out["dmin"] > out["dmax"]:
+        raise InputError(t.where("dmin"), f"dmin {t.raw('dmin')!r} is larger than dmax {t.raw('dmax')!r}")
+    eff = t.number("weld_efficiency", default=None)
+    if eff is not None and not 0.0 < eff <= 1.0:
+        raise InputError(t.where("weld_efficiency"),
+                         f"expected a weld efficiency in (0, 1], e.g. 0.85, got {t.raw('weld_efficiency')!r}")
+    out["weld_efficiency"] = eff
+    e = t.number("ellipticity", default=None)
+    if e is not None and not 0.0 <= e < 1.0:
+        raise InputError(t.where("ellipticity"),
+                         f"expected an ellipticity (Dmax-Dmin)/(Dmax+Dmin) with 0 <= e < 1, "
+                         f"e.g. 0.01, got {t.raw('ellipticity')!r}")
+    out["ellipticity"] = e
+    return out
+
+
+def _joints_from_sections(sections) -> list:
+    joints = []
+    for t in sections:
+        common = _joint_fields(t)
+        length = t.quantity("joint_length", "length", required=True, positive=True)
+        count = t.integer("count", required=True, minimum=1, what="a whole number of joints")
+        for _ in range(count):
+            joints.append(JointSpec(label=f"J{len(joints) + 1}", length=length, **common))
+    return joints
+
+
+def _joints_one_by_one(tables) -> list:
+    joints = []
+    seen = {}
+    for i, t in enumerate(tables, start=1):
+        common = _joint_fields(t)
+        label = t.text("label", default=f"J{i}").strip()
+        if not label:
+            raise InputError(t.where("label"), "expected a joint label, got an empty text")
+        if label in seen:
+            raise InputError(t.where("label"), f"label {label!r} already used by {seen[label]}")
+        seen[label] = t.path
+        joints.append(JointSpec(
+            label=label,
+            length=t.quantity("length", "length", required=True, positive=True),
+            measured_length=t.quantity("measured_length", "length", default=None, positive=True),
+            rejected=t.boolean("rejected"),
+            **common,
+        ))
+    return joints
+
+
+def _apply_tally(joints: list, rows, tally_source: str) -> list:
+    """Joints with the tally's measured lengths, walls and rejections (by label)."""
+    index = {j.label: i for i, j in enumerate(joints)}
+    out = list(joints)
+    for row in rows:
+        where = f"{tally_source}: row {row.row}"
+        if row.label not in index:
+            raise InputError(f"{where}, label", f"joint {row.label!r} is not in the plan "
+                                                f"({joints[0].label}..{joints[-1].label})")
+        i = index[row.label]
+        j = out[i]
+        if row.kind is not None and row.kind != j.kind:
+            raise InputError(f"{where}, kind", f"the tally says {row.kind!r} but the plan has "
+                                               f"{j.kind!r} for {j.label}: correct one of them")
+        changes = {"rejected": row.status == "rejected"}
+        if row.measured_length is not None:
+            changes["measured_length"] = row.measured_length
+        if row.measured_wall is not None:
+            if row.measured_wall >= j.od / 2.0:
+                raise InputError(f"{where}, measured_wall",
+                                 f"measured wall is not less than half the od of {j.label}")
+            changes["measured_wall"] = row.measured_wall
+        out[i] = _replace(j, **changes)
+    return out
+
+
+def _replace(spec, **changes):
+    values = {f.name: getattr(spec, f.name) for f in fields(spec)}
+    values.update(changes)
+    return type(spec)(**values)
+
+
+# ---------------------------------------------------------------------------
+# the whole plan
+
+
+def plan_from_data(data: dict, source: str, base_dir=Path("."), default_name: str = "") -> PlanRead:
+    check_version(data, source)
+    system = file_system(data, source)
+    top = Table(data, source, "", system, TOP_KEYS)
+    warnings = []
+
+    name = top.text("name", default=default_name) or default_name
+    well = top.text("well")
+    site = top.text("site")
+    notes = top.text("notes")
+
+    # hole
+    ht = top.table("hole", HOLE_KEYS)
+    if ht is None:
+        raise InputError(f"{source}: hole", "required: a [hole] table with at least fluid_density "
+                                            "(e.g. fluid_density = \"9.2 ppg\")")
+    hole = Hole(
+        fluid_density=_fluid_density(ht, "fluid_density", required=True),
+        fluid_level=ht.quantity("fluid_level", "length", default=0.0, nonnegative=True),
+        depth=ht.quantity("depth", "length", default=math.nan, positive=True),
+        diameter=ht.quantity("diameter", "diameter", default=math.nan, positive=True),
+    )
+    if not math.isnan(hole.depth) and hole.fluid_level > hole.depth:
+        raise InputError(ht.where("fluid_level"), f"fluid level {ht.raw('fluid_level')!r} is below the "
+                                                  f"bottom of the hole {ht.raw('depth')!r}")
+
+    # string
+    if "section" in top and "joint" in top:
+        raise InputError(f"{source}: joint", "give the string either as [[section]] tables or as "
+                                             "[[joint]] tables, not both")
+    if "section" in top:
+        joints = _joints_from_sections(top.tables("section", SECTION_KEYS))
+    elif "joint" in top:
+        joints = _joints_one_by_one(top.tables("joint", JOINT_KEYS))
+    else:
+        raise InputError(f"{source}: section", "required: the string, as [[section]] tables "
+                                               "(kind, material, od, wall, joint_length, count) "
+                                               "or [[joint]] tables")
+
+    # tally
+    tally_path = None
+    tally_name = top.text("tally", default=None)
+    if tally_name is not None:
+        from rigplan.formats.tally import read_tally
+
+        if not tally_name.strip():
+            raise InputError(top.where("tally"), "expected the path of a tally CSV, got an empty text")
+        tally_path = Path(base_dir) / tally_name
+        if not tally_path.is_file():
+            raise InputError(top.where("tally"), f"tally file {str(tally_path)!r} not found "
+                                                 "(the path is relative to the plan file)")
+        joints = _apply_tally(joints, read_tally(tally_path), str(tally_path))
+
+    running = [j for j in joints if not j.rejected]
+    if not running:
+        raise InputError(f"{source}: section", "every joint is rejected: nothing to run")
+    n_run = len(running)
+    shoe_depth = sum(j.run_length for j in running)
+    position_of_label = {j.label: i for i, j in enumerate(joints, start=1)}
+
+    # float equipment
+    closure = Closure()
+    ft = top.table("float_equipment", FLOAT_KEYS)
+    if ft is not None:
+        kind = ft.choice("type", FLOAT_TYPES, required=True)
+        rating = ft.quantity("valve_rating", "pressure", default=math.nan, allow_unrated=True,
+                             positive=True)
+        if kind != "float_collar" and "collar_joint" in ft:
+            raise InputError(ft.where("collar_joint"), f"collar_joint is only for type = \"float_collar\" "
+                                                       f"(type is {kind!r})")
+        if kind == "none":
+            if "valve_rating" in ft:
+                raise InputError(ft.where("valve_rating"), "no float equipment (type = \"none\"): "
+                                                           "a valve rating has no valve to go with")
+            closure = Closure()
+        elif kind == "float_shoe":
+            closure = Closure(valve_joint=0, valve_rating=rating)
+        else:
+            if "collar_joint" not in ft:
+                raise ft.missing("collar_joint", "the joint whose top carries the float collar "
+                                                 "(position 1..n counted from the shoe, or a label)")
+            raw = ft.raw("collar_joint")
+            if isinstance(raw, str):
+                if raw.strip() not in position_of_label:
+                    raise InputError(ft.where("collar_joint"), f"no joint labelled {raw!r}: float collar "
+                                                               "placed below the shoe or above the top")
+                position = position_of_label[raw.strip()]
+            else:
+                position = ft.integer("collar_joint", what="a joint position (1 = bottom joint) or label")
+                if not 1 <= position <= len(joints):
+                    raise InputError(ft.where("collar_joint"),
+                                     f"float collar placed below the shoe or above the top: expected "
+                                     f"a joint 1..{len(joints)}, got {position}")
+            collar = joints[position - 1]
+            if collar.rejected:
+                raise InputError(ft.where("collar_joint"), f"the float collar joint {collar.label} is "
+                                                           "rejected in the tally: move the collar")
+            valve_joint = sum(1 for j in joints[:position] if not j.rejected)
+            closure = Closure(valve_joint=valve_joint, valve_rating=rating)
+    elif any(j.kind in ("float_shoe", "float_collar") for j in running):
+        warnings.append(f"{source}: the string has float_shoe or float_collar joints but no "
+                        "[float_equipment] table: it is planned open-ended")
+
+    # running settings
+    rt = top.table("running", RUNNING_KEYS)
+    settings_kw = {}
+    if rt is not None:
+        settings_kw["fill_density"] = _fluid_density(rt, "fill_density",
+                                                     default=_DEFAULT_SETTINGS.fill_density)
+        alts = rt.list_of("fill_alternatives")
+        if alts is not None:
+            settings_kw["fill_density_alternatives"] = tuple(
+                _fluid_density(rt, "fill_alternatives", index=i, value=v)
+                for i, v in enumerate(alts, start=1))
+        settings_kw["min_running_weight"] = rt.quantity("min_running_weight", "force",
+                                                        default=0.0, nonnegative=True)
+        settings_kw["set_down_weight"] = rt.quantity("set_down_weight", "force", default=0.0,
+                                                     nonnegative=True)
+        cands = rt.list_of("collar_candidates")
+        if cands is not None:
+            checked = []
+            for i, c in enumerate(cands, start=1):
+                if isinstance(c, bool) or not isinstance(c, int) or not 1 <= c <= n_run:
+                    raise InputError(f"{rt.where('collar_candidates')}[{i}]",
+                                     f"float collar placed below the shoe or above the top: expected "
+                                     f"a joint 1..{n_run}, got {c!r}")
+                checked.append(c)
+            settings_kw["float_collar_positions"] = tuple(checked)
+    if "float_collar_positions" not in settings_kw:
+        settings_kw["float_collar_positions"] = tuple(
+            c for c in _DEFAULT_SETTINGS.float_collar_positions if c <= n_run)
+
+    dt = top.table("design_factors", DESIGN_KEYS)
+    if dt is not None:
+        df = {}
+        for key in DESIGN_KEYS:
+            v = dt.number(key, default=getattr(_DEFAULT_DESIGN, key))
+            if not v > 0.0:
+                raise InputError(dt.where(key), f"expected a design factor > 0 (usually >= 1), got "
+                                                f"{dt.raw(key)!r}")
+            if v < 1.0:
+                warnings.append(f"{dt.where(key)}: design factor {v:g} is below 1: the check allows "
+                                "loads above the rating")
+            df[key] = v
+        settings_kw["design"] = DesignFactors(**df)
+    settings = Settings(**settings_kw)
+
+    # grout
+    grout = None
+    gt = top.table("grout", GROUT_KEYS)
+    if gt is not None:
+        grout = GroutSpec(
+            density=_fluid_density(gt, "density", required=True),
+            height=gt.quantity("height", "length", required=True, positive=True),
+            inside_density=_fluid_density(
+                gt, "inside_density",
+                default=GroutSpec.__dataclass_fields__["inside_density"].default),
+            inside_level=gt.quantity("inside_level", "length", default=0.0, nonnegative=True),
+        )
+        if grout.height > shoe_depth * (1 + 1e-12):
+            raise InputError(gt.where("height"), f"grout column {gt.raw('height')!r} is taller than the "
+                                                 f"string ({shoe_depth:.2f} m to the shoe)")
+        if grout.inside_level > shoe_depth * (1 + 1e-12):
+            raise InputError(gt.where("inside_level"), f"fill level outside the pipe: "
+                                                       f"{gt.raw('inside_level')!r} is below the shoe "
+                                                       f"({shoe_depth:.2f} m)")
+        if grout.density < hole.fluid_density:
+            warnings.append(f"{gt.where('density')}: grout is lighter than the hole fluid: it will "
+                            "not displace it from the annulus")
+
+    # cross checks that only warn
+    if not math.isnan(hole.depth) and shoe_depth > hole.depth * (1 + 1e-12):
+        warnings.append(f"{ht.where('depth')}: the string ({shoe_depth:.2f} m) is longer than the "
+                        f"hole ({hole.depth:.2f} m)")
+    if not math.isnan(hole.diameter):
+        widest = max(running, key=lambda j: j.od)
+        if widest.od >= hole.diameter:
+            warnings.append(f"{ht.where('diameter')}: {widest.label} has an od of "
+                            f"{widest.od * 1000:.1f} mm, not less than the hole diameter "
+                            f"({hole.diameter * 1000:.1f} mm)")
+
+    plan = StringPlan(name=name, well=well, hole=hole, joints=tuple(joints), closure=closure,
+                      settings=settings, grout=grout, site=site, notes=notes, source=source)
+    return PlanRead(plan=plan, warnings=tuple(warnings), tally_path=tally_path, units=system)
+
+
+# ---------------------------------------------------------------------------
+# writing
+
+
+def _default_labels(joints) -> bool:
+    return all(j.label == f"J{i}" for i, j in enumerate(joints, start=1))
+
+
+def _joint_doc(j: JointSpec, system: str, as_section: bool) -> dict:
+    d = {}
+    if not as_section:
+        d["label"] = j.label
+    d["kind"] = j.kind
+    d["material"] = j.material
+    d["od"] = quantity_text(j.od, "diameter", system)
+    d["wall"] = quantity_text(j.wall, "diameter", system)
+    if as_section:
+        d["joint_length"] = quantity_text(j.length, "length", system)
+    else:
+        d["length"] = quantity_text(j.length, "length", system)
+        if j.measured_length is not None:
+            d["measured_length"] = quantity_text(j.measured_length, "length", system)
+        if j.rejected:
+            d["rejected"] = True
+    d["connection"] = j.connection
+    if j.weld_efficiency is not None:
+        d["weld_efficiency"] = float(j.weld_efficiency)
+    for key, attr, kind, _ in _OPTIONAL_QUANTITIES:
+        v = getattr(j, attr)
+        if v is not None:
+            d[key] = quantity_text(v, kind, system)
+    if j.ellipticity is not None:
+        d["ellipticity"] = float(j.ellipticity)
+    return d
+
+
+def _same_but_label(a: JointSpec, b: JointSpec) -> bool:
+    return _replace(a, label="") == _replace(b, label="")
+
+
+def plan_text(plan: StringPlan, system: str = "si", header: str = "") -> str:
+    """TOML text of a plan in ``system`` units (see :func:`write_plan`)."""
+    if system not in ("si", "us"):
+        raise ValueError(f"unknown unit system {system!r}; known: si, us")
+    doc = {"version": SCHEMA_VERSION, "units": system, "name": plan.name}
+    for key in ("well", "site", "notes"):
+        if getattr(plan, key):
+            doc[key] = getattr(plan, key)
+
+    h = plan.hole
+    hole = {"fluid_density": quantity_text(h.fluid_density, "density", system),
+            "fluid_level": quantity_text(h.fluid_level, "length", system)}
+    if not math.isnan(h.depth):
+        hole["depth"] = quantity_text(h.depth, "length", system)
+    if not math.isnan(h.diameter):
+        hole["diameter"] = quantity_text(h.diameter, "diameter", system)
+    doc["hole"] = hole
+
+    joints = list(plan.joints)
+    if not joints:
+        raise ValueError("a plan without joints cannot be written")
+    sectioned = _default_labels(joints) and not any(
+        j.measured_length is not None or j.rejected for j in joints)
+    if sectioned:
+        sections = []
+        run_start = 0
+        for i in range(1, len(joints) + 1):
+            if i == len(joints) or not _same_but_label(joints[i], joints[run_start]):
+                s = _joint_doc(joints[run_start], system, as_section=True)
+                s["count"] = i - run_start
+                sections.append(s)
+                run_start = i
+        doc["section"] = sections
+    else:
+        doc["joint"] = [_joint_doc(j, system, as_section=False) for j in joints]
+
+    c = plan.closure
+    if c.valve_joint is not None:
+        fe = {}
+        if c.valve_joint == 0:
+            fe["type"] = "float_shoe"
+        else:
+            running = plan.running_joints()
+            if not 1 <= c.valve_joint <= len(running):
+                raise ValueError(f"float collar at running joint {c.valve_joint} outside 1..{len(running)}")
+            fe["type"] = "float_collar"
+            fe["collar_joint"] = running[c.valve_joint - 1].label
+        if not math.isnan(c.valve_rating):
+            fe["valve_rating"] = quantity_text(c.valve_rating, "pressure", system)
+        doc["float_equipment"] = fe
+
+    s = plan.settings
+    run = {"fill_density": quantity_text(s.fill_density, "density", system)}
+    if s.fill_density_alternatives:
+        run["fill_alternatives"] = [quantity_text(v, "density", system)
+                                    for v in s.fill_density_alternatives]
+    run["min_running_weight"] = quantity_text(s.min_running_weight, "force", system)
+    run["set_down_weight"] = quantity_text(s.set_down_weight, "force", system)
+    run["collar_candidates"] = [int(v) for v in s.float_collar_positions]
+    doc["running"] = run
+    doc["design_factors"] = {"tension": float(s.design.tension),
+                             "collapse": float(s.design.collapse),
+                             "burst": float(s.design.burst)}
+
+    if plan.grout is not None:
+        g = plan.grout
+        doc["grout"] = {"density": quantity_text(g.density, "density", system),
+                        "height": quantity_text(g.height, "length", system),
+                        "inside_density": quantity_text(g.inside_density, "density", system),
+                        "inside_level": quantity_text(g.inside_level, "length", system)}
+    if not header:
+        header = f"rigplan string plan: {plan.name}" + (f", well {plan.well}" if plan.well else "")
+    return dump_toml(doc, header=header)
+
+
+def write_plan(plan: StringPlan, path, system: str = "si", header: str = "") -> None:
+    """Write ``plan`` to ``path`` as a version-1 plan file, atomically.
+
+    Every quantity is written with its unit in ``system`` ("si" or "us") to
+    12 significant digits, so reading the file back gives the same plan to
+    within 5e-13 relative.  Joints with the default labels J1..Jn and no
+    tally data are grouped into ``[[section]]`` tables of identical joints;
+    otherwise every joint is written as a ``[[joint]]`` table with its
+    measured length and rejection (the tally is then part of the file, and
+    no ``tally`` key is written).  Comments of an earlier file are not kept.
+    """
+    from rigplan.atomicio import atomic_write_text
+
+    atomic_write_text(path, plan_text(plan, system, header))

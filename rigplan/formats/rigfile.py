@@ -1,0 +1,178 @@
+"""Rig profile files (``rigs/*.toml``) -> :class:`rigplan.hoisting.Rig`.
+
+Schema (version 1; bare numbers in the file's ``units`` system, default
+``"si"``; a rating may be the text ``"unrated"``, and a rating left out is
+unrated too -- never assumed)::
+
+    version = 1                 # optional
+    units = "us"                # "si" (default) or "us": unit of bare numbers
+    name = "..."                # required
+    notes = "..."
+
+    [[path]]                    # one per way of holding the string, >= 1
+    name = "main line"          # required, unique
+    lines = 4                   # lines strung, default 1
+    sheave_factor = 1.04        # default 1.04 (roller bearings)
+    winch_line_pull = "9000 lbf"        # force, at the drum layer in use
+    rope_breaking_force = "39000 lbf"   # force, minimum breaking force
+    rope_design_factor = 3.0            # default 3
+    mast_rating = "60000 lbf"           # force, static hook load for these lines
+    top_head_pullup = "30000 lbf"       # force
+    dead_load = "1800 lbf"              # force, required (0 when none)
+    overpull_reserve = "5000 lbf"       # force, default 0
+    dynamic_factor = 1.1                # default 1.0
+    notes = "..."
+
+    [[path.tool]]               # handling tools on this path
+    name = "..."                # required
+    kind = "elevator"           # elevator | clamp | spider | lifting_sub | other
+    rating = "30 tf"            # force or "unrated"
+
+    [landing_string]            # optional: pipe for staged setting
+    name = "..."                # required
+    weight_per_length = "13.3 lb/ft"    # linear weight (air), required
+    tensile_rating = "250000 lbf"       # force or "unrated"
+    density = "7850 kg/m3"              # default 7850 kg/m3 (steel)
+    od = "3-1/2 in"                     # diameter, optional
+    bore = "2.764 in"                   # diameter, optional
+"""
+
+from __future__ import annotations
+
+import math
+from pathlib import Path
+
+from rigplan.errors import InputError
+from rigplan.formats import Table, check_version, file_system, read_toml, parse_toml_text
+
+TOP_KEYS = ("version", "units", "name", "notes", "path", "landing_string")
+PATH_KEYS = ("name", "lines", "sheave_factor", "winch_line_pull", "rope_breaking_force",
+             "rope_design_factor", "mast_rating", "top_head_pullup", "dead_load",
+             "overpull_reserve", "dynamic_factor", "notes", "tool")
+TOOL_KEYS = ("name", "kind", "rating")
+LANDING_KEYS = ("name", "weight_per_length", "tensile_rating", "density", "od", "bore")
+
+#: Steel density used for a landing string when none is given [kg/m^3]
+#: (carbon steel, 0.2836 lb/in^3 as in the ASTM A53 / API 5L plain-end weight
+#: formula).
+DEFAULT_LANDING_STRING_DENSITY = 7850.0
+
+
+def read_rig(path) -> "object":
+    """Read a rig profile file and return a :class:`rigplan.hoisting.Rig`."""
+    data = read_toml(path)
+    return rig_from_data(data, str(path))
+
+
+def parse_rig(text: str, source: str = "<rig>"):
+    """Rig from TOML text (``source`` names it in messages)."""
+    return rig_from_data(parse_toml_text(text, source), source)
+
+
+def _rewhere(exc: InputError, where: str) -> InputError:
+    """An engine-side InputError re-issued with the file's key path."""
+    return InputError(where, exc.message)
+
+
+def rig_from_data(data: dict, source: str):
+    from rigplan.hoisting import HoistPath, LandingString, Rig, TOOL_KINDS
+
+    check_version(data, source)
+    system = file_system(data, source)
+    top = Table(data, source, "", system, TOP_KEYS)
+    name = top.text("name", required=True).strip()
+    if not name:
+        raise InputError(top.where("name"), "expected a rig name, got an empty text")
+
+    paths = []
+    seen = {}
+    for t in top.tables("path", PATH_KEYS, required=True):
+        pname = t.text("name", required=True).strip()
+        if not pname:
+            raise InputError(t.where("name"), "expected a path name, got an empty text")
+        if pname in seen:
+            raise InputError(t.where("name"), f"path name {pname!r} already used by {seen[pname]}")
+        seen[pname] = t.path
+        lines = t.integer("lines", default=1, minimum=1, what="a whole number of lines strung")
+        k = t.number("sheave_factor", default=1.04)
+        if not k >= 1.0:
+            raise InputError(t.where("sheave_factor"), f"expected a sheave factor >= 1 (1.04 for roller "
+                                                       f"bearings), got {t.raw('sheave_factor')!r}")
+        ratings = {}
+        for key in ("winch_line_pull", "rope_breaking_force", "mast_rating", "top_head_pullup"):
+            ratings[key] = t.quantity(key, "force", default=math.nan, allow_unrated=True,
+                                      positive=True)
+        df = t.number("rope_design_factor", default=3.0)
+        if not df > 0.0:
+            raise InputError(t.where("rope_design_factor"),
+                             f"expected a rope design factor > 0 (3 is usual), got {t.raw('rope_design_factor')!r}")
+        if "dead_load" not in t:
+            raise InputError(t.where("dead_load"),
+                             "required: a force (e.g. 1800 lbf or 8 kN): block, hook, elevator or "
+                             "clamp, and the top head where it rides on the line; write 0 if none")
+        dead = t.quantity("dead_load", "force", nonnegative=True)
+        reserve = t.quantity("overpull_reserve", "force", default=0.0, nonnegative=True)
+        dyn = t.number("dynamic_factor", default=1.0)
+        if not dyn >= 1.0:
+            raise InputError(t.where("dynamic_factor"),
+                             f"expected a dynamic factor >= 1, got {t.raw('dynamic_factor')!r}")
+        tools = []
+        tool_names = {}
+        for tt in t.tables("tool", TOOL_KEYS):
+            tname = tt.text("name", required=True).strip()
+            if not tname:
+                raise InputError(tt.where("name"), "expected a tool name, got an empty text")
+            if tname in tool_names:
+                raise InputError(tt.where("name"), f"tool name {tname!r} already used by {tool_names[tname]}")
+            tool_names[tname] = tt.path
+            kind = tt.choice("kind", TOOL_KINDS, required=True)
+            rating = tt.quantity("rating", "force", default=math.nan, allow_unrated=True, positive=True)
+            tools.append((tname, kind, rating))
+        try:
+            paths.append(HoistPath(
+                name=pname, lines=lines, sheave_factor=k,
+                winch_line_pull=ratings["winch_line_pull"],
+                rope_breaking_force=ratings["rope_breaking_force"],
+                rope_design_factor=df, mast_rating=ratings["mast_rating"],
+                top_head_pullup=ratings["top_head_pullup"], tools=tuple(tools),
+                dead_load=dead, overpull_reserve=reserve, dynamic_factor=dyn,
+                notes=t.text("notes"),
+            ))
+        except InputError as exc:
+            raise _rewhere(exc, f"{source}: {t.path}") from None
+
+    landing = None
+    lt = top.table("landing_string", LANDING_KEYS)
+    if lt is not None:
+        lname = lt.text("name", required=True).strip()
+        if not lname:
+            raise InputError(lt.where("name"), "expected a name, got an empty text")
+        od = lt.quantity("od", "diameter", default=math.nan, positive=True)
+        bore = lt.quantity("bore", "diameter", default=math.nan, positive=True)
+        if not math.isnan(od) and not math.isnan(bore) and bore >= od:
+            raise InputError(lt.where("bore"), f"expected a bore smaller than the od, got "
+                                               f"{lt.raw('bore')!r} with od {lt.raw('od')!r}")
+        try:
+            landing = LandingString(
+                name=lname,
+                weight_per_length=lt.quantity("weight_per_length", "linear_weight",
+                                              required=True, positive=True),
+                tensile_rating=lt.quantity("tensile_rating", "force", default=math.nan,
+                                           allow_unrated=True, positive=True),
+                density=lt.quantity("density", "density", default=DEFAULT_LANDING_STRING_DENSITY,
+                                    positive=True),
+                od=od, bore=bore,
+            )
+        except InputError as exc:
+            raise _rewhere(exc, f"{source}: landing_string") from None
+
+    try:
+        return Rig(name=name, paths=tuple(paths), landing_string=landing,
+                   notes=top.text("notes"), source=source)
+    except InputError as exc:
+        raise _rewhere(exc, source) from None
+
+
+def rig_files(directory) -> list:
+    """The ``*.toml`` rig profiles in a folder, sorted by name."""
+    return sorted(Path(directory).glob("*.toml"))

@@ -1,0 +1,203 @@
+"""Tally sheets (CSV): the measured length and state of each joint on site.
+
+Format (UTF-8, comma separated, one header line; lines starting with ``#``
+are comments; row numbers in messages are line numbers in the file)::
+
+    # tally for well ..., measured with a steel tape
+    label,measured_length [ft],kind,status,note,measured_wall [in]
+    J1,20.10,float_shoe,run,shoe welded on in the yard,
+    J2,20 ft 1-1/2 in,blank,run,,
+    J3,,blank,rejected,dented at the pin end,
+
+Columns (any order; only ``label`` is required, the others may be left out):
+
+* ``label``: joint label as in the plan (``J1`` is the bottom joint);
+* ``measured_length [unit]``: a length; the unit in brackets is the unit of
+  bare numbers, a value may carry its own (``20 ft 1-1/2 in``); empty = not
+  measured yet;
+* ``kind``: one of :data:`rigplan.stringmodel.JOINT_KINDS`, or empty;
+* ``status``: ``run`` (default) or ``rejected`` (set aside, not run);
+* ``note``: free text;
+* ``measured_wall [unit]``: measured minimum wall (a diameter kind), or empty.
+
+Without a unit in the header every value of that column must carry its own
+unit.  Numbers never use a decimal comma or a thousands separator (the field
+separator is a comma).
+"""
+
+from __future__ import annotations
+
+import csv
+import io
+import re
+from dataclasses import dataclass, field
+from pathlib import Path
+
+from rigplan import units
+from rigplan.errors import InputError
+from rigplan.stringmodel import JOINT_KINDS
+
+COLUMNS = ("label", "measured_length", "kind", "status", "note", "measured_wall")
+STATUSES = ("run", "rejected")
+_QUANTITY_COLUMNS = {"measured_length": "length", "measured_wall": "diameter"}
+_HEADER_CELL = re.compile(r"^\s*(?P<name>[A-Za-z_]+)\s*(?:\[(?P<unit>[^\]]*)\])?\s*$")
+
+
+@dataclass(frozen=True)
+class TallyRow:
+    """One tally line, SI units.
+
+    label : joint label
+    measured_length : measured length [m] (None = not measured)
+    kind : joint kind or None (not stated)
+    status : "run" or "rejected"
+    note : free text
+    measured_wall : measured minimum wall [m] (None = not measured)
+    row : line number in the file it came from (0 when made in code)
+    """
+
+    label: str
+    measured_length: float | None = None
+    kind: str | None = None
+    status: str = "run"
+    note: str = ""
+    measured_wall: float | None = None
+    row: int = field(default=0, compare=False)
+
+
+def _header(cells, source: str, line: int):
+    columns = []
+    unit_of = {}
+    for cell in cells:
+        m = _HEADER_CELL.match(cell)
+        name = m.group("name").lower() if m else cell.strip()
+        if not m or name not in COLUMNS:
+            raise InputError(f"{source}: row {line}", f"unknown column {cell.strip()!r}; known "
+                                                      f"columns: {', '.join(COLUMNS)} (a unit may "
+                                                      "follow in brackets: measured_length [ft])")
+        if name in columns:
+            raise InputError(f"{source}: row {line}", f"column {name!r} appears twice")
+        unit = (m.group("unit") or "").strip() or None
+        if unit is not None:
+            if name not in _QUANTITY_COLUMNS:
+                raise InputError(f"{source}: row {line}", f"column {name!r} takes no unit")
+            kind = _QUANTITY_COLUMNS[name]
+            try:  # check the unit now: one message, not one per row
+                units.parse(f"1 {unit}", kind, None, f"{source}: row {line}, {name}")
+            except InputError as exc:
+                raise InputError(exc.where, f"header unit [{unit}]: {exc.message}") from None
+            unit_of[name] = unit
+        columns.append(name)
+    if "label" not in columns:
+        raise InputError(f"{source}: row {line}", "the header needs a 'label' column "
+                                                  f"(columns: {', '.join(COLUMNS)})")
+    return columns, unit_of
+
+
+def parse_tally(text: str, source: str = "<tally>") -> list:
+    """Rows of a tally CSV text (see the module docstring)."""
+    reader = csv.reader(io.StringIO(text, newline=""))
+    columns = None
+    unit_of = {}
+    rows = []
+    seen = {}
+    line = 0
+    for cells in reader:
+        line = reader.line_num
+        if not cells or all(not c.strip() for c in cells):
+            continue
+        if cells[0].lstrip().startswith("#"):
+            continue
+        if columns is None:
+            columns, unit_of = _header(cells, source, line)
+            continue
+        if len(cells) != len(columns):
+            hint = " (a decimal comma? write 20.5, not 20,5)" if len(cells) > len(columns) else ""
+            raise InputError(f"{source}: row {line}", f"{len(cells)} fields, the header has "
+                                                      f"{len(columns)}{hint}")
+        values = dict(zip(columns, (c.strip() for c in cells)))
+        where = f"{source}: row {line}"
+        label = values["label"]
+        if not label:
+            raise InputError(f"{where}, label", "expected a joint label (e.g. J12), got an empty cell")
+        if label in seen:
+            raise InputError(f"{where}, label", f"joint {label!r} already listed in row {seen[label]}")
+        seen[label] = line
+        q = {}
+        for name, kind in _QUANTITY_COLUMNS.items():
+            text_value = values.get(name, "")
+            if not text_value:
+                q[name] = None
+                continue
+            v = units.parse(text_value, kind, unit_of.get(name), f"{where}, {name}")
+            if not v > 0.0:
+                raise InputError(f"{where}, {name}", f"expected {units.describe(kind)} greater than "
+                                                     f"zero, got {text_value!r}")
+            q[name] = v
+        kind = values.get("kind", "") or None
+        if kind is not None and kind not in JOINT_KINDS:
+            raise InputError(f"{where}, kind", f"unknown kind {kind!r}; expected one of "
+                                               f"{', '.join(JOINT_KINDS)} or empty")
+        status = (values.get("status", "") or "run").lower()
+        if status not in STATUSES:
+            raise InputError(f"{where}, status", f"expected run or rejected, got {values['status']!r}")
+        rows.append(TallyRow(label=label, measured_length=q["measured_length"], kind=kind,
+                             status=status, note=values.get("note", ""),
+                             measured_wall=q["measured_wall"], row=line))
+    if columns is None:
+        raise InputError(source, "empty tally: expected a header line "
+                                 f"({', '.join(COLUMNS)}) and one row per joint")
+    return rows
+
+
+def read_tally(path) -> list:
+    """Rows of a tally CSV file as :class:`TallyRow` (SI units)."""
+    try:
+        text = Path(path).read_text(encoding="utf-8-sig")
+    except FileNotFoundError:
+        raise InputError(str(path), "file not found") from None
+    except UnicodeDecodeError:
+        raise InputError(str(path), "not UTF-8 text: save the tally as CSV (UTF-8)") from None
+    except OSError as exc:
+        raise InputError(str(path), f"cannot read the file ({exc.strerror})") from None
+    return parse_tally(text, str(path))
+
+
+def _number(value: float, kind: str, system: str) -> str:
+    return f"{units.to_display(value, kind, system):.12g}"
+
+
+def tally_text(rows, system: str = "us", comment: str = "") -> str:
+    """CSV text of tally rows, lengths in ``system``'s display unit."""
+    if system not in units.SYSTEMS:
+        raise ValueError(f"unknown unit system {system!r}; known: si, us")
+    buf = io.StringIO(newline="")
+    for line in comment.splitlines():
+        buf.write(f"# {line}".rstrip() + "\n")
+    w = csv.writer(buf, lineterminator="\n")
+    w.writerow(["label", f"measured_length [{units.unit_label('length', system)}]", "kind",
+                "status", "note", f"measured_wall [{units.unit_label('diameter', system)}]"])
+    for r in rows:
+        w.writerow([
+            r.label,
+            "" if r.measured_length is None else _number(r.measured_length, "length", system),
+            r.kind or "",
+            r.status,
+            r.note,
+            "" if r.measured_wall is None else _number(r.measured_wall, "diameter", system),
+        ])
+    return buf.getvalue()
+
+
+def write_tally(rows, path, system: str = "us", comment: str = "") -> None:
+    """Write tally rows to a CSV file atomically (12 significant digits)."""
+    from rigplan.atomicio import atomic_write_text
+
+    atomic_write_text(path, tally_text(rows, system, comment))
+
+
+def tally_from_plan(plan) -> list:
+    """A tally sheet for a plan: one row per joint with what the plan knows."""
+    return [TallyRow(label=j.label, measured_length=j.measured_length, kind=j.kind,
+                     status="rejected" if j.rejected else "run", measured_wall=j.measured_wall)
+            for j in plan.joints]

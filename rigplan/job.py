@@ -1,0 +1,182 @@
+"""A job: a string plan, a rig profile and the site tally, ready to plan.
+
+Formats-layer glue shared by the command line and the terminal app: reads
+the files, applies the run log (measured lengths and rejected joints) to the
+plan, rates the joints and calls the planner.  No textual, no rich.
+"""
+
+from __future__ import annotations
+
+import dataclasses
+from dataclasses import dataclass
+from pathlib import Path
+
+from rigplan.errors import InputError
+from rigplan.stringmodel import JointSpec, StringPlan
+
+#: Where the bundled demo lives: the repository's ``rigs/`` and ``strings/``
+#: when run from a checkout, else the copies installed with the package.
+_PACKAGE = Path(__file__).resolve().parent
+_REPO = _PACKAGE.parent
+
+
+def demo_dir(kind: str) -> Path:
+    """Folder of the bundled demo ``rigs`` or ``strings``."""
+    for base in (_REPO / kind, _PACKAGE / "data" / kind):
+        if base.is_dir() and any(base.glob("*.toml")):
+            return base
+    raise InputError(kind, f"the bundled demo {kind} folder is missing")
+
+
+#: The demo job opened by ``rigplan`` with no arguments.
+DEMO_PLAN = "cv7-16in-floated.toml"
+DEMO_RIG = "mw80.toml"
+
+#: Every bundled demo job: (string plan, the rig it is meant for).
+DEMO_JOBS = (
+    ("cv3-8in-a53b.toml", "th30.toml"),
+    ("cv7-16in-floated.toml", "mw80.toml"),
+    ("cv9-14in-staged.toml", "mw80.toml"),
+    ("cv12-pvc-floated.toml", "th30.toml"),
+)
+
+
+def demo_jobs() -> list[tuple[Path, Path]]:
+    """(plan, rig) paths of every bundled demo job that is present."""
+    strings, rigs = demo_dir("strings"), demo_dir("rigs")
+    return [(strings / p, rigs / r) for p, r in DEMO_JOBS
+            if (strings / p).exists() and (rigs / r).exists()]
+
+
+def demo_paths() -> tuple[Path, Path]:
+    """(plan, rig) of the bundled demo job."""
+    strings, rigs = demo_dir("strings"), demo_dir("rigs")
+    plan = strings / DEMO_PLAN
+    rig = rigs / DEMO_RIG
+    if not plan.exists():
+        plan = sorted(strings.glob("*.toml"))[0]
+    if not rig.exists():
+        rig = sorted(rigs.glob("*.toml"))[0]
+    return plan, rig
+
+
+def resolve_rig(name_or_path: str, plan_path: Path | None = None) -> Path:
+    """A rig argument: a path, or the name of a bundled profile."""
+    p = Path(name_or_path)
+    if p.exists():
+        return p
+    for base in ([plan_path.parent.parent / "rigs"] if plan_path else []) + [demo_dir("rigs")]:
+        for cand in (base / name_or_path, base / f"{name_or_path}.toml"):
+            if cand.exists():
+                return cand
+    raise InputError(str(name_or_path), "no such rig profile file (expected a path to a "
+                                        "rigs/*.toml file or the name of a bundled rig)")
+
+
+@dataclass
+class Job:
+    """The files of one job and what was read from them."""
+
+    plan_path: Path | None
+    rig_path: Path | None
+    plan: StringPlan
+    rig: object
+    warnings: tuple = ()
+    path_name: str | None = None
+
+
+def load_job(plan_path, rig_path, path_name: str | None = None,
+             materials_path=None) -> Job:
+    """Read a plan and a rig profile (and an optional user materials file)."""
+    from rigplan.formats.planfile import read_plan
+    from rigplan.formats.rigfile import read_rig
+    if materials_path is not None:
+        from rigplan.formats.materialfile import read_materials
+        read_materials(materials_path)
+    plan_path = Path(plan_path)
+    if not plan_path.exists():
+        raise InputError(str(plan_path), "no such string plan file (expected a strings/*.toml file)")
+    rig_path = resolve_rig(str(rig_path), plan_path)
+    read = read_plan(plan_path)
+    rig = read_rig(rig_path)
+    if path_name is not None and path_name not in [p.name for p in rig.paths]:
+        raise InputError(f"{rig_path}: --path",
+                         f"no hoisting path named {path_name!r}; the rig has: "
+                         + ", ".join(p.name for p in rig.paths))
+    return Job(plan_path=plan_path, rig_path=rig_path, plan=read.plan, rig=rig,
+               warnings=tuple(read.warnings), path_name=path_name)
+
+
+def apply_run_state(plan: StringPlan, state) -> StringPlan:
+    """The plan as run so far: measured lengths and rejections from a run log.
+
+    ``state`` is a :class:`rigplan.runlog.RunState` (or None).  Joints run
+    keep their plan order; a measured length replaces the planned one; a
+    rejected joint is marked rejected and left out of the loads.
+    """
+    if state is None:
+        return plan
+    measured = {label: length for label, length in state.run}
+    rejected = dict(state.rejected)
+    joints = []
+    for j in plan.joints:
+        changes = {}
+        if j.label in measured and measured[j.label] is not None:
+            changes["measured_length"] = float(measured[j.label])
+        if j.label in rejected:
+            changes["rejected"] = True
+        joints.append(dataclasses.replace(j, **changes) if changes else j)
+    return dataclasses.replace(plan, joints=tuple(joints))
+
+
+def rated_joints(plan: StringPlan):
+    """The running joints of a plan, rated (``JointArrays``)."""
+    from rigplan.rating import rate_joints
+    specs = plan.running_joints()
+    if not specs:
+        raise InputError(plan.source or plan.name, "the string has no joints to run")
+    try:
+        return rate_joints(specs)
+    except InputError:
+        raise
+    except (ValueError, KeyError) as err:
+        raise InputError(plan.source or plan.name, str(err).strip("'\"")) from None
+
+
+def valve_for_running(plan: StringPlan):
+    """The plan's closure with the float-collar position counted among the
+    joints actually run (rejected joints drop out of the count)."""
+    c = plan.closure
+    if c.valve_joint is None or c.valve_joint == 0:
+        return c
+    labels = [j.label for j in plan.joints]
+    running = [j.label for j in plan.running_joints()]
+    m = c.valve_joint
+    if m > len(labels):
+        return c
+    # count the running joints at or below the planned collar joint
+    below = [lab for lab in labels[:m] if lab in running]
+    return dataclasses.replace(c, valve_joint=len(below))
+
+
+def plan_job(plan: StringPlan, rig, path_name: str | None = None):
+    """Rate the string and plan its landing (``rigplan.planner.LandingPlan``)."""
+    from rigplan.planner import plan_landing
+    joints = rated_joints(plan)
+    closure = valve_for_running(plan)
+    if closure.valve_joint is not None and closure.valve_joint >= joints.n:
+        raise InputError(plan.source or plan.name,
+                         f"float_equipment.collar_joint: the float collar must sit on a joint "
+                         f"below the top (1..{joints.n - 1}), got {closure.valve_joint}")
+    try:
+        return plan_landing(joints, plan.hole, rig, plan.settings, closure=closure,
+                            path=path_name, grout=plan.grout)
+    except InputError:
+        raise
+    except ValueError as err:
+        raise InputError(plan.source or plan.name, str(err)) from None
+
+
+def joint_specs(plan: StringPlan) -> tuple[JointSpec, ...]:
+    """Every joint of the plan (rejected ones included), running order."""
+    return tuple(plan.joints)

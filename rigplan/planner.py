@@ -1,0 +1,352 @@
+"""The landing plan: picks the way to land a string and checks every limit.
+
+Engine orchestration only: it calls the topic modules (``axial``,
+``floatplan``, ``staging``, ``grouting``, ``hoisting``) and collects their
+results in :class:`LandingPlan`; it adds no physics of its own.
+
+Order of trial (first that keeps every limit wins):
+
+1. open-ended, the hole fluid inside;
+2. floated: float shoe and float collars at the positions in the settings,
+   each with every fill fluid offered, ranked by fewest top-ups then the
+   largest least margin;
+3. two stages on the rig's landing string;
+4. otherwise: cannot land, with the reasons.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+import numpy as np
+
+from rigplan import CAUTION
+from rigplan.axial import RunningLoads, neutral_point_depth, running_loads, step_profile
+from rigplan.floatplan import FillSchedule, FillWindow, fill_schedule, fill_window, switch_point
+from rigplan.hoisting import PathCapacity, Rig, path_capacity
+from rigplan.staging import StagedPlan, plan_two_stages
+from rigplan.stringmodel import Closure, GroutSpec, Hole, JointArrays, Settings
+
+LANDS_OPEN = "lands open"
+LANDS_FLOATED = "lands with float plan"
+LANDS_STAGED = "lands in stages"
+CANNOT_LAND = "cannot land"
+CANNOT_CONFIRM = "cannot confirm"
+
+
+@dataclass(frozen=True)
+class Limit:
+    """One checked limit: what, where, load against capacity, margin.
+
+    margin = (capacity - load) / capacity [-], utilization = load / capacity
+    (design factors already applied to the load).
+    """
+
+    name: str
+    where: str
+    load: float
+    capacity: float
+    margin: float
+
+
+@dataclass(frozen=True)
+class RunCheck:
+    """A run (open, or floated with a schedule) checked against every limit.
+
+    Arrays are per joint (index j-1 = joint j) unless named per step.
+    tension_utilization : DF_t x largest true tension at each joint's top /
+        the smaller of its connection and body rating (nan: unrated)
+    collapse_utilization, burst_utilization : DF x load / rating per joint
+    capacity_margin : per step, (limit - string load) / limit
+    """
+
+    closure: Closure
+    loads: RunningLoads
+    capacity_margin: np.ndarray
+    tension_utilization: np.ndarray
+    collapse_utilization: np.ndarray
+    burst_utilization: np.ndarray
+    limits: tuple
+    unrated: tuple
+    ok: bool
+
+
+@dataclass(frozen=True)
+class FloatOption:
+    """One float position and fill fluid tried."""
+
+    closure: Closure
+    fill_density: float
+    window: FillWindow
+    schedule: FillSchedule
+    check: RunCheck | None
+    lands: bool
+    reason: str = ""
+
+
+@dataclass(frozen=True)
+class LandingPlan:
+    """Everything the front ends show, SI units.
+
+    verdict : one of ``lands open``, ``lands with float plan``,
+        ``lands in stages``, ``cannot land``, ``cannot confirm``
+    governing : the limit with the least margin in the chosen plan
+    path : the hoisting path's capacity (string_limit compares with the
+        string load; hook_limit with the hook load, dead load included)
+    open_check : the open-ended run
+    chosen : the run that lands (open or floated), or the best tried
+    float_options : every float position and fill fluid tried
+    best_float : the chosen float option (or None)
+    stages : the staged plan (or None)
+    switch_joint : first joint at which the open-ended string load would
+        exceed the limit (0: never): where floating must begin
+    neutral_point : depth of the neutral point when landed with the
+        set-down weight [m] (nan: all in tension)
+    cautions : the planning cautions
+    """
+
+    verdict: str
+    governing: Limit | None
+    path: PathCapacity
+    dead_load: float
+    joints: JointArrays
+    hole: Hole
+    settings: Settings
+    open_check: RunCheck
+    chosen: RunCheck
+    float_options: tuple
+    best_float: FloatOption | None
+    stages: StagedPlan | None
+    switch_joint: int
+    neutral_point: float
+    grouting: object = None
+    unrated: tuple = ()
+    reasons: tuple = ()
+    cautions: tuple = field(default_factory=lambda: (CAUTION,))
+
+    @property
+    def lands(self) -> bool:
+        return self.verdict in (LANDS_OPEN, LANDS_FLOATED, LANDS_STAGED)
+
+    @property
+    def hook_load(self) -> np.ndarray:
+        """Hook load per step [N]: string load plus the dead load."""
+        return self.chosen.loads.string_load + self.dead_load
+
+
+def _ratio(load, capacity):
+    with np.errstate(divide="ignore", invalid="ignore"):
+        return np.where(np.isfinite(capacity), load / capacity, np.nan)
+
+
+def check_run(joints: JointArrays, loads: RunningLoads, closure: Closure,
+              string_limit: float, settings: Settings) -> RunCheck:
+    """Check one run against hoisting, tension, collapse and burst limits."""
+    d = settings.design
+    n = joints.n
+    cap_margin = (string_limit - loads.string_load) / string_limit
+    tension_cap = np.fmin(joints.connection_rating, joints.body_rating)
+    # Where either rating is missing the joint is unrated, never the other.
+    tension_cap = np.where(np.isnan(joints.connection_rating) | np.isnan(joints.body_rating),
+                           np.nan, tension_cap)
+    t_load = d.tension * np.maximum(loads.envelope_max, 0.0)
+    t_util = _ratio(t_load, tension_cap)
+    c_util = _ratio(d.collapse * np.maximum(loads.collapse_max, 0.0), joints.collapse_rating)
+    b_util = _ratio(d.burst * np.maximum(loads.burst_max, 0.0), joints.burst_rating)
+    label = joints.label
+    limits = []
+    k = int(np.argmin(cap_margin))
+    limits.append(Limit("hoisting capacity", f"step {k + 1} ({label[k]} at the floor)",
+                        float(loads.string_load[k]), string_limit, float(cap_margin[k])))
+    for name, util, load, cap in (
+            ("connection tension", t_util, t_load, tension_cap),
+            ("collapse", c_util, d.collapse * loads.collapse_max, joints.collapse_rating),
+            ("burst", b_util, d.burst * loads.burst_max, joints.burst_rating)):
+        if np.any(np.isfinite(util)):
+            j = int(np.nanargmax(util))
+            limits.append(Limit(name, f"joint {j + 1} ({label[j]})", float(load[j]),
+                                float(cap[j]), float(1.0 - util[j])))
+    unrated = []
+    for j in range(n):
+        if np.isnan(tension_cap[j]) and loads.envelope_max[j] > 0:
+            unrated.append(f"tension at the top of joint {j + 1} ({label[j]})")
+        if np.isnan(joints.collapse_rating[j]) and loads.collapse_max[j] > 0:
+            unrated.append(f"collapse of joint {j + 1} ({label[j]})")
+        if np.isnan(joints.burst_rating[j]) and loads.burst_max[j] > 0:
+            unrated.append(f"burst of joint {j + 1} ({label[j]})")
+    ok = all(lim.margin >= -1e-12 for lim in limits)
+    return RunCheck(closure=closure, loads=loads, capacity_margin=cap_margin,
+                    tension_utilization=t_util, collapse_utilization=c_util,
+                    burst_utilization=b_util, limits=tuple(limits),
+                    unrated=tuple(unrated), ok=ok)
+
+
+def _governing(check: RunCheck) -> Limit:
+    return min(check.limits, key=lambda lim: lim.margin)
+
+
+def _float_closures(n: int, planned: Closure, settings: Settings):
+    seen = []
+    cands = [planned] if not planned.is_open else []
+    cands.append(Closure(0, planned.valve_rating))
+    cands += [Closure(m, planned.valve_rating) for m in settings.float_collar_positions]
+    for c in cands:
+        if c.valve_joint is not None and 0 <= c.valve_joint < n and \
+                c.valve_joint not in [s.valve_joint for s in seen]:
+            seen.append(c)
+    return seen
+
+
+def try_float(joints: JointArrays, hole: Hole, closure: Closure, fill_density: float,
+              string_limit: float, settings: Settings) -> FloatOption:
+    """Fill window, schedule and full check for one valve position and fluid.
+
+    The schedule keeps the hook side in its window by construction; the
+    full pressure-area run then checks every connection and joint.  A
+    connection over its limit lowers the allowed fill at the step where it
+    peaks and the schedule is derived again (at most five passes).
+    """
+    d = settings.design
+    limit = string_limit
+    window = fill_window(joints, hole, closure, fill_density, limit,
+                         settings.min_running_weight, d.collapse)
+    schedule = fill_schedule(joints, hole, closure, fill_density, limit,
+                             settings.min_running_weight, d.collapse, window=window)
+    if not schedule.feasible:
+        return FloatOption(closure, fill_density, window, schedule, None, False,
+                           schedule.failure)
+    loads = running_loads(joints, hole, closure, fill_density,
+                          np.nan_to_num(schedule.fill_level, nan=0.0))
+    check = check_run(joints, loads, closure, limit, settings)
+    return FloatOption(closure, fill_density, window, schedule, check, check.ok,
+                       "" if check.ok else
+                       f"{_governing(check).name} over its limit at {_governing(check).where}")
+
+
+def _option_key(opt: FloatOption):
+    if not opt.lands:
+        return (0, 0, -np.inf)
+    return (1, -len(opt.schedule.top_ups), round(min(opt.schedule.least_margin,
+                                                     _governing(opt.check).margin), 4))
+
+
+def plan_landing(joints: JointArrays, hole: Hole, rig: Rig, settings: Settings,
+                 closure: Closure = Closure(), path: str | None = None,
+                 grout: GroutSpec | None = None) -> LandingPlan:
+    """Plan how to land a string with a rig and check every limit.
+
+    Parameters
+    ----------
+    joints : JointArrays  the rated string, joint 1 first
+    hole : Hole           annulus fluid and level
+    rig : Rig             hoisting paths and landing string
+    settings : Settings   fill fluids, design factors, minimum running weight
+    closure : Closure     the float equipment planned (tried first)
+    path : str            hoisting path name (default: the strongest)
+    grout : GroutSpec     annular grout to check after landing
+    """
+    caps = [path_capacity(p) for p in rig.paths]
+    if not caps:
+        raise ValueError(f"rig {rig.name!r} has no hoisting path")
+    if path is None:
+        finite = [c for c in caps if np.isfinite(c.string_limit)]
+        cap = max(finite, key=lambda c: c.string_limit) if finite else caps[0]
+    else:
+        named = [c for c in caps if c.path == path]
+        if not named:
+            raise ValueError(f"rig {rig.name!r} has no path {path!r}; "
+                             f"paths: {', '.join(c.path for c in caps)}")
+        cap = named[0]
+    hoist = [p for p in rig.paths if p.name == cap.path][0]
+    limit = cap.string_limit
+    if not np.isfinite(limit) or limit <= 0:
+        raise ValueError(f"hoisting path {cap.path!r} has no rated capacity left for the "
+                         "string (check its ratings, dead load and overpull reserve)")
+
+    open_loads = running_loads(joints, hole, Closure())
+    open_check = check_run(joints, open_loads, Closure(), limit, settings)
+    switch = switch_point(open_loads.string_load, limit)
+    reasons = []
+    options = []
+    best = None
+    stages = None
+    chosen = open_check
+    verdict = LANDS_OPEN if open_check.ok else None
+    if not open_check.ok:
+        g = _governing(open_check)
+        reasons.append(f"open-ended: {g.name} over its limit at {g.where}")
+        fluids = (settings.fill_density,) + tuple(settings.fill_density_alternatives)
+        for c in _float_closures(joints.n, closure, settings):
+            for rho in fluids:
+                options.append(try_float(joints, hole, c, rho, limit, settings))
+        landing = [o for o in options if o.lands]
+        if landing:
+            best = max(landing, key=_option_key)
+            chosen = best.check
+            verdict = LANDS_FLOATED
+        else:
+            for o in options:
+                reasons.append(f"{_closure_name(o.closure)} with fill "
+                               f"{o.fill_density:.0f} kg/m3: {o.reason}")
+            if options:
+                tried = [o for o in options if o.check is not None]
+                if tried:
+                    chosen = max(tried, key=lambda o: _governing(o.check).margin).check
+            ls = rig.landing_string
+            if ls is None:
+                reasons.append("staged setting: the rig profile has no landing string")
+            else:
+                stages = plan_two_stages(joints, hole, limit, ls.weight_per_length,
+                                         ls.tensile_rating, ls.density,
+                                         settings.design.tension, open_loads)
+                if stages.feasible:
+                    verdict = LANDS_STAGED
+                else:
+                    reasons.append(f"staged setting: {stages.reason}")
+            if verdict is None:
+                verdict = CANNOT_LAND
+    elif not closure.is_open:
+        # The planned float equipment still has to be filled: give its plan.
+        for rho in (settings.fill_density,) + tuple(settings.fill_density_alternatives):
+            options.append(try_float(joints, hole, closure, rho, limit, settings))
+        landing = [o for o in options if o.lands]
+        best = max(landing, key=_option_key) if landing else None
+
+    unrated = tuple(chosen.unrated)
+    if verdict in (LANDS_OPEN, LANDS_FLOATED) and unrated:
+        reasons.append("lands on the rated parts, but some loaded parts are unrated: "
+                       + "; ".join(unrated[:5]) + (" ..." if len(unrated) > 5 else ""))
+        verdict = CANNOT_CONFIRM
+    governing = _governing(chosen)
+    if verdict == LANDS_STAGED and stages is not None:
+        governing = Limit(stages.governing, f"split above joint {stages.split}",
+                          0.0, 0.0, stages.least_margin)
+    fill_final = 0.0
+    if chosen.closure.valve_joint is not None and best is not None:
+        fill_final = float(np.nan_to_num(best.schedule.fill_level[-1], nan=0.0))
+    prof = step_profile(joints, hole, chosen.closure, joints.n,
+                        best.fill_density if best else 0.0, fill_final,
+                        slack_off=settings.set_down_weight)
+    neutral = neutral_point_depth(prof) if settings.set_down_weight > 0 else float("nan")
+    grouting = None
+    if grout is not None:
+        from rigplan.grouting import plan_grout_lifts
+        grouting = plan_grout_lifts(joints, hole, grout, settings.design.collapse)
+    return LandingPlan(
+        verdict=verdict, governing=governing, path=cap, dead_load=hoist.dead_load,
+        joints=joints, hole=hole, settings=settings, open_check=open_check,
+        chosen=chosen, float_options=tuple(options), best_float=best, stages=stages,
+        switch_joint=switch, neutral_point=neutral, grouting=grouting,
+        unrated=unrated, reasons=tuple(reasons),
+    )
+
+
+def _closure_name(c: Closure) -> str:
+    if c.valve_joint is None:
+        return "open shoe"
+    if c.valve_joint == 0:
+        return "float shoe"
+    return f"float collar on joint {c.valve_joint}"
+
+
+closure_name = _closure_name

@@ -1,0 +1,329 @@
+"""Plan results as JSON (SI base units) and as text tables (rich).
+
+Front-end layer: turns a :class:`rigplan.planner.LandingPlan` into the
+``rigplan check`` outputs and the printed job plan.  No physics here: every
+number comes from the planner.
+"""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+
+from rigplan import CAUTION
+from rigplan.planner import LANDS_FLOATED, LANDS_OPEN, LANDS_STAGED, closure_name
+from rigplan import units as U
+
+JSON_UNITS = "SI base units: m, N, Pa, kg/m3, m3; margins and utilizations are fractions"
+
+
+def _f(x):
+    """JSON-safe float: nan/inf -> None."""
+    if x is None:
+        return None
+    x = float(x)
+    return x if math.isfinite(x) else None
+
+
+def next_action(landing) -> str:
+    """The crew's next instruction in words (from the chosen plan)."""
+    if landing.verdict == LANDS_OPEN:
+        return "run open-ended: the hole fluid fills the pipe through the shoe"
+    if landing.verdict == LANDS_STAGED and landing.stages is not None:
+        s = landing.stages
+        return (f"run joints 1-{s.split} on the landing string, release at "
+                f"{s.release_depth:.1f} m, then run the rest")
+    opt = landing.best_float
+    if opt is None:
+        return "no plan lands this string: see the reasons"
+    sch = opt.schedule
+    words = [f"{closure_name(opt.closure)}: fill each joint to the top through joint "
+             f"{sch.fill_to_top_through}, then stop filling"]
+    for t in sch.top_ups:
+        words.append(f"top up {t.volume * 1000:.0f} L at joint {t.joint}")
+    return "; ".join(words)
+
+
+def plan_dict(landing, plan=None, warnings=(), rig_name: str = "") -> dict:
+    """One JSON object for a plan, all values SI (see README, JSON keys)."""
+    j = landing.joints
+    chk = landing.chosen
+    loads = chk.loads
+    n = j.n
+    hook_limit = landing.path.hook_limit
+    hook = loads.string_load + landing.dead_load
+    fill_level = loads.fill_level if not chk.closure.is_open else np.full(n, np.nan)
+    steps = [{
+        "joint": k + 1, "label": j.label[k], "shoe_depth": _f(loads.shoe_depth[k]),
+        "hook_load": _f(hook[k]), "string_load": _f(loads.string_load[k]),
+        "capacity": _f(hook_limit), "margin": _f(chk.capacity_margin[k]),
+        "fill_level": _f(fill_level[k]),
+    } for k in range(n)]
+    shoe = loads.shoe_depth[-1]
+    top_depth = shoe - np.cumsum(j.length)
+    tcap = np.where(np.isnan(j.connection_rating) | np.isnan(j.body_rating), np.nan,
+                    np.fmin(j.connection_rating, j.body_rating))
+    connections = [{
+        "joint": i + 1, "label": j.label[i], "depth": _f(top_depth[i]),
+        "max_true_tension": _f(loads.envelope_max[i]), "step": int(loads.envelope_step[i]),
+        "min_true_force": _f(loads.envelope_min[i]),
+        "capacity": _f(tcap[i]), "connection_rating": _f(j.connection_rating[i]),
+        "body_rating": _f(j.body_rating[i]),
+        "utilization": _f(chk.tension_utilization[i]),
+    } for i in range(n)]
+    joints = [{
+        "joint": i + 1, "label": j.label[i], "kind": j.kind[i],
+        "length": _f(j.length[i]), "od": _f(j.od[i]), "bore": _f(j.bore[i]),
+        "weight": _f(j.weight[i]),
+        "collapse_rating": _f(j.collapse_rating[i]),
+        "collapse_method": j.collapse_method[i] if j.collapse_method else "",
+        "max_collapse_load": _f(loads.collapse_max[i]),
+        "collapse_utilization": _f(chk.collapse_utilization[i]),
+        "burst_rating": _f(j.burst_rating[i]), "max_burst_load": _f(loads.burst_max[i]),
+        "burst_utilization": _f(chk.burst_utilization[i]),
+    } for i in range(n)]
+    gov = landing.governing
+    out = {
+        "verdict": landing.verdict,
+        "lands": landing.lands,
+        "governing": None if gov is None else {
+            "name": gov.name, "where": gov.where, "load": _f(gov.load),
+            "capacity": _f(gov.capacity), "margin": _f(gov.margin)},
+        "units": JSON_UNITS,
+        "plan": None if plan is None else {
+            "name": plan.name, "well": plan.well, "site": plan.site,
+            "hole_fluid_density": _f(plan.hole.fluid_density),
+            "hole_fluid_level": _f(plan.hole.fluid_level), "hole_depth": _f(plan.hole.depth)},
+        "rig": {
+            "name": rig_name, "path": landing.path.path,
+            "string_limit": _f(landing.path.string_limit), "hook_limit": _f(hook_limit),
+            "dead_load": _f(landing.dead_load), "governing_component": landing.path.governing,
+            "components": [{"name": c[0], "kind": c[1], "rating_at_hook": _f(c[2]),
+                            "allowed_string_load": _f(c[3])} for c in landing.path.components],
+            "unrated_components": list(landing.path.unrated)},
+        "closure": closure_name(chk.closure),
+        "switch_joint": landing.switch_joint,
+        "next_action": next_action(landing),
+        "steps": steps,
+        "connections": connections,
+        "joints": joints,
+        "neutral_point": _f(landing.neutral_point),
+        "fill_window": None, "fill_schedule": None, "float_options": [],
+        "stages": None, "grouting": None,
+        "unrated": list(landing.unrated), "reasons": list(landing.reasons),
+        "warnings": list(warnings), "cautions": list(landing.cautions),
+    }
+    opt = landing.best_float
+    if opt is not None:
+        w = opt.window
+        out["fill_window"] = [{
+            "joint": int(w.joint[k]), "min_fill_level": _f(w.min_fill_level[k]),
+            "max_fill_level": _f(w.max_fill_level[k]), "min_volume": _f(w.min_volume[k]),
+            "max_volume": _f(w.max_volume[k]), "closing_limit": w.closing_limit[k],
+            "empty_limit": w.empty_limit[k], "full_limit": w.full_limit[k],
+            "feasible": bool(w.feasible[k])} for k in range(n)]
+        s = opt.schedule
+        out["fill_schedule"] = {
+            "closure": closure_name(opt.closure), "valve_joint": opt.closure.valve_joint,
+            "fill_density": _f(opt.fill_density),
+            "fill_to_top_through": s.fill_to_top_through,
+            "top_ups": [{"joint": t.joint, "volume": _f(t.volume),
+                         "level_after": _f(t.level_after)} for t in s.top_ups],
+            "least_margin": _f(s.least_margin), "least_margin_step": s.least_margin_step,
+            "final_fill_volume": _f(s.added_volume),
+            "steps": [{"joint": k + 1, "fill_level": _f(s.fill_level[k]),
+                       "fill_volume": _f(s.fill_volume[k]),
+                       "hook_load": _f(s.string_load[k] + landing.dead_load),
+                       "capacity_margin": _f(s.capacity_margin[k]),
+                       "collapse_utilization": _f(s.collapse_utilization[k])}
+                      for k in range(n)],
+        }
+    for o in landing.float_options:
+        out["float_options"].append({
+            "closure": closure_name(o.closure), "valve_joint": o.closure.valve_joint,
+            "fill_density": _f(o.fill_density), "lands": o.lands,
+            "top_ups": len(o.schedule.top_ups),
+            "fill_to_top_through": o.schedule.fill_to_top_through,
+            "least_margin": _f(o.schedule.least_margin) if o.schedule.feasible else None,
+            "reason": o.reason})
+    st = landing.stages
+    if st is not None:
+        out["stages"] = {
+            "split": st.split, "release_depth": _f(st.release_depth),
+            "stage1_peak_string_load": _f(st.stage1_peak),
+            "landing_string_peak": _f(st.landing_string_peak),
+            "stage2_peak_string_load": _f(st.stage2_peak),
+            "least_margin": _f(st.least_margin), "governing": st.governing,
+            "feasible": st.feasible, "reason": st.reason}
+    g = landing.grouting
+    if g is not None:
+        out["grouting"] = grouting_dict(g)
+    return out
+
+
+def grouting_dict(g) -> dict:
+    """JSON view of a grouting plan (attributes read defensively)."""
+    d = {}
+    for key in ("full_column_ok", "max_single_lift", "feasible", "reason", "n_lifts"):
+        if hasattr(g, key):
+            v = getattr(g, key)
+            d[key] = _f(v) if isinstance(v, float) else v
+    if hasattr(g, "lifts"):
+        d["lifts"] = [{"base_height": _f(a), "top_height": _f(b)} for a, b in g.lifts]
+    if hasattr(g, "utilization"):
+        d["utilization"] = [_f(u) for u in np.asarray(g.utilization, dtype=float)]
+    if hasattr(g, "warnings"):
+        d["warnings"] = list(g.warnings)
+    if hasattr(g, "unrated"):
+        d["unrated"] = list(g.unrated)
+    return d
+
+
+# ---------------------------------------------------------------------------
+# text
+
+def _pct(x) -> str:
+    if x is None or not np.isfinite(x):
+        return "unrated"
+    return f"{100 * x:.1f} %"
+
+
+def _q(value, kind, system, digits=None, unrated="unrated"):
+    if value is None or (isinstance(value, float) and math.isnan(value)):
+        return unrated
+    return U.format(value, kind, system, digits)
+
+
+def text_renderables(landing, plan=None, system: str = "us", warnings=(), rig_name="",
+                     all_steps: bool = True):
+    """A list of rich renderables for ``rigplan check`` and the printed plan."""
+    from rich.table import Table
+    from rich.text import Text
+    from rich.panel import Panel
+
+    out = []
+    j = landing.joints
+    chk = landing.chosen
+    loads = chk.loads
+    n = j.n
+    colour = "green" if landing.lands else "red"
+    head = Text()
+    if plan is not None:
+        head.append(f"{plan.name}  ({plan.well}{', ' + plan.site if plan.site else ''})\n", "bold")
+    head.append("Verdict: ", "bold")
+    head.append(landing.verdict.upper(), f"bold {colour}")
+    gov = landing.governing
+    if gov is not None:
+        head.append(f"\nGoverning: {gov.name} at {gov.where}, margin {_pct(gov.margin)}")
+    cap = landing.path
+    head.append(f"\nRig: {rig_name}, path '{cap.path}': hook limit "
+                f"{_q(cap.hook_limit, 'force', system, 0)} (string {_q(cap.string_limit, 'force', system, 0)}"
+                f" after {_q(landing.dead_load, 'force', system, 0)} dead load), governed by {cap.governing}")
+    head.append(f"\nNext action: {next_action(landing)}")
+    if landing.switch_joint:
+        head.append(f"\nOpen-ended the string load passes the limit at joint "
+                    f"{landing.switch_joint}: floating must begin before it")
+    if np.isfinite(landing.neutral_point):
+        head.append(f"\nNeutral point when landed with the set-down weight: "
+                    f"{_q(landing.neutral_point, 'length', system, 1)}")
+    out.append(Panel(head, title="rigplan", expand=False))
+
+    for r in landing.reasons:
+        out.append(Text(f"  - {r}"))
+    for w in warnings:
+        out.append(Text(f"  warning: {w}", "yellow"))
+
+    opt = landing.best_float
+    if opt is not None and landing.verdict in (LANDS_FLOATED, LANDS_OPEN, "cannot confirm"):
+        s = opt.schedule
+        t = Table(title=f"Fill plan: {closure_name(opt.closure)}, fill fluid "
+                        f"{_q(opt.fill_density, 'density', system, 2)}")
+        t.add_column("action")
+        t.add_column("joint", justify="right")
+        t.add_column("volume", justify="right")
+        t.add_column("level after", justify="right")
+        t.add_row("fill each joint to the top", f"1-{s.fill_to_top_through}", "", "0")
+        for tu in s.top_ups:
+            t.add_row("top up", str(tu.joint), _q(tu.volume, "volume", system, 0),
+                      _q(tu.level_after, "length", system, 1))
+        t.caption = f"least margin kept {_pct(s.least_margin)} at step {s.least_margin_step}"
+        out.append(t)
+        if len(landing.float_options) > 1:
+            ft = Table(title="Float positions and fill fluids compared")
+            for c in ("equipment", "fill", "lands", "top-ups", "least margin", "why not"):
+                ft.add_column(c)
+            for o in landing.float_options:
+                ft.add_row(closure_name(o.closure), _q(o.fill_density, "density", system, 2),
+                           "yes" if o.lands else "no", str(len(o.schedule.top_ups)),
+                           _pct(o.schedule.least_margin) if o.schedule.feasible else "-",
+                           o.reason)
+            out.append(ft)
+    st = landing.stages
+    if st is not None:
+        t = Table(title="Staged setting (two stages on the landing string)")
+        t.add_column("item")
+        t.add_column("value", justify="right")
+        t.add_row("stage 1", f"joints 1-{st.split}")
+        t.add_row("release depth (top of stage 1)", _q(st.release_depth, "length", system, 1))
+        t.add_row("stage 1 peak string load", _q(st.stage1_peak, "force", system, 0))
+        t.add_row("landing string peak tension", _q(st.landing_string_peak, "force", system, 0))
+        t.add_row("stage 2 peak string load", _q(st.stage2_peak, "force", system, 0))
+        t.add_row("least margin", f"{_pct(st.least_margin)} ({st.governing})")
+        if st.reason:
+            t.add_row("why not", st.reason)
+        out.append(t)
+
+    st_t = Table(title=f"Running steps ({closure_name(chk.closure)})")
+    for c in ("joint", "shoe depth", "fill level", "hook load", "capacity", "margin"):
+        st_t.add_column(c, justify="right")
+    hook = loads.string_load + landing.dead_load
+    rows = range(n) if all_steps or n <= 40 else list(range(10)) + list(range(n - 10, n))
+    for k in rows:
+        fl = "-" if chk.closure.is_open or not np.isfinite(loads.fill_level[k]) else \
+            _q(loads.fill_level[k], "length", system, 1)
+        m = chk.capacity_margin[k]
+        st_t.add_row(f"{k + 1} {j.label[k]}", _q(loads.shoe_depth[k], "length", system, 1), fl,
+                     _q(hook[k], "force", system, 0), _q(cap.hook_limit, "force", system, 0),
+                     Text(_pct(m), "red" if m < 0 else ""))
+    out.append(st_t)
+
+    tu = chk.tension_utilization
+    if np.any(np.isfinite(tu)):
+        i = int(np.nanargmax(tu))
+        out.append(Text(f"Least tension margin: top of joint {i + 1} ({j.label[i]}), "
+                        f"{_q(loads.envelope_max[i], 'force', system, 0)} at step "
+                        f"{loads.envelope_step[i]}, utilization {_pct(tu[i])} "
+                        f"(design factor {landing.settings.design.tension})"))
+    jt = Table(title="Per joint: tension, collapse and burst utilization (design factors applied)")
+    for c in ("joint", "kind", "max tension", "tension", "collapse load", "collapse rating",
+              "collapse", "burst"):
+        jt.add_column(c, justify="right")
+    for i in range(n):
+        jt.add_row(f"{i + 1} {j.label[i]}", j.kind[i],
+                   _q(loads.envelope_max[i], "force", system, 0), _pct(tu[i]),
+                   _q(loads.collapse_max[i], "pressure", system, 0),
+                   _q(j.collapse_rating[i], "pressure", system, 0),
+                   _pct(chk.collapse_utilization[i]) if loads.collapse_max[i] > 0 or
+                   np.isfinite(chk.collapse_utilization[i]) else "unrated",
+                   _pct(chk.burst_utilization[i]))
+    out.append(jt)
+    g = landing.grouting
+    if g is not None:
+        gd = grouting_dict(g)
+        text = Text("Grouting: ")
+        if gd.get("full_column_ok"):
+            text.append("the planned column can be placed in one lift")
+        else:
+            lifts = gd.get("lifts", [])
+            text.append(f"place in {len(lifts)} lifts: " + ", ".join(
+                f"{_q(a['base_height'], 'length', system, 1)} to "
+                f"{_q(a['top_height'], 'length', system, 1)} above the shoe" for a in lifts))
+            if gd.get("reason"):
+                text.append(f" ({gd['reason']})")
+        out.append(text)
+    if landing.unrated:
+        out.append(Text("Unrated (enter the maker's rating): " + "; ".join(landing.unrated[:12]),
+                        "yellow"))
+    out.append(Text(f"CAUTION: {CAUTION}", "bold yellow"))
+    return out

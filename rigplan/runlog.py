@@ -1,0 +1,590 @@
+"""On-site tally log: every joint run, set aside or weighed, never lost.
+
+Formats layer, standard library only.  The log is an append-only table of
+events in a SQLite file beside the plan (:func:`log_path_for`).  Each event
+is committed in its own ``BEGIN IMMEDIATE`` ... ``COMMIT`` transaction in
+write-ahead-log mode with ``synchronous=FULL``, so once a call returns its
+event id the entry survives a killed process or a power cut, and an entry
+whose commit did not finish leaves no trace.
+
+Nothing is ever updated or deleted (triggers in the file refuse it): an undo
+is an event of its own that points at the entry it cancels.  The state of
+the run (what is in the hole, what was set aside, the weight readings) is
+replayed from the events; opening an existing log resumes where it stopped.
+
+Event kinds:
+
+``run``      a joint went in the hole: ``label``, ``value`` = measured length
+             [m] or none, ``note``;
+``reject``   a joint was set aside: ``label``, ``note`` = reason;
+``undo``     cancels the latest run or reject not yet undone: ``ref`` = its
+             id, ``label`` copied from it;
+``observe``  a weight-indicator reading: ``step`` (joints in the hole),
+             ``value`` = hook load [N], ``predicted`` = planned hook load [N].
+"""
+
+from __future__ import annotations
+
+import csv
+import io
+import math
+import numbers
+import os
+import sqlite3
+import threading
+from dataclasses import dataclass, field
+from datetime import datetime, timezone
+from pathlib import Path
+
+from rigplan import __version__
+from rigplan.atomicio import atomic_write_text
+from rigplan.errors import InputError
+
+__all__ = [
+    "SCHEMA_VERSION",
+    "Event",
+    "Observation",
+    "RunLog",
+    "RunLogWriteError",
+    "RunState",
+    "SchemaVersionError",
+    "log_path_for",
+]
+
+#: Schema version written to ``PRAGMA user_version``.
+SCHEMA_VERSION = 1
+
+#: ``PRAGMA application_id`` marking a rigplan run log (ASCII "RGPL").
+APPLICATION_ID = 0x5247504C
+
+#: Suffix of a run-log file.
+LOG_SUFFIX = ".rigrun.sqlite"
+
+#: Columns of the exported tally.
+TALLY_COLUMNS = ("seq", "label", "measured_length_m", "status", "note", "time")
+
+EVENT_KINDS = ("run", "reject", "undo", "observe")
+
+_SCHEMA = """
+CREATE TABLE meta (
+    key   TEXT PRIMARY KEY,
+    value TEXT NOT NULL
+);
+CREATE TABLE events (
+    id        INTEGER PRIMARY KEY AUTOINCREMENT,
+    ts        TEXT NOT NULL,
+    kind      TEXT NOT NULL CHECK (kind IN ('run', 'reject', 'undo', 'observe')),
+    label     TEXT,
+    value     REAL,
+    note      TEXT NOT NULL DEFAULT '',
+    ref       INTEGER REFERENCES events(id),
+    step      INTEGER,
+    predicted REAL,
+    CHECK (kind NOT IN ('run', 'reject') OR (label IS NOT NULL AND label <> '')),
+    CHECK ((kind = 'undo') = (ref IS NOT NULL)),
+    CHECK (kind <> 'observe' OR (step IS NOT NULL AND value IS NOT NULL))
+);
+CREATE UNIQUE INDEX events_undone_once ON events(ref) WHERE kind = 'undo';
+CREATE INDEX events_by_label ON events(label);
+CREATE TRIGGER events_no_update BEFORE UPDATE ON events
+BEGIN SELECT RAISE(ABORT, 'the run log is append-only'); END;
+CREATE TRIGGER events_no_delete BEFORE DELETE ON events
+BEGIN SELECT RAISE(ABORT, 'the run log is append-only'); END;
+CREATE TRIGGER events_undo_target BEFORE INSERT ON events
+WHEN NEW.kind = 'undo'
+ AND (SELECT kind FROM events WHERE id = NEW.ref) IS NOT 'run'
+ AND (SELECT kind FROM events WHERE id = NEW.ref) IS NOT 'reject'
+BEGIN SELECT RAISE(ABORT, 'an undo must point at a run or reject entry'); END;
+"""
+
+_ACTIVE_FOR_LABEL = """
+SELECT e.id, e.kind, e.note FROM events AS e
+WHERE e.label = ? AND e.kind IN ('run', 'reject')
+  AND NOT EXISTS (SELECT 1 FROM events AS u WHERE u.kind = 'undo' AND u.ref = e.id)
+ORDER BY e.id
+"""
+
+_LATEST_UNDOABLE = """
+SELECT e.id, e.label FROM events AS e
+WHERE e.kind IN ('run', 'reject')
+  AND NOT EXISTS (SELECT 1 FROM events AS u WHERE u.kind = 'undo' AND u.ref = e.id)
+ORDER BY e.id DESC LIMIT 1
+"""
+
+_COLUMNS = "id, ts, kind, label, value, note, ref, step, predicted"
+
+
+class SchemaVersionError(InputError):
+    """The log was written by a newer rigplan with a schema this one cannot read."""
+
+
+class RunLogWriteError(OSError):
+    """An entry could not be committed; it was NOT recorded (keep it and retry)."""
+
+
+@dataclass(frozen=True)
+class Event:
+    """One row of the log.
+
+    id : sequence number (increasing, never reused)
+    ts : time recorded, ISO 8601 in UTC
+    kind : 'run', 'reject', 'undo' or 'observe'
+    label : joint label (run, reject; copied from the target for undo)
+    value : measured length [m] (run, or None), hook load [N] (observe)
+    note : free text; the reason for a reject
+    ref : id of the entry an undo cancels
+    step : joints in the hole at a weight reading (observe)
+    predicted : planned hook load [N] at that step (observe, or None)
+    """
+
+    id: int
+    ts: str
+    kind: str
+    label: str | None
+    value: float | None
+    note: str
+    ref: int | None
+    step: int | None = None
+    predicted: float | None = None
+
+
+@dataclass(frozen=True)
+class Observation:
+    """A weight-indicator reading at a running step.
+
+    step : joints in the hole [-] (0 = empty hook)
+    hook_load_n : hook load read [N]
+    predicted_n : planned hook load [N], None when not given
+    """
+
+    id: int
+    ts: str
+    step: int
+    hook_load_n: float
+    predicted_n: float | None
+    note: str = ""
+
+
+@dataclass
+class RunState:
+    """The run as replayed from the log.
+
+    run : joints in the hole in running order, ``(label, measured length [m]
+        or None)``, undone entries left out
+    rejected : label -> reason for joints set aside (not undone)
+    observations : weight readings in the order taken
+    next_index : 0-based running-order index of the next joint (the number of
+        joints in the hole; array index 0 is joint 1)
+    """
+
+    run: list = field(default_factory=list)
+    rejected: dict = field(default_factory=dict)
+    observations: list = field(default_factory=list)
+    next_index: int = 0
+
+
+def log_path_for(plan_path: str | os.PathLike) -> Path:
+    """Run-log file of a plan: ``<plan stem>.rigrun.sqlite`` in its directory.
+
+    >>> log_path_for("plans/well-7.toml").as_posix()
+    'plans/well-7.rigrun.sqlite'
+    """
+    p = Path(plan_path)
+    return p.with_name(p.stem + LOG_SUFFIX)
+
+
+def _utc_now() -> str:
+    return datetime.now(timezone.utc).isoformat(timespec="milliseconds")
+
+
+def _is_real(value) -> bool:
+    return isinstance(value, numbers.Real) and not isinstance(value, bool)
+
+
+def _event(row) -> Event:
+    return Event(*row)
+
+
+def _format_length(value) -> str:
+    return "" if value is None else f"{value:.4f}"
+
+
+class RunLog:
+    """Append-only tally log in a SQLite file; opening an existing log resumes.
+
+    Parameters
+    ----------
+    path : str or path-like
+        The log file (see :func:`log_path_for`); created when missing, its
+        directory must exist.
+
+    Raises
+    ------
+    SchemaVersionError
+        The file was written by a newer rigplan.
+    rigplan.errors.InputError
+        The file cannot be opened or is not a rigplan run log.
+
+    Every method that records returns the new event id once the entry is on
+    disk; if it raises, the entry was not recorded.  A ``RunLog`` may be used
+    from several threads (calls are serialised) and several processes may
+    open the same file.
+    """
+
+    def __init__(self, path: str | os.PathLike):
+        self.path = Path(path)
+        self._lock = threading.RLock()
+        self._conn = None
+        where = str(self.path)
+        if self.path.is_dir():
+            raise InputError(where, "expected a run-log file, found a directory")
+        try:
+            conn = sqlite3.connect(where, isolation_level=None, timeout=10.0,
+                                   check_same_thread=False)
+        except sqlite3.Error as exc:
+            raise InputError(where, f"cannot open the run log ({exc})") from exc
+        try:
+            self._open(conn)
+        except sqlite3.DatabaseError as exc:
+            conn.close()
+            raise InputError(where, f"expected a rigplan run log (SQLite file), "
+                                    f"cannot read it ({exc})") from exc
+        except BaseException:
+            conn.close()
+            raise
+        self._conn = conn
+
+    @classmethod
+    def for_plan(cls, plan_path: str | os.PathLike) -> "RunLog":
+        """Open (or start) the log that belongs to a plan file."""
+        return cls(log_path_for(plan_path))
+
+    # -- opening -----------------------------------------------------------
+
+    def _open(self, conn: sqlite3.Connection) -> None:
+        where = str(self.path)
+        conn.execute("PRAGMA synchronous=FULL")
+        conn.execute("PRAGMA foreign_keys=ON")
+        version, app_id, n_tables = self._header(conn)
+        self._check_header(version, app_id, n_tables)
+        mode = conn.execute("PRAGMA journal_mode=WAL").fetchone()[0]
+        if str(mode).lower() != "wal":
+            raise InputError(where, f"cannot use write-ahead logging for the run log "
+                                    f"(journal mode {mode!r}); keep the plan on a local disk")
+        if version == 0:
+            conn.execute("BEGIN IMMEDIATE")
+            try:
+                version, app_id, n_tables = self._header(conn)  # another process may have won
+                self._check_header(version, app_id, n_tables)
+                if version == 0:
+                    # one by one: executescript() would COMMIT first
+                    for statement in _split_sql(_SCHEMA):
+                        conn.execute(statement)
+                    conn.execute("INSERT INTO meta (key, value) VALUES ('created', ?)", (_utc_now(),))
+                    conn.execute("INSERT INTO meta (key, value) VALUES ('created_by', ?)",
+                                 (f"rigplan {__version__}",))
+                    conn.execute(f"PRAGMA application_id={APPLICATION_ID}")
+                    conn.execute(f"PRAGMA user_version={SCHEMA_VERSION}")
+                conn.execute("COMMIT")
+            except BaseException:
+                if conn.in_transaction:
+                    conn.execute("ROLLBACK")
+                raise
+
+    @staticmethod
+    def _header(conn):
+        version = conn.execute("PRAGMA user_version").fetchone()[0]
+        app_id = conn.execute("PRAGMA application_id").fetchone()[0]
+        n_tables = conn.execute("SELECT count(*) FROM sqlite_master").fetchone()[0]
+        return version, app_id, n_tables
+
+    def _check_header(self, version, app_id, n_tables) -> None:
+        where = str(self.path)
+        if version > SCHEMA_VERSION:
+            raise SchemaVersionError(
+                where, f"run log has schema version {version}, this rigplan "
+                       f"{__version__} reads up to version {SCHEMA_VERSION}: "
+                       f"open it with a newer rigplan (the file was not changed)")
+        if version == 0 and n_tables == 0 and app_id in (0, APPLICATION_ID):
+            return  # new, empty file
+        if app_id != APPLICATION_ID or version < 1:
+            raise InputError(where, "expected a rigplan run log, found another SQLite "
+                                    "database (the file was not changed)")
+
+    # -- writing -----------------------------------------------------------
+
+    def _connection(self) -> sqlite3.Connection:
+        if self._conn is None:
+            raise RuntimeError(f"{self.path}: the run log is closed")
+        return self._conn
+
+    def _append(self, kind, label=None, value=None, note="", ref=None, step=None,
+                predicted=None, check=None) -> int:
+        """Commit one event in its own immediate transaction; return its id."""
+        with self._lock:
+            conn = self._connection()
+            try:
+                conn.execute("BEGIN IMMEDIATE")
+                try:
+                    if check is not None:
+                        extra = check(conn)
+                        if extra is not None:  # undo: the checker resolves target
+                            ref, label = extra
+                    cur = conn.execute(
+                        "INSERT INTO events (ts, kind, label, value, note, ref, step, predicted)"
+                        " VALUES (?, ?, ?, ?, ?, ?, ?, ?)",
+                        (_utc_now(), kind, label, value, note, ref, step, predicted))
+                    event_id = cur.lastrowid
+                    conn.execute("COMMIT")
+                except BaseException:
+                    if conn.in_transaction:
+                        conn.execute("ROLLBACK")
+                    raise
+            except sqlite3.Error as exc:
+                raise RunLogWriteError(
+                    f"{self.path}: could not save the {kind} entry"
+                    f"{f' for {label!r}' if label else ''} ({exc}); it was NOT recorded") from exc
+            return event_id
+
+    def _where(self, what: str) -> str:
+        return f"{self.path}: {what}"
+
+    def _check_label(self, label, what: str) -> str:
+        if not isinstance(label, str) or not label.strip():
+            raise InputError(self._where(what), f"expected a joint label (text), got {label!r}")
+        return label.strip()
+
+    @staticmethod
+    def _check_note(where: str, note) -> str:
+        if not isinstance(note, str):
+            raise InputError(where, f"expected the note as text, got {type(note).__name__}")
+        return note
+
+    def record_run(self, label: str, measured_length_m: float | None, note: str = "") -> int:
+        """Record that joint ``label`` went in the hole; return the event id.
+
+        Parameters
+        ----------
+        label : str
+            Joint label (surrounding blanks are dropped).
+        measured_length_m : float or None
+            Tally length measured on site [m], > 0; None when not measured.
+        note : str
+            Free text kept with the entry.
+
+        Raises
+        ------
+        rigplan.errors.InputError
+            Bad value, or the joint is already in the hole or set aside
+            (undo that entry first).
+        RunLogWriteError
+            The entry could not be saved.
+        """
+        label = self._check_label(label, "run label")
+        where = self._where(f"run {label!r}")
+        if measured_length_m is not None:
+            if not _is_real(measured_length_m) or not math.isfinite(measured_length_m) \
+                    or measured_length_m <= 0.0:
+                raise InputError(f"{where}.measured_length_m",
+                                 f"expected a measured length > 0 m or none, got {measured_length_m!r}")
+            measured_length_m = float(measured_length_m)
+        note = self._check_note(f"{where}.note", note)
+
+        def check(conn):
+            for eid, kind, reason in conn.execute(_ACTIVE_FOR_LABEL, (label,)):
+                if kind == "run":
+                    raise InputError(where, f"joint {label!r} is already in the hole "
+                                            f"(entry {eid}); undo that entry first")
+                raise InputError(where, f"joint {label!r} was set aside (entry {eid}: "
+                                        f"{reason!r}); undo the rejection first")
+
+        return self._append("run", label=label, value=measured_length_m, note=note, check=check)
+
+    def reject(self, label: str, reason: str) -> int:
+        """Record that joint ``label`` was set aside, with the reason; return the id."""
+        label = self._check_label(label, "reject label")
+        where = self._where(f"reject {label!r}")
+        reason = self._check_note(f"{where}.reason", reason)
+
+        def check(conn):
+            for eid, kind, _ in conn.execute(_ACTIVE_FOR_LABEL, (label,)):
+                if kind == "run":
+                    raise InputError(where, f"joint {label!r} is in the hole (entry {eid}); "
+                                            f"undo the run first")
+                raise InputError(where, f"joint {label!r} is already set aside (entry {eid})")
+
+        return self._append("reject", label=label, note=reason, check=check)
+
+    def undo(self, note: str = "") -> int | None:
+        """Cancel the latest run or reject entry not yet undone.
+
+        Appends an ``undo`` event pointing at it (nothing is deleted) and
+        returns the undo's id; returns None when there is nothing to undo.
+        Repeated calls walk further back.  Weight readings are not undone.
+        """
+        note = self._check_note(self._where("undo.note"), note)
+
+        def check(conn):
+            row = conn.execute(_LATEST_UNDOABLE).fetchone()
+            if row is None:
+                raise _NothingToUndo  # rolls the empty transaction back
+            return row  # (ref, label) of the entry to cancel
+
+        try:
+            return self._append("undo", note=note, check=check)
+        except _NothingToUndo:
+            return None
+
+    def observe(self, step: int, hook_load_n: float, predicted_n: float | None = None,
+                note: str = "") -> int:
+        """Record a weight-indicator reading; return the event id.
+
+        Parameters
+        ----------
+        step : int
+            Joints in the hole when read [-], >= 0 (0 = empty hook).
+        hook_load_n : float
+            Hook load read [N].
+        predicted_n : float or None
+            Planned hook load at that step [N].
+        note : str
+            Free text.
+        """
+        where = self._where(f"observe step {step!r}")
+        if not isinstance(step, numbers.Integral) or isinstance(step, bool) or step < 0:
+            raise InputError(where, f"expected the step as a whole number of joints >= 0, got {step!r}")
+        if not _is_real(hook_load_n) or not math.isfinite(hook_load_n):
+            raise InputError(f"{where}.hook_load_n", f"expected a hook load in N, got {hook_load_n!r}")
+        if predicted_n is not None:
+            if not _is_real(predicted_n) or not math.isfinite(predicted_n):
+                raise InputError(f"{where}.predicted_n",
+                                 f"expected a predicted hook load in N or none, got {predicted_n!r}")
+            predicted_n = float(predicted_n)
+        note = self._check_note(f"{where}.note", note)
+        return self._append("observe", value=float(hook_load_n), note=note, step=int(step),
+                            predicted=predicted_n)
+
+    # -- reading -----------------------------------------------------------
+
+    def events(self) -> list:
+        """Every event in the order recorded."""
+        with self._lock:
+            rows = self._connection().execute(
+                f"SELECT {_COLUMNS} FROM events ORDER BY id").fetchall()
+        return [_event(r) for r in rows]
+
+    def state(self) -> RunState:
+        """Replay the log into the present state of the run."""
+        return _replay(self.events())
+
+    def export_tally_csv(self, path_or_file, planned=None) -> None:
+        """Write the tally as CSV (RFC 4180, CRLF line ends).
+
+        Columns: ``seq`` (running order, 1 = first joint in the hole),
+        ``label``, ``measured_length_m`` [m, 4 decimals; blank when not
+        measured], ``status`` (``run``, ``rejected`` or ``not run``),
+        ``note`` (the reason for a rejection), ``time`` (UTC, ISO 8601).
+        Joints in the hole come first in running order, then those set aside,
+        then, when ``planned`` is given, the planned joints not yet run, with
+        ``planned <length> m`` as note.
+
+        Parameters
+        ----------
+        path_or_file : str, path-like or text file
+            A path is written atomically (temporary file, fsync, rename,
+            directory fsync); an open text file (opened with ``newline=""``)
+            is written as is.
+        planned : mapping, optional
+            Planned joints in running order, label -> planned length [m] (or
+            None).
+        """
+        events = self.events()
+        undone = {e.ref for e in events if e.kind == "undo"}
+        done_labels = set()
+        buf = io.StringIO()
+        writer = csv.writer(buf, lineterminator="\r\n")
+        writer.writerow(TALLY_COLUMNS)
+        seq = 0
+        for e in events:
+            if e.kind == "run" and e.id not in undone:
+                seq += 1
+                done_labels.add(e.label)
+                writer.writerow([seq, e.label, _format_length(e.value), "run", e.note, e.ts])
+        for e in events:
+            if e.kind == "reject" and e.id not in undone:
+                done_labels.add(e.label)
+                writer.writerow(["", e.label, "", "rejected", e.note, e.ts])
+        if planned is not None:
+            try:
+                items = list(planned.items())
+            except AttributeError:
+                raise InputError("planned", "expected a mapping of label -> planned length m") from None
+            for label, length in items:
+                if length is not None and (not _is_real(length) or not math.isfinite(length)
+                                           or length <= 0):
+                    raise InputError(f"planned[{label!r}]",
+                                     f"expected a planned length > 0 m or none, got {length!r}")
+                label = str(label).strip()
+                if label in done_labels:
+                    continue
+                note = "" if length is None else f"planned {length:.4f} m"
+                writer.writerow(["", label, "", "not run", note, ""])
+        text = buf.getvalue()
+        if hasattr(path_or_file, "write"):
+            path_or_file.write(text)
+            if hasattr(path_or_file, "flush"):
+                path_or_file.flush()
+        else:
+            atomic_write_text(path_or_file, text)
+
+    # -- life cycle ----------------------------------------------------------
+
+    def close(self) -> None:
+        """Close the file (everything recorded is already on disk)."""
+        with self._lock:
+            if self._conn is not None:
+                self._conn.close()
+                self._conn = None
+
+    def __enter__(self) -> "RunLog":
+        return self
+
+    def __exit__(self, *exc) -> None:
+        self.close()
+
+    def __repr__(self) -> str:
+        return f"RunLog({str(self.path)!r})"
+
+
+class _NothingToUndo(Exception):
+    """Internal: raised inside the undo transaction to roll it back."""
+
+
+def _split_sql(script: str) -> list:
+    """Split the schema script into statements (triggers kept whole)."""
+    statements, current = [], []
+    for line in script.strip().splitlines():
+        current.append(line)
+        text = "\n".join(current)
+        if sqlite3.complete_statement(text):
+            statements.append(text.strip())
+            current = []
+    if current and "".join(current).strip():
+        raise ValueError("incomplete statement in the run-log schema")
+    return statements
+
+
+def _replay(events) -> RunState:
+    undone = {e.ref for e in events if e.kind == "undo"}
+    state = RunState()
+    for e in events:
+        if e.kind == "run" and e.id not in undone:
+            state.run.append((e.label, e.value))
+        elif e.kind == "reject" and e.id not in undone:
+            state.rejected[e.label] = e.note
+        elif e.kind == "observe":
+            state.observations.append(Observation(
+                id=e.id, ts=e.ts, step=e.step, hook_load_n=e.value,
+                predicted_n=e.predicted, note=e.note))
+    state.next_index = len(state.run)
+    return state

@@ -1,0 +1,18 @@
+"""Unit conversion constants for the tests (SI per unit).
+
+Exact definitions from NIST SP 811 (2008), Appendix B: the inch is 0.0254 m,
+the pound (avoirdupois) 0.45359237 kg, the pound-force the pound times
+standard gravity 9.80665 m/s^2; psi is one pound-force per square inch.
+"""
+
+inch = 0.0254                      # m
+ft = 0.3048                        # m
+mm = 0.001                         # m
+lb = 0.45359237                    # kg
+g_n = 9.80665                      # m/s^2, standard gravity
+lbf = 4.4482216152605              # N
+psi = 6894.757293168361            # Pa
+ksi = 1000.0 * psi                 # Pa
+lb_per_ft = lb / ft                # kg/m (mass per length)
+lb_per_in3 = lb / inch**3          # kg/m^3
+psi_per_ft = psi / ft              # Pa/m

@@ -1,0 +1,441 @@
+"""Tests for rigplan.hoisting.
+
+Published check values come from:
+
+* Bourgoyne, Millheim, Chenevert and Young, *Applied Drilling Engineering*,
+  SPE Textbook Series vol. 2, 1986 ("ADE"), ch. 1: the block-efficiency
+  formula, Table 1.2 and Example 1.2;
+* API RP 9B worked example (10 lines, 400,000 lb on the hook), figures as
+  quoted in the project's hoisting reference notes.
+
+Path-capacity tests use hand arithmetic written out beside each check; the
+deduction rules (dead load off hook components only, overpull reserve,
+dynamic allowance) are common practice, no source.
+"""
+
+import math
+
+import numpy as np
+import pytest
+from numpy.testing import assert_allclose
+
+from rigplan.errors import InputError
+from rigplan.hoisting import (
+    Component,
+    HoistPath,
+    LandingString,
+    PathCapacity,
+    Rig,
+    best_path,
+    block_efficiency,
+    derrick_efficiency_factor,
+    derrick_load,
+    equivalent_derrick_load,
+    fast_line_load,
+    path_capacity,
+    rig_capacity,
+)
+
+#: One pound-force in newtons: 0.45359237 kg x 9.80665 m/s^2 (international
+#: pound, 1959, and standard gravity; NIST SP 811, appendix B).
+LBF = 0.45359237 * 9.80665
+
+
+# ---------------------------------------------------------------------------
+# block efficiency
+
+
+# ADE ch. 1, E = (K^n - 1)/(n K^n (K - 1)) with K = 1.04: 0.874, 0.842, 0.811,
+# 0.782 for 6, 8, 10, 12 lines (formula values, three decimals).
+ADE_FORMULA_EFFICIENCY_K104 = [(6, 0.874), (8, 0.842), (10, 0.811), (12, 0.782)]
+
+
+@pytest.mark.parametrize("lines, expected", ADE_FORMULA_EFFICIENCY_K104)
+def test_block_efficiency_ade_formula_values(lines, expected):
+    # Source: ADE ch. 1 formula values, roller bearings K = 1.04; the
+    # published figures are rounded to three decimals, hence atol 5e-4.
+    assert_allclose(block_efficiency(lines, 1.04), expected, rtol=0, atol=5e-4)
+
+
+def test_block_efficiency_default_is_roller_bearing_k():
+    # ADE ch. 1 / API RP 9B: K = 1.04 for roller-bearing sheaves; 8 lines -> 0.842.
+    assert_allclose(block_efficiency(8), 0.842, rtol=0, atol=5e-4)
+
+
+def test_block_efficiency_vectorised_matches_ade_formula_table():
+    # Same ADE ch. 1 formula values, evaluated as one array.
+    lines = np.array([n for n, _ in ADE_FORMULA_EFFICIENCY_K104])
+    expected = np.array([e for _, e in ADE_FORMULA_EFFICIENCY_K104])
+    assert_allclose(block_efficiency(lines), expected, rtol=0, atol=5e-4)
+
+
+def test_block_efficiency_ade_table_differs_for_many_lines():
+    # ADE Table 1.2 lists 0.770 for 12 lines on roller bearings; the formula
+    # (which this module follows) gives 0.782.  The table is the lower value by
+    # about 0.012: this check pins which source the module follows.
+    e12 = block_efficiency(12, 1.04)
+    assert_allclose(e12, 0.782, rtol=0, atol=5e-4)
+    assert abs(e12 - 0.770) > 0.01
+
+
+def test_block_efficiency_single_line_and_frictionless_limit():
+    # Geometric-series form of the ADE ch. 1 formula: E_n = (1/n) sum K^-i.
+    # One line over one sheave: E_1 = 1/K = 1/1.04 = 0.961538...
+    assert_allclose(block_efficiency(1, 1.04), 1 / 1.04, rtol=1e-12)
+    # Frictionless sheaves: every line carries the fast-line pull, E = 1
+    # (limit K -> 1 of the formula); continuity just above K = 1.
+    assert block_efficiency(6, 1.0) == 1.0
+    assert_allclose(block_efficiency(6, 1.0 + 1e-10), 1.0, rtol=1e-9)
+
+
+def test_block_efficiency_two_lines_hand_arithmetic():
+    # Two lines, K = 1.04: lines carry F/1.04 and F/1.04^2, so
+    # E = (1/1.04 + 1/1.0816) / 2 = (0.9615385 + 0.9245562) / 2 = 0.9430473
+    # (ADE ch. 1 derivation of the formula).
+    assert_allclose(block_efficiency(2, 1.04), 0.9430473, rtol=1e-6)
+
+
+@pytest.mark.parametrize("bad", [0, -3, 2.5, True, float("nan"), "8"])
+def test_block_efficiency_rejects_bad_line_count(bad):
+    with pytest.raises(InputError, match="lines"):
+        block_efficiency(bad)
+
+
+@pytest.mark.parametrize("bad", [0.99, 0.0, float("nan"), float("inf")])
+def test_block_efficiency_rejects_bad_sheave_factor(bad):
+    with pytest.raises(InputError, match="sheave factor"):
+        block_efficiency(8, bad)
+
+
+def test_input_error_is_a_value_error():
+    with pytest.raises(ValueError):
+        block_efficiency(0)
+
+
+# ---------------------------------------------------------------------------
+# fast line, derrick loads
+
+
+def test_fast_line_api_rp9b_example():
+    # API RP 9B worked example: 10 lines, K = 1.04, 400,000 lb on the hook:
+    # fast-line factor 1/(n E) = 0.123 and fast-line load about 49,200 lb
+    # (= 400,000 x 0.123, the factor rounded to three decimals).
+    e10 = block_efficiency(10, 1.04)
+    assert_allclose(1.0 / (10 * e10), 0.123, rtol=0, atol=5e-4)
+    f = fast_line_load(400_000.0 * LBF, 10, 1.04)
+    # the example's rounded factor makes its 49,200 lb about 0.24 % low
+    assert_allclose(f / LBF, 49_200.0, rtol=3e-3)
+
+
+def test_fast_line_ade_example_1_2_with_table_efficiency():
+    # ADE Example 1.2: 300,000 lbf hook load, 8 lines, E = 0.841 (Table 1.2)
+    # -> fast-line tension 300,000 / (8 x 0.841) = 44,590 lbf.
+    f = fast_line_load(300_000.0 * LBF, 8, efficiency=0.841)
+    assert_allclose(f / LBF, 44_590.0, rtol=0, atol=1.0)
+
+
+def test_fast_line_ade_example_1_2_with_formula_efficiency():
+    # ADE Example 1.2 loads with the formula E_8 = 0.842 (ADE ch. 1) instead
+    # of the table's 0.841: 300,000 / (8 x 0.842) = 44,537 lbf; the two
+    # sources agree to 0.1 %.
+    f = fast_line_load(300_000.0 * LBF, 8)
+    assert_allclose(f / LBF, 44_590.0, rtol=1.5e-3)
+    # 0.842 is rounded to 5e-4 of 0.84, i.e. 6e-4 relative
+    assert_allclose(f / LBF, 300_000.0 / (8 * 0.842), rtol=6e-4)
+
+
+def test_fast_line_load_array_is_linear_in_hook_load():
+    # F_f = W/(nE) (ADE ch. 1): twice the hook load, twice the fast line.
+    f = fast_line_load(np.array([100e3, 200e3]), 6)
+    assert_allclose(f[1], 2 * f[0], rtol=1e-12)
+    # 100 kN / (6 x 0.874) = 19,069 N with ADE's formula value for 6 lines
+    assert_allclose(f[0], 100e3 / (6 * 0.874), rtol=6e-4)
+
+
+def test_derrick_load_ade_example_1_2():
+    # ADE Example 1.2: F_d = W (1 + E + E n) / (E n), W = 300,000 lbf, n = 8,
+    # E = 0.841: 300,000 x (1 + 0.841 + 6.728) / 6.728
+    #          = 300,000 x 8.569 / 6.728 = 382,090 lbf
+    # (382,090 lbf is also the example's printed answer, from memory).
+    hand = 300_000.0 * (1 + 0.841 + 0.841 * 8) / (0.841 * 8)
+    assert_allclose(hand, 382_090.0, atol=1.0)
+    f = derrick_load(300_000.0 * LBF, 8, 0.841)
+    assert_allclose(f / LBF, 382_090.0, rtol=0, atol=1.0)
+
+
+def test_equivalent_derrick_load_ade_example_1_2():
+    # ADE Example 1.2: F_de = W (n + 4)/n = 300,000 x 12 / 8 = 450,000 lbf.
+    f = equivalent_derrick_load(300_000.0 * LBF, 8)
+    assert_allclose(f / LBF, 450_000.0, rtol=1e-12)
+
+
+def test_derrick_efficiency_factor_ade_example_1_2():
+    # ADE Example 1.2: E_d = F_d / F_de = 382,090 / 450,000 = 0.849
+    # (the example's printed value, from memory).
+    assert_allclose(derrick_efficiency_factor(8, 0.841), 382_090.0 / 450_000.0, rtol=1e-5)
+    assert_allclose(derrick_efficiency_factor(8, 0.841), 0.849, atol=5e-4)
+
+
+@pytest.mark.parametrize("bad", [0.0, 1.2, -0.5, float("nan")])
+def test_derrick_load_rejects_bad_efficiency(bad):
+    with pytest.raises(InputError, match="efficiency"):
+        derrick_load(1e5, 8, bad)
+
+
+def test_loads_reject_negative_or_nan_hook_load():
+    with pytest.raises(InputError, match="hook load"):
+        fast_line_load(-1.0, 8)
+    with pytest.raises(InputError, match="hook load"):
+        equivalent_derrick_load(float("nan"), 8)
+
+
+# ---------------------------------------------------------------------------
+# path capacity (hand arithmetic; deductions are common practice, no source)
+
+
+def _main_path(**kw):
+    # Frictionless sheaves (K = 1, so E = 1 exactly) keep the arithmetic in
+    # the comments exact.  Winch 40 kN x 4 lines = 160 kN at the hook; rope
+    # 180 kN / 3 = 60 kN x 4 = 240 kN; mast 150 kN; top head unrated.
+    args = dict(
+        name="main winch, 4 lines", lines=4, sheave_factor=1.0,
+        winch_line_pull=40e3, rope_breaking_force=180e3, rope_design_factor=3.0,
+        mast_rating=150e3, tools=(("casing elevator", "elevator", 120e3),),
+        dead_load=10e3, overpull_reserve=20e3,
+    )
+    args.update(kw)
+    return HoistPath(**args)
+
+
+def test_path_capacity_handling_tool_governs():
+    # Allowed string loads (kN):
+    #   winch    160 - 20 - 10 = 130
+    #   rope     240 - 20 - 10 = 210
+    #   mast     150 - 20 - 10 = 120
+    #   elevator 120 - 20      = 100   (holds the string only: no dead load)
+    # -> elevator governs, string 100 kN, hook 100 + 10 = 110 kN.
+    cap = path_capacity(_main_path())
+    assert isinstance(cap, PathCapacity)
+    assert cap.path == "main winch, 4 lines"
+    assert cap.governing == "casing elevator"
+    assert_allclose(cap.string_limit, 100e3, rtol=1e-12)
+    assert_allclose(cap.hook_limit, 110e3, rtol=1e-12)
+    assert cap.unrated == ("top head pull-up",)
+    names = [c[0] for c in cap.components]
+    assert names == ["winch line pull", "wire rope", "mast", "casing elevator"]
+    ratings = {c[0]: c[2] for c in cap.components}
+    allowed = {c[0]: c[3] for c in cap.components}
+    assert_allclose([ratings[k] for k in names], [160e3, 240e3, 150e3, 120e3], rtol=1e-12)
+    assert_allclose([allowed[k] for k in names], [130e3, 210e3, 120e3, 100e3], rtol=1e-12)
+
+
+def test_path_capacity_mast_governs_with_stronger_elevator():
+    # Elevator 200 kN -> 200 - 20 = 180; mast 120 now the least -> mast,
+    # string 120 kN, hook 130 kN.
+    cap = path_capacity(_main_path(tools=(("casing elevator", "elevator", 200e3),)))
+    assert cap.governing == "mast"
+    assert_allclose(cap.string_limit, 120e3, rtol=1e-12)
+    assert_allclose(cap.hook_limit, 130e3, rtol=1e-12)
+
+
+def test_path_capacity_dynamic_factor_divides_ratings():
+    # dynamic factor 1.25 (kN):
+    #   winch 160/1.25 = 128 - 30 = 98;  rope 240/1.25 = 192 - 30 = 162
+    #   mast  150/1.25 = 120 - 30 = 90;  elevator 120/1.25 = 96 - 20 = 76
+    cap = path_capacity(_main_path(dynamic_factor=1.25))
+    assert cap.governing == "casing elevator"
+    assert_allclose(cap.string_limit, 76e3, rtol=1e-12)
+    allowed = {c[0]: c[3] for c in cap.components}
+    assert_allclose(allowed["winch line pull"], 98e3, rtol=1e-12)
+    assert_allclose(allowed["mast"], 90e3, rtol=1e-12)
+
+
+def test_dead_load_makes_stronger_hook_part_govern_over_weaker_tool():
+    # Elevator 100 kN (string only) vs mast 110 kN carrying 15 kN of gear:
+    # mast allows 110 - 15 = 95 kN of string < elevator's 100 kN.
+    p = HoistPath("hoist", lines=1, sheave_factor=1.0, mast_rating=110e3,
+                  tools=(("elevator", "elevator", 100e3),), dead_load=15e3)
+    cap = path_capacity(p)
+    assert cap.governing == "mast"
+    assert_allclose(cap.string_limit, 95e3, rtol=1e-12)
+    assert_allclose(cap.hook_limit, 110e3, rtol=1e-12)
+    assert set(cap.unrated) == {"winch line pull", "wire rope", "top head pull-up"}
+
+
+def test_other_tool_kind_carries_dead_load():
+    # A hook rated 100 kN ("other") carries the gear above the string too:
+    # 100 - 15 = 85 kN of string.
+    p = HoistPath("hoist", mast_rating=500e3, tools=(("hook", "other", 100e3),),
+                  dead_load=15e3)
+    cap = path_capacity(p)
+    assert cap.governing == "hook"
+    assert_allclose(cap.string_limit, 85e3, rtol=1e-12)
+
+
+def test_winch_on_lines_uses_ade_efficiency():
+    # 50 kN line pull on 8 lines, K = 1.04: 50 x 8 x 0.842 = 336.8 kN at the
+    # hook (ADE ch. 1 formula efficiency for 8 lines, three decimals).
+    p = HoistPath("main", lines=8, winch_line_pull=50e3)
+    cap = path_capacity(p)
+    assert cap.governing == "winch line pull"
+    assert_allclose(cap.hook_limit, 50e3 * 8 * 0.842, rtol=6e-4)
+
+
+def test_rope_design_factor_applies_to_breaking_force():
+    # Rope MBF 300 kN, DF 3 -> 100 kN working pull; single line over one
+    # sheave E_1 = 1/1.04 (ADE formula, n = 1): 100 / 1.04 = 96.15 kN.
+    p = HoistPath("aux", lines=1, rope_breaking_force=300e3, rope_design_factor=3.0)
+    cap = path_capacity(p)
+    assert cap.governing == "wire rope"
+    assert_allclose(cap.string_limit, 100e3 / 1.04, rtol=1e-12)
+
+
+def test_top_head_pullup_as_given():
+    # Top-head pull-up 90 kN, top head (8 kN) rides on the string: 90 - 8 = 82.
+    p = HoistPath("top head", top_head_pullup=90e3, dead_load=8e3)
+    cap = path_capacity(p)
+    assert cap.governing == "top head pull-up"
+    assert_allclose(cap.string_limit, 82e3, rtol=1e-12)
+
+
+def test_nothing_rated_gives_nan_and_lists_all_unrated():
+    cap = path_capacity(HoistPath("bare", tools=(("clamp", "clamp", float("nan")),)))
+    assert math.isnan(cap.string_limit) and math.isnan(cap.hook_limit)
+    assert cap.governing == ""
+    assert cap.components == ()
+    assert cap.unrated == ("winch line pull", "wire rope", "mast", "top head pull-up", "clamp")
+
+
+def test_limit_can_go_negative_when_gear_exceeds_rating():
+    # Mast 10 kN with 12 kN of gear: 10 - 12 = -2 kN of string: nothing can be hung.
+    cap = path_capacity(HoistPath("weak", mast_rating=10e3, dead_load=12e3))
+    assert_allclose(cap.string_limit, -2e3, rtol=1e-12)
+
+
+def test_components_list_and_kinds():
+    comps = _main_path().components()
+    assert all(isinstance(c, Component) for c in comps)
+    kinds = [c.kind for c in comps]
+    assert kinds == ["winch", "wire_rope", "mast", "top_head", "elevator"]
+    assert [c.carries_dead_load for c in comps] == [True, True, True, True, False]
+
+
+@pytest.mark.parametrize("field, bad, match", [
+    ("lines", 0, "lines"),
+    ("lines", 2.5, "whole number"),
+    ("lines", True, "whole number"),
+    ("sheave_factor", 0.98, "sheave factor"),
+    ("rope_design_factor", 0.0, "design factor"),
+    ("rope_design_factor", -1.0, "design factor"),
+    ("dynamic_factor", 0.9, "dynamic factor"),
+    ("winch_line_pull", -5.0, "winch line pull"),
+    ("winch_line_pull", 0.0, "> 0 N"),
+    ("mast_rating", float("inf"), "finite"),
+    ("dead_load", -1.0, "dead load"),
+    ("dead_load", float("nan"), "dead load"),
+    ("overpull_reserve", -1.0, "overpull"),
+    ("tools", (("e", "elevator", -1.0),), "tool rating"),
+    ("tools", (("e", "hammer", 1.0),), "kind"),
+    ("tools", (("e", "winch", 1.0),), "kind"),
+    ("tools", (("e", "elevator"),), "name, kind, rating"),
+    ("tools", (("mast", "clamp", 1.0),), "used twice"),
+    ("tools", (("a", "clamp", 1.0), ("a", "spider", 2.0)), "used twice"),
+])
+def test_hoist_path_validation(field, bad, match):
+    with pytest.raises(InputError, match=match) as err:
+        HoistPath("p1", **{field: bad})
+    # the message names the path and the key
+    assert "p1" in str(err.value)
+    assert field in str(err.value)
+
+
+def test_hoist_path_accepts_whole_float_lines_and_stores_int():
+    p = HoistPath("p", lines=4.0)
+    assert p.lines == 4 and isinstance(p.lines, int)
+
+
+def test_component_validation():
+    with pytest.raises(InputError, match="kind"):
+        Component("x", "crane", 1e3, True)
+    with pytest.raises(InputError, match="rating"):
+        Component("x", "mast", -1e3, True)
+
+
+# ---------------------------------------------------------------------------
+# rig
+
+
+def _rig():
+    return Rig(
+        name="demo rig",
+        paths=(
+            _main_path(),                                     # 100 kN (see above)
+            HoistPath("top head", top_head_pullup=90e3, dead_load=8e3),  # 82 kN
+            HoistPath("unrated aux"),                         # nan
+        ),
+        landing_string=LandingString("demo landing pipe", weight_per_length=150.0,
+                                     tensile_rating=400e3),
+    )
+
+
+def test_rig_capacity_in_order_and_best_path():
+    caps = rig_capacity(_rig())
+    assert [c.path for c in caps] == ["main winch, 4 lines", "top head", "unrated aux"]
+    best = best_path(_rig())
+    # 100 kN (main, hand arithmetic above) > 82 kN (top head); nan skipped
+    assert best.path == "main winch, 4 lines"
+    assert_allclose(best.string_limit, 100e3, rtol=1e-12)
+
+
+def test_best_path_with_nothing_rated_raises():
+    rig = Rig("r", paths=(HoistPath("a"), HoistPath("b")), source="rigs/r.toml")
+    with pytest.raises(InputError, match="rated") as err:
+        best_path(rig)
+    assert "rigs/r.toml" in str(err.value)
+
+
+def test_rig_rejects_duplicate_path_names_and_non_paths():
+    with pytest.raises(InputError, match="used twice"):
+        Rig("r", paths=(HoistPath("a"), HoistPath("a")))
+    with pytest.raises(InputError, match="HoistPath"):
+        Rig("r", paths=("a",))
+
+
+def test_rig_paths_become_tuple():
+    rig = Rig("r", paths=[HoistPath("a")])
+    assert isinstance(rig.paths, tuple)
+
+
+def test_landing_string_validation():
+    LandingString("ok", 150.0, float("nan"))  # unrated is allowed
+    with pytest.raises(InputError, match="weight per length"):
+        LandingString("x", 0.0, 1e5)
+    with pytest.raises(InputError, match="tensile rating"):
+        LandingString("x", 150.0, -1e5)
+    with pytest.raises(InputError, match="bore"):
+        LandingString("x", 150.0, 1e5, od=0.1, bore=0.12)
+    with pytest.raises(InputError, match="density"):
+        LandingString("x", 150.0, 1e5, density=0.0)
+
+
+def test_frozen_dataclasses():
+    p = HoistPath("p")
+    with pytest.raises(AttributeError):
+        p.lines = 3
+
+
+def test_engine_module_imports_no_units_or_ui_library():
+    # Project layering rule: engine modules use numpy only, no pint/textual/rich.
+    import os
+    import subprocess
+    import sys
+    from pathlib import Path
+
+    root = Path(__file__).resolve().parents[1]
+    env = dict(os.environ, PYTHONPATH=str(root))
+    code = ("import sys, rigplan.hoisting; "
+            "bad = [m for m in ('pint', 'textual', 'rich') if m in sys.modules]; "
+            "print(bad); sys.exit(1 if bad else 0)")
+    r = subprocess.run([sys.executable, "-c", code], env=env, cwd=str(root),
+                       capture_output=True, text=True)
+    assert r.returncode == 0, r.stdout + r.stderr

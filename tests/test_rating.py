@@ -1,0 +1,272 @@
+"""Joint rating (rigplan.rating.rate_joints)."""
+
+import dataclasses
+import math
+
+import numpy as np
+import pytest
+from numpy.testing import assert_allclose
+
+from _units import ft, inch, ksi, lb_per_ft, lbf, psi
+from rigplan.collapse import api_5c3, timoshenko
+from rigplan.errors import InputError
+from rigplan.materials import LIBRARY, get_material
+from rigplan.rating import joint_weight, rate_joints, rating_wall
+from rigplan.stringmodel import G, JointArrays, JointSpec
+
+
+def joint(label="J1", kind="blank", material="a53b", od=16.0, wall=0.375, length=40.0,
+          **kw):
+    """A joint given in inches and feet, converted to SI."""
+    return JointSpec(label, kind, material, od=od * inch, wall=wall * inch,
+                     length=length * ft, **kw)
+
+
+# --- steel casing, Timoshenko -----------------------------------------------------
+
+
+def test_timoshenko_with_measured_wall():
+    # common practice, no source: 16 in x 0.375 in, 35,000 psi, E 30e6 psi,
+    # nu 0.3, 1 % ellipticity -> about 470 psi; a measured wall is used as is.
+    arrays = rate_joints([joint(measured_wall=0.375 * inch, ellipticity=0.01)])
+    assert isinstance(arrays, JointArrays)
+    assert_allclose(arrays.collapse_rating[0] / psi, 470.0, atol=1.0)
+    assert arrays.collapse_method == ("timoshenko",)
+
+
+def test_timoshenko_default_ellipticity_is_one_percent():
+    # common practice, no source: 1 % ellipticity assumed when none is given
+    # (16 in x 0.375 in A53 B -> about 470 psi).
+    arrays = rate_joints([joint(measured_wall=0.375 * inch)])
+    assert_allclose(arrays.collapse_rating[0] / psi, 470.0, atol=1.0)
+
+
+def test_ellipticity_from_measured_diameters():
+    # common practice, no source: about 189 psi at 5 % ellipticity; dmax/dmin
+    # of 16.8 / 15.2 in give e = 1.6 / 32 = 0.05 and win over the entered value.
+    arrays = rate_joints([joint(measured_wall=0.375 * inch, ellipticity=0.01,
+                                dmax=16.8 * inch, dmin=15.2 * inch)])
+    assert_allclose(arrays.collapse_rating[0] / psi, 189.0, atol=1.0)
+
+
+def test_minimum_wall_is_used_without_measurement():
+    # rigplan rule and ASTM A53/A53M: ratings on the wall 12.5 % under the
+    # specified wall (0.328125 in for 0.375 in).
+    spec = joint()
+    wall, how = rating_wall(spec, get_material("a53b"))
+    assert_allclose(wall / inch, 0.328125, rtol=1e-12)
+    assert how == "specified less 12.5 %"
+    arrays = rate_joints([spec])
+    assert_allclose(arrays.collapse_rating[0],
+                    timoshenko(16 * inch, wall, 35 * ksi, 0.01, 30e6 * psi, 0.3), rtol=1e-12)
+    assert arrays.collapse_rating[0] < 470.0 * psi
+
+
+def test_weight_from_a53_formula_on_specified_wall():
+    # ASTM A53/A53M plain-end weight: 10.69 (D - t) t lb/ft on the specified
+    # wall, even when a thinner wall was measured; measured length wins.
+    arrays = rate_joints([joint(measured_wall=0.33 * inch, measured_length=41.5 * ft)])
+    expected = 10.69 * (16 - 0.375) * 0.375 * lb_per_ft * G * 41.5 * ft
+    assert_allclose(arrays.weight[0], expected, rtol=2e-4)
+    assert_allclose(arrays.length[0], 41.5 * ft, rtol=1e-12)
+    _, how = joint_weight(joint(), get_material("a53b"))
+    assert how == "plain-end formula"
+
+
+def test_entered_weights_win():
+    # string-mechanics reference, weight: a tally value wins over the formula.
+    shoe = joint(kind="float_shoe", length=2.0, weight=900.0)
+    centralizer = joint(kind="centralizer", length=1.0, weight=150.0)
+    per_length = joint(weight_per_length=1000.0, measured_length=41.0 * ft)
+    arrays = rate_joints([shoe, centralizer, per_length])
+    assert_allclose(arrays.weight, [900.0, 150.0, 1000.0 * 41.0 * ft], rtol=1e-12)
+
+
+def test_bore_uses_specified_wall_unless_entered():
+    arrays = rate_joints([joint(), joint(bore=15.0 * inch)])
+    assert_allclose(arrays.bore, [15.25 * inch, 15.0 * inch], rtol=1e-12)
+    assert_allclose(arrays.od, [16 * inch, 16 * inch], rtol=1e-12)
+
+
+def test_burst_and_body_on_minimum_wall():
+    # Barlow 2 Sy t_min / D with t_min = 0.875 t equals API TR 5C3's
+    # 0.875 * 2 Y t / D: 7 in 23 lb/ft J-55 burst 4,360 psi (API casing tables,
+    # from memory, recomputed).  Body: 0.7854 (D^2 - d^2) Y on the minimum wall
+    # (API TR 5C3 body-yield formula).
+    arrays = rate_joints([joint(material="j55", od=7.0, wall=0.317)])
+    assert_allclose(arrays.burst_rating[0] / psi, 4360.0, atol=10.0)
+    t_min = 0.875 * 0.317
+    expected_body = 0.7854 * (7.0**2 - (7.0 - 2 * t_min) ** 2) * 55000
+    assert_allclose(arrays.body_rating[0] / lbf, expected_body, rtol=1e-4)
+
+
+# API casing tables (API 5C2 / 5CT), from memory, recomputed: collapse +-10 psi,
+# body yield +-500 lbf; with the measured wall equal to the specified wall the
+# rating reproduces the tables.
+API_ROWS = [
+    ("j55", 7.0, 0.317, 3270, 366000),
+    ("n80", 7.0, 0.540, 11390, 877000),
+    ("n80", 9.625, 0.395, 3090, 916000),
+    ("p110", 9.625, 0.472, 5300, 1493000),
+    ("k55", 13.375, 0.380, 1130, 853000),
+    ("h40", 16.0, 0.375, 630, 736000),
+]
+
+
+def test_api_grades_reproduce_tables_with_specified_wall():
+    specs = [joint(f"C{i}", material=m, od=od, wall=t, measured_wall=t * inch)
+             for i, (m, od, t, _, _) in enumerate(API_ROWS)]
+    arrays = rate_joints(specs)
+    assert_allclose(arrays.collapse_rating / psi, [r[3] for r in API_ROWS], atol=10.0)
+    assert_allclose(arrays.body_rating / lbf, [r[4] for r in API_ROWS], atol=500.0)
+    assert set(arrays.collapse_method) == {"api_5c3"}
+
+
+def test_api_grade_collapse_on_minimum_wall():
+    # rigplan rule: API TR 5C3 applied to the minimum wall (more conservative
+    # than the API tables, which use the specified wall).
+    arrays = rate_joints([joint(material="j55", od=7.0, wall=0.317)])
+    assert_allclose(arrays.collapse_rating[0],
+                    api_5c3(7 * inch, 0.875 * 0.317 * inch, 55 * ksi), rtol=1e-12)
+    assert arrays.collapse_rating[0] < 3260 * psi
+
+
+# --- thermoplastic ------------------------------------------------------------------
+
+
+def test_pvc_by_sdr():
+    # Code of Maryland Regulations 26.04.04.17 Table 1: SDR 21 PVC 12454 casing
+    # limited to 265 ft, read as collapse over about 0.433 psi/ft (our reading;
+    # see test_collapse); F480 states minimum walls, so no under-tolerance
+    # (from memory).
+    od = 6.625
+    arrays = rate_joints([joint(material="pvc", od=od, wall=od / 21, connection="spline")])
+    assert_allclose(arrays.collapse_rating[0], 265 * 0.433 * psi, rtol=0.025)
+    assert arrays.collapse_method == ("thermoplastic",)
+    assert math.isnan(arrays.connection_rating[0])  # spline without a rating: unrated
+    rated = rate_joints([joint(material="pvc", od=od, wall=od / 21, connection="spline",
+                               connection_rating=20000.0)])
+    assert rated.connection_rating[0] == 20000.0
+
+
+# --- screens, entered and unrated ratings --------------------------------------------
+
+
+def test_screen_without_entries_is_unrated():
+    # string-mechanics reference: screens, perforated and slotted pipe take the
+    # maker's rating; never blank-pipe strength.
+    arrays = rate_joints([joint(kind="screen", weld_efficiency=1.0)])
+    assert math.isnan(arrays.collapse_rating[0])
+    assert math.isnan(arrays.burst_rating[0])
+    assert math.isnan(arrays.body_rating[0])
+    assert math.isnan(arrays.connection_rating[0])
+    assert arrays.collapse_method == ("unrated",)
+    assert arrays.weight[0] > 0
+
+
+def test_screen_with_entries():
+    arrays = rate_joints([joint(kind="screen", collapse_rating=150 * psi, burst_rating=300 * psi,
+                                tensile_rating=40000 * lbf, weld_efficiency=0.7)])
+    assert arrays.collapse_rating[0] == 150 * psi
+    assert arrays.burst_rating[0] == 300 * psi
+    assert arrays.body_rating[0] == 40000 * lbf
+    assert_allclose(arrays.connection_rating[0], 0.7 * 40000 * lbf, rtol=1e-12)
+    assert arrays.collapse_method == ("entered",)
+
+
+def test_entered_ratings_win_on_blank_pipe():
+    arrays = rate_joints([joint(collapse_rating=300 * psi, burst_rating=900 * psi,
+                                tensile_rating=1e6)])
+    assert arrays.collapse_rating[0] == 300 * psi
+    assert arrays.burst_rating[0] == 900 * psi
+    assert arrays.body_rating[0] == 1e6
+    assert arrays.collapse_method == ("entered",)
+
+
+def test_connections_per_joint():
+    # stringmodel.CONNECTION_KINDS and string-mechanics reference: weld
+    # efficiency x body yield on the minimum wall; no efficiency -> unrated;
+    # integral -> body; none -> inf.
+    specs = [joint("J1", connection="butt_weld", weld_efficiency=0.85),
+             joint("J2", connection="butt_weld"),
+             joint("J3", kind="shoe", connection="integral"),
+             joint("J4", connection="none"),
+             joint("J5", connection="threaded_coupled")]
+    arrays = rate_joints(specs)
+    body = arrays.body_rating
+    assert_allclose(arrays.connection_rating[0], 0.85 * body[0], rtol=1e-12)
+    assert math.isnan(arrays.connection_rating[1])
+    assert arrays.connection_rating[2] == body[2]
+    assert arrays.connection_rating[3] == np.inf
+    assert math.isnan(arrays.connection_rating[4])
+
+
+def test_fiberglass_user_needs_entries():
+    # rigplan rule: unknown ratings are unrated, never assumed.
+    with pytest.raises(InputError, match=r"joint F1\.weight"):
+        rate_joints([joint("F1", material="fiberglass_user")])
+    arrays = rate_joints([joint("F1", material="fiberglass_user", weight=500.0,
+                                connection="flush", connection_rating=1e5)])
+    assert math.isnan(arrays.collapse_rating[0])
+    assert math.isnan(arrays.burst_rating[0])
+    assert math.isnan(arrays.body_rating[0])
+    assert arrays.connection_rating[0] == 1e5
+    assert arrays.collapse_method == ("unrated",)
+
+
+def test_materials_mapping_is_used():
+    # A user mapping replaces the library; ASTM A312 TP304 30 ksi vs A53 B 35 ksi:
+    # body yield scales with the yield strength (API TR 5C3 body-yield formula).
+    custom = {"casing": dataclasses.replace(LIBRARY["ss304"], key="casing")}
+    arrays = rate_joints([joint(material="casing")], materials=custom)
+    steel = rate_joints([joint()])
+    assert_allclose(arrays.body_rating[0] / steel.body_rating[0], 30 / 35, rtol=1e-12)
+
+
+def test_mixed_string_vectorized_order():
+    specs = [joint("S", kind="float_shoe", material="j55", od=7.0, wall=0.317,
+                   connection="integral"),
+             joint("P", material="pvc", od=6.625, wall=6.625 / 21, connection="spline"),
+             joint("B", weld_efficiency=1.0),
+             joint("W", kind="screen", collapse_rating=1e6)]
+    arrays = rate_joints(specs)
+    assert arrays.label == ("S", "P", "B", "W")
+    assert arrays.collapse_method == ("api_5c3", "thermoplastic", "timoshenko", "entered")
+    assert arrays.n == 4
+
+
+def test_empty_string():
+    arrays = rate_joints([])
+    assert arrays.n == 0 and arrays.collapse_method == ()
+
+
+# --- bad input -------------------------------------------------------------------------
+
+
+@pytest.mark.parametrize("kw, where", [
+    ({"material": "x42"}, "joint J7.material"),
+    ({"wall": 9.0}, "joint J7.wall"),
+    ({"kind": "packer"}, "joint J7.kind"),
+    ({"connection": "glued"}, "joint J7.connection"),
+    ({"dmax": 16.1 * inch}, "joint J7.dmin"),
+    ({"ellipticity": 1.5}, "joint J7.ellipticity"),
+    ({"weld_efficiency": 1.2}, "joint J7.weld_efficiency"),
+    ({"measured_wall": -0.01}, "joint J7.measured_wall"),
+    ({"length": 0.0}, "joint J7.length"),
+])
+def test_bad_input_names_the_joint(kw, where):
+    with pytest.raises(InputError) as info:
+        rate_joints([joint("J7", **kw)])
+    assert info.value.where == where
+    assert "\n" not in str(info.value)
+
+
+def test_unknown_material_lists_known_keys():
+    with pytest.raises(InputError, match="a53b"):
+        rate_joints([joint(material="x42")])
+
+
+def test_api_method_outside_yield_range_is_refused():
+    weak = {"weak": dataclasses.replace(LIBRARY["j55"], key="weak", yield_strength=10 * ksi)}
+    with pytest.raises(InputError, match="API TR 5C3"):
+        rate_joints([joint(material="weak")], materials=weak)
