@@ -229,9 +229,13 @@ def fill_window(joints: JointArrays, hole: Hole, closure: Closure, fill_density:
     full_limit = np.where(s_cap < shoe, "hoisting capacity", "")
     tol = 1e-9 * max(1.0, float(shoe[-1]))
     feasible = (lo <= hi + tol) | ~valve_in
-    closing = np.where(feasible, "", np.char.add(np.char.add(
-        np.asarray(empty_limit, dtype=str), " vs "),
-        np.where(full_limit == "", "a full pipe", full_limit)))
+    closing = np.where(
+        full_limit == "",
+        np.char.add(np.asarray(empty_limit, dtype=str), " even with the pipe full"),
+        np.char.add(np.char.add(np.asarray(empty_limit, dtype=str), " vs "), full_limit))
+    closing = np.where(feasible, "", np.where(
+        (np.asarray(empty_limit, dtype=str) == "running weight") & (full_limit == ""),
+        "the string is too light (floats) even with the pipe full", closing))
     closing = np.where(feasible, empty_limit, closing).astype(object)
     with np.errstate(invalid="ignore"):
         ok = feasible & valve_in
@@ -456,3 +460,55 @@ def switch_point(string_load: np.ndarray, string_limit: float) -> int:
     0 when it never does: the joint at which floating must begin."""
     over = np.flatnonzero(np.asarray(string_load) > string_limit)
     return int(over[0]) + 1 if len(over) else 0
+
+
+@dataclass(frozen=True)
+class EmptyRun:
+    """What happens if a closed string is run with nothing added inside.
+
+    collapse_step : first step at which an empty pipe exceeds a collapse
+        rating / DF (0: never)
+    float_step : first step at which the empty string load falls below the
+        minimum running weight (0: never)
+    negative_step : first step at which the empty string load is negative,
+        i.e. it floats (0: never)
+    longest_empty : the longest empty column above the valve allowed by
+        collapse alone over the whole run [m] (inf: any)
+    """
+
+    collapse_step: int
+    float_step: int
+    negative_step: int
+    longest_empty: float
+
+
+def empty_run(joints: JointArrays, hole: Hole, closure: Closure, fill_density: float,
+              min_running_weight: float, collapse_factor: float,
+              window: FillWindow | None = None) -> EmptyRun:
+    """First steps at which an unfilled closed string collapses or floats."""
+    if window is None:
+        window = fill_window(joints, hole, closure, fill_density, np.inf,
+                             min_running_weight, collapse_factor)
+    n = joints.n
+    level = np.full(n, _EMPTY)
+    util = collapse_utilization_by_step(joints, hole, closure, fill_density, level,
+                                        collapse_factor)
+    load = window.empty_string_load
+    valve_in = window.valve_in_hole
+
+    def first(mask):
+        idx = np.flatnonzero(mask & valve_in)
+        return int(idx[0]) + 1 if len(idx) else 0
+
+    geo = string_geometry(joints, closure)
+    need = np.where(valve_in, window.low_height, -np.inf)
+    # collapse-limited: the fill surface may sit no deeper than shoe - need
+    empty_len = np.where(np.isfinite(need) & (need > geo.valve_height),
+                         geo.top - need, geo.top - geo.valve_height)
+    col_bound = np.array([lim == "collapse" for lim in window.empty_limit])
+    longest = float(np.min(empty_len[col_bound & valve_in])) if np.any(col_bound & valve_in) \
+        else float("inf")
+    return EmptyRun(collapse_step=first(util > 1.0 + 1e-12),
+                    float_step=first(load < min_running_weight),
+                    negative_step=first(load < 0.0),
+                    longest_empty=max(longest, 0.0))

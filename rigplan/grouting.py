@@ -508,8 +508,11 @@ def max_single_lift(joints: JointArrays, hole: Hole, grout_density, inside_densi
     when the grout is heavier than the inside fluid); the lift top is the
     least such ``t`` over the joints, found interval by interval in closed
     form, and capped at the top of the string.  Uniform string, both
-    fluids full, ``b = 0``: ``H = (P/DF - rho_o g Z + rho_i g Z) /
-    ((rho_g - rho_o) g)``.
+    fluids full, ``b = 0``, grout heavier than the hole fluid:
+    ``H = (P/DF - rho_o g Z + rho_i g Z) / ((rho_g - rho_o) g)``.  With
+    grout lighter than the hole fluid the load below the grout falls as
+    its top rises under the hole-fluid surface, so the state before the
+    lift (``base_utilization``) is then the one to watch.
 
     Parameters
     ----------
@@ -590,7 +593,7 @@ def _max_lift(joints, bottom, top, z_shoe, rating, rho_o, h_o, rho_g, rho_i, h_i
         frac = np.full(g_hi.shape, np.inf)
         frac[rising] = -g_lo[rising] / (g_hi[rising] - g_lo[rising])
         pick = np.unravel_index(np.argmin(frac), frac.shape)
-        t_max = min(max(t_lo + float(frac[pick]) * (t_hi - t_lo), t_lo), t_hi)
+        t_max = float(min(max(t_lo + float(frac[pick]) * (t_hi - t_lo), t_lo), t_hi))
         return SingleLift(b, t_max - b, t_max, int(idx[pick[0]]), False, base_util, unrated)
     return SingleLift(b, z_shoe - b, z_shoe, None, False, base_util, unrated)
 
@@ -725,8 +728,8 @@ def plan_grout_lifts(joints: JointArrays, hole: Hole, grout: GroutSpec,
                 reason = (f"no grout can be placed on the lift starting {b:.2f} m above the shoe: "
                           f"{label} reaches its collapse rating / DF at once")
             break
-        t = min(h_plan, lift.top_height)
-        lifts.append((b, t))
+        t = float(min(h_plan, lift.top_height))
+        lifts.append((float(b), t))
         capped = t >= h_plan or lift.limited_by is None
         limited.append("" if capped else joints.label[lift.limited_by])
         b = t

@@ -38,6 +38,7 @@ DEMO_JOBS = (
     ("cv7-16in-floated.toml", "mw80.toml"),
     ("cv9-14in-staged.toml", "mw80.toml"),
     ("cv12-pvc-floated.toml", "th30.toml"),
+    ("cv5-18in-thinwall.toml", "th30.toml"),
 )
 
 

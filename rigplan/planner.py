@@ -22,7 +22,8 @@ import numpy as np
 
 from rigplan import CAUTION
 from rigplan.axial import RunningLoads, neutral_point_depth, running_loads, step_profile
-from rigplan.floatplan import FillSchedule, FillWindow, fill_schedule, fill_window, switch_point
+from rigplan.floatplan import (EmptyRun, FillSchedule, FillWindow, empty_run, fill_schedule,
+                               fill_window, switch_point)
 from rigplan.hoisting import PathCapacity, Rig, path_capacity
 from rigplan.staging import StagedPlan, plan_two_stages
 from rigplan.stringmodel import Closure, GroutSpec, Hole, JointArrays, Settings
@@ -82,6 +83,7 @@ class FloatOption:
     check: RunCheck | None
     lands: bool
     reason: str = ""
+    empty: EmptyRun | None = None
 
 
 @dataclass(frozen=True)
@@ -122,6 +124,7 @@ class LandingPlan:
     grouting: object = None
     unrated: tuple = ()
     reasons: tuple = ()
+    notes: tuple = ()
     cautions: tuple = field(default_factory=lambda: (CAUTION,))
 
     @property
@@ -212,15 +215,41 @@ def try_float(joints: JointArrays, hole: Hole, closure: Closure, fill_density: f
                          settings.min_running_weight, d.collapse)
     schedule = fill_schedule(joints, hole, closure, fill_density, limit,
                              settings.min_running_weight, d.collapse, window=window)
+    empty = empty_run(joints, hole, closure, fill_density, settings.min_running_weight,
+                      d.collapse, window=window)
     if not schedule.feasible:
         return FloatOption(closure, fill_density, window, schedule, None, False,
-                           schedule.failure)
+                           schedule.failure, empty)
     loads = running_loads(joints, hole, closure, fill_density,
                           np.nan_to_num(schedule.fill_level, nan=0.0))
     check = check_run(joints, loads, closure, limit, settings)
     return FloatOption(closure, fill_density, window, schedule, check, check.ok,
                        "" if check.ok else
-                       f"{_governing(check).name} over its limit at {_governing(check).where}")
+                       f"{_governing(check).name} over its limit at {_governing(check).where}",
+                       empty)
+
+
+def float_notes(opt: FloatOption, n: int) -> list:
+    """Plain warnings about running a closed string (empty collapse, floating)."""
+    notes = []
+    e = opt.empty
+    name = f"{_closure_name(opt.closure)} with fill {opt.fill_density:.0f} kg/m3"
+    if e is None:
+        return notes
+    if e.collapse_step:
+        notes.append(f"{name}: left empty the pipe would collapse by joint {e.collapse_step}"
+                     + (f"; never leave more than {e.longest_empty:.1f} m empty above the valve"
+                        if np.isfinite(e.longest_empty) else ""))
+    if e.negative_step:
+        notes.append(f"{name}: left empty the string floats (negative hook load) from joint "
+                     f"{e.negative_step}: fill it or it will not go down")
+    elif e.float_step:
+        notes.append(f"{name}: left empty the string load falls below the minimum running "
+                     f"weight from joint {e.float_step}")
+    if opt.schedule.feasible and opt.schedule.fill_to_top_through >= n:
+        notes.append(f"{name}: fill every joint to the top all the way down; floating gains "
+                     "nothing here")
+    return notes
 
 
 def _option_key(opt: FloatOption):
@@ -285,9 +314,12 @@ def plan_landing(joints: JointArrays, hole: Hole, rig: Rig, settings: Settings,
             chosen = best.check
             verdict = LANDS_FLOATED
         else:
+            why = {}
             for o in options:
-                reasons.append(f"{_closure_name(o.closure)} with fill "
-                               f"{o.fill_density:.0f} kg/m3: {o.reason}")
+                why.setdefault((_closure_name(o.closure), o.reason), []).append(
+                    f"{o.fill_density:.0f}")
+            for (name, reason), rhos in why.items():
+                reasons.append(f"{name} (fill {', '.join(rhos)} kg/m3): {reason}")
             if options:
                 tried = [o for o in options if o.check is not None]
                 if tried:
@@ -311,7 +343,14 @@ def plan_landing(joints: JointArrays, hole: Hole, rig: Rig, settings: Settings,
             options.append(try_float(joints, hole, closure, rho, limit, settings))
         landing = [o for o in options if o.lands]
         best = max(landing, key=_option_key) if landing else None
+        for o in options:
+            if not o.lands:
+                reasons.append(f"planned {_closure_name(o.closure)} with fill "
+                               f"{o.fill_density:.0f} kg/m3 does not work: {o.reason}")
 
+    notes = []
+    for o in ([best] if best is not None else []) + [o for o in options if o is not best][:1]:
+        notes += float_notes(o, joints.n)
     unrated = tuple(chosen.unrated)
     if verdict in (LANDS_OPEN, LANDS_FLOATED) and unrated:
         reasons.append("lands on the rated parts, but some loaded parts are unrated: "
@@ -337,7 +376,7 @@ def plan_landing(joints: JointArrays, hole: Hole, rig: Rig, settings: Settings,
         joints=joints, hole=hole, settings=settings, open_check=open_check,
         chosen=chosen, float_options=tuple(options), best_float=best, stages=stages,
         switch_joint=switch, neutral_point=neutral, grouting=grouting,
-        unrated=unrated, reasons=tuple(reasons),
+        unrated=unrated, reasons=tuple(reasons), notes=tuple(dict.fromkeys(notes)),
     )
 
 

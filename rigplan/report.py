@@ -112,6 +112,7 @@ def plan_dict(landing, plan=None, warnings=(), rig_name: str = "") -> dict:
         "fill_window": None, "fill_schedule": None, "float_options": [],
         "stages": None, "grouting": None,
         "unrated": list(landing.unrated), "reasons": list(landing.reasons),
+        "notes": list(landing.notes),
         "warnings": list(warnings), "cautions": list(landing.cautions),
     }
     opt = landing.best_float
@@ -231,6 +232,8 @@ def text_renderables(landing, plan=None, system: str = "us", warnings=(), rig_na
 
     for r in landing.reasons:
         out.append(Text(f"  - {r}"))
+    for r in landing.notes:
+        out.append(Text(f"  note: {r}", "cyan"))
     for w in warnings:
         out.append(Text(f"  warning: {w}", "yellow"))
 

@@ -238,6 +238,7 @@ _RE_FEET_MARK = re.compile(r"^(?P<ft>" + _NUM + r")\s*'$")
 _RE_MIXED = re.compile(r"^(?P<whole>\d+)(?:-|\s+)(?P<num>\d+)/(?P<den>\d+)(?P<unit>(?:\s*\D.*)?)$")
 _RE_FRACTION = re.compile(r"^(?P<num>\d+)/(?P<den>\d+)(?P<unit>(?:\s*\D.*)?)$")
 _RE_PLAIN = re.compile(r"^(?P<num>" + _NUM + r")(?P<unit>.*)$")
+_RE_SPACED_DIGITS = re.compile(r"^[+-]?\d+\s+\d")
 _RE_THOUSANDS = re.compile(r"^[+-]?\d{1,3}(?:,\d{3})+(?:\.\d*)?(?=\D|$)")
 _RE_DECIMAL_COMMA = re.compile(r"^[+-]?\d*,\d+")
 
@@ -352,7 +353,7 @@ def parse(value, kind: str, default_unit: str | None = None, where: str = "") ->
     0.244475
     >>> round(parse("20' 6\\"", "length"), 10)
     6.2484
-    >>> parse(40, "length", "ft")
+    >>> round(parse(40, "length", "ft"), 10)
     12.192
     """
     _check_kind(kind)
@@ -381,7 +382,11 @@ def parse(value, kind: str, default_unit: str | None = None, where: str = "") ->
             raise InputError(where, f"decimal comma in {text!r}: write {fixed!r} "
                                     "(use a point for decimals)")
         raise InputError(where, f"unexpected comma in {text!r}: expected {_describe(kind)}")
-    m = _RE_FEET_INCHES_UNMARKED.match(text)
+    if _RE_SPACED_DIGITS.match(text) and not _RE_MIXED.match(text):
+        fixed = re.sub(r"(?<=\d)\s+(?=\d)", "", text)
+        raise InputError(where, f"space inside the number {text!r}: write {fixed!r} "
+                                "(no thousands separators)")
+    m = _RE_FEET_INCHES_UNMARKED.match(text) if kind in ("length", "diameter") else None
     if m:
         raise InputError(where, f"mark the inches in {text!r}: write "
                                 f"'{m.group('ft')} ft {m.group('inch')} in'")

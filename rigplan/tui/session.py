@@ -1,0 +1,520 @@
+"""One open job in the terminal app: files, run log, edits and the plan.
+
+No Textual here: the screens call these methods and show what they return,
+and the tests (and the kill test's driver) use the same code.  Every figure
+comes from the engine (:func:`rigplan.job.plan_job`); this module only keeps
+the job's state, records events in the run log as they happen, applies plan
+edits and compares a weight reading with the planned hook load.
+
+State kept:
+
+* ``base_plan``: the plan as read and edited here (saved with
+  :meth:`JobSession.save_plan`);
+* ``state``: the run replayed from the log (:class:`rigplan.runlog.RunState`);
+* ``plan``: ``base_plan`` with the run state applied (measured lengths,
+  rejections) -- what the engine plans;
+* ``landing``: the engine's :class:`rigplan.planner.LandingPlan` for
+  ``plan`` (None with ``error`` set when the engine refused the input).
+"""
+
+from __future__ import annotations
+
+import dataclasses
+import math
+from dataclasses import dataclass
+from pathlib import Path
+
+from rigplan.errors import InputError
+from rigplan.job import apply_run_state, load_job, plan_job, rated_joints
+from rigplan.runlog import RunLog, log_path_for
+from rigplan.stringmodel import CONNECTION_KINDS, JOINT_KINDS, StringPlan
+from rigplan import units as U
+
+#: Default half-width of the band around the planned hook load inside which a
+#: weight-indicator reading counts as agreeing: 10 % of the planned hook load
+#: (common practice, no source; weight indicators on small rigs are often no
+#: better than a few per cent of full scale).
+DEFAULT_BAND_FRACTION = 0.10
+
+#: Suffix of the exported tally beside the plan.
+EXPORT_SUFFIX = ".tally-export.csv"
+
+#: Editable joint fields: field -> (how it is read, quantity kind or choices).
+EDITABLE_FIELDS = {
+    "label": ("label", None),
+    "kind": ("choice", JOINT_KINDS),
+    "material": ("material", None),
+    "od": ("quantity", "diameter"),
+    "wall": ("quantity", "diameter"),
+    "length": ("quantity", "length"),
+    "measured_length": ("optional_quantity", "length"),
+    "connection": ("choice", CONNECTION_KINDS),
+}
+
+# Likely causes of a reading off the plan, by direction.  Trade knowledge
+# (common practice, no source).
+CAUSES_LIGHTER = (
+    "fill not as planned: less fluid inside the string than the schedule says",
+    "drag or hole friction while lowering (wall contact, a ledge, centralizers hanging up)",
+    "hole fluid heavier than entered (more buoyancy)",
+    "wrong joint weight or tally: the plan carries more pipe weight than is in the hole",
+    "string resting on a bridge or on bottom",
+)
+CAUSES_HEAVIER = (
+    "fill not as planned: more fluid inside than scheduled, or the float valve "
+    "leaking so the string fills from below",
+    "drag while picking up (overpull), or the reading taken while the string moved up",
+    "hole fluid lighter than entered, or the annulus level has dropped (less buoyancy)",
+    "wrong joint weight or tally: heavier or longer joints in the hole than planned",
+    "weight indicator not zeroed with the hoisting gear, or set for another line count",
+)
+
+
+@dataclass(frozen=True)
+class WeightCheck:
+    """A weight-indicator reading against the planned hook load, SI units.
+
+    observed, predicted : hook load read and planned [N]
+    difference : observed - predicted [N]
+    tolerance : half-width of the agreement band [N]
+    outside : the reading lies outside the band
+    causes : likely causes to look at when outside (empty inside)
+    step : joints in the hole when read
+    """
+
+    observed: float
+    predicted: float
+    difference: float
+    tolerance: float
+    outside: bool
+    causes: tuple
+    step: int
+
+
+def compare_reading(observed: float, predicted: float, band_fraction: float,
+                    band_force: float, step: int) -> WeightCheck:
+    """Compare a reading [N] with the planned hook load [N].
+
+    The band is ``max(band_fraction x |predicted|, band_force)`` either side
+    of the prediction.
+
+    >>> c = compare_reading(110.0, 100.0, 0.10, 0.0, 3)
+    >>> c.outside, c.tolerance
+    (False, 10.0)
+    >>> compare_reading(89.0, 100.0, 0.10, 0.0, 3).outside
+    True
+    """
+    tol = max(band_fraction * abs(predicted), band_force)
+    diff = observed - predicted
+    outside = abs(diff) > tol * (1 + 1e-12)
+    causes = () if not outside else (CAUSES_LIGHTER if diff < 0 else CAUSES_HEAVIER)
+    return WeightCheck(observed=float(observed), predicted=float(predicted),
+                       difference=float(diff), tolerance=float(tol), outside=outside,
+                       causes=causes, step=int(step))
+
+
+def _file_units(plan_path: Path) -> str:
+    """Unit system of bare numbers in a plan file (its ``units`` key)."""
+    from rigplan.formats import read_toml
+    system = read_toml(plan_path).get("units", "si")
+    return system if system in U.SYSTEMS else "si"
+
+
+class JobSession:
+    """A job open in the app: plan and rig files, the run log, the plan.
+
+    Parameters
+    ----------
+    plan_path, rig_path : the string plan and rig profile files
+    path_name : hoisting path to plan with (None: the strongest)
+    units : display system, ``"us"`` or ``"si"``
+    band_fraction : agreement band for weight readings, fraction of the
+        planned hook load [-]
+    band_force : least half-width of that band [N]
+
+    Raises
+    ------
+    InputError
+        The files cannot be read (one line naming file and key).
+    """
+
+    def __init__(self, plan_path, rig_path, path_name: str | None = None, units: str = "us",
+                 band_fraction: float = DEFAULT_BAND_FRACTION, band_force: float = 0.0):
+        if units not in U.SYSTEMS:
+            raise InputError("--units", f"expected one of {', '.join(U.SYSTEMS)}, got {units!r}")
+        self.job = load_job(plan_path, rig_path, path_name)
+        self.plan_path = Path(self.job.plan_path)
+        self.rig_path = Path(self.job.rig_path)
+        self.rig = self.job.rig
+        self.warnings = tuple(self.job.warnings)
+        self.base_plan: StringPlan = self.job.plan
+        self.file_units = _file_units(self.plan_path)
+        self.units = units
+        self.path_name = path_name
+        self.band_fraction = float(band_fraction)
+        self.band_force = float(band_force)
+        self.dirty = False
+        self.last_event_id: int | None = None
+        self.last_check: WeightCheck | None = None
+        self.log = RunLog(log_path_for(self.plan_path))
+        self.state = self.log.state()
+        self.plan: StringPlan = self.base_plan
+        self.landing = None
+        self.error = ""
+        self.recompute()
+        obs = self.state.observations
+        if obs:
+            o = obs[-1]
+            if o.predicted_n is not None:
+                self.last_check = compare_reading(o.hook_load_n, o.predicted_n,
+                                                  self.band_fraction, self.band_force, o.step)
+
+    # -- the plan ------------------------------------------------------------
+
+    def recompute(self) -> None:
+        """Apply the run state to the plan and ask the engine for the landing plan."""
+        self.plan = apply_run_state(self.base_plan, self.state)
+        try:
+            self.landing = plan_job(self.plan, self.rig, self.path_name)
+            self.error = ""
+        except InputError as exc:
+            self.landing = None
+            self.error = str(exc)
+
+    def close(self) -> None:
+        self.log.close()
+
+    @property
+    def path_names(self) -> tuple:
+        return tuple(p.name for p in self.rig.paths)
+
+    def cycle_path(self) -> str:
+        """Plan with the next hoisting path of the rig; return its name."""
+        names = self.path_names
+        current = self.path_name if self.path_name is not None else (
+            self.landing.path.path if self.landing is not None else names[0])
+        i = names.index(current) if current in names else -1
+        self.path_name = names[(i + 1) % len(names)]
+        self.recompute()
+        return self.path_name
+
+    def toggle_units(self) -> str:
+        self.units = "si" if self.units == "us" else "us"
+        return self.units
+
+    # -- the run -------------------------------------------------------------
+
+    @property
+    def step(self) -> int:
+        """Joints in the hole."""
+        return len(self.state.run)
+
+    def in_hole(self, label: str) -> bool:
+        return any(lab == label for lab, _ in self.state.run)
+
+    def set_aside(self, label: str) -> bool:
+        return label in self.state.rejected
+
+    def next_joint(self):
+        """The next joint to run (JointSpec in plan order), or None when all are in."""
+        done = {lab for lab, _ in self.state.run}
+        for j in self.plan.joints:
+            if not j.rejected and j.label not in done:
+                return j
+        return None
+
+    def joint(self, label: str):
+        for j in self.plan.joints:
+            if j.label == label:
+                return j
+        raise KeyError(label)
+
+    def _after_event(self, event_id) -> None:
+        self.last_event_id = event_id
+        self.state = self.log.state()
+        self.recompute()
+
+    def record_run(self, measured_length_m: float | None, note: str = "") -> int:
+        """Record the next joint as run (committed at once); return the event id."""
+        j = self.next_joint()
+        if j is None:
+            raise InputError("run", "every joint of the plan is in the hole already")
+        event_id = self.log.record_run(j.label, measured_length_m, note)
+        self._after_event(event_id)
+        return event_id
+
+    def reject(self, label: str, reason: str) -> int:
+        """Set joint ``label`` aside with a reason (committed at once)."""
+        if not reason.strip():
+            raise InputError("reason", "expected a reason for setting the joint aside")
+        if label not in {j.label for j in self.base_plan.joints}:
+            raise InputError("reject", f"no joint {label!r} in the plan")
+        event_id = self.log.reject(label, reason.strip())
+        self._after_event(event_id)
+        return event_id
+
+    def last_undoable(self):
+        """The latest run or reject entry not yet undone (Event) or None."""
+        events = self.log.events()
+        undone = {e.ref for e in events if e.kind == "undo"}
+        for e in reversed(events):
+            if e.kind in ("run", "reject") and e.id not in undone:
+                return e
+        return None
+
+    def undo(self) -> int | None:
+        event_id = self.log.undo()
+        if event_id is not None:
+            self._after_event(event_id)
+        return event_id
+
+    def predicted_hook_load(self, step: int | None = None) -> float | None:
+        """Planned hook load [N] with ``step`` joints in the hole (default: now)."""
+        lp = self.landing
+        if lp is None:
+            return None
+        k = self.step if step is None else step
+        if k == 0:
+            return float(lp.dead_load)
+        if k > lp.joints.n:
+            return None
+        return float(lp.hook_load[k - 1])
+
+    def observe(self, hook_load_n: float, note: str = "") -> tuple:
+        """Record a weight reading now; return (event id, WeightCheck or None)."""
+        predicted = self.predicted_hook_load()
+        event_id = self.log.observe(self.step, hook_load_n, predicted, note)
+        self.last_event_id = event_id
+        self.state = self.log.state()
+        check = None
+        if predicted is not None:
+            check = compare_reading(hook_load_n, predicted, self.band_fraction,
+                                    self.band_force, self.step)
+        self.last_check = check
+        return event_id, check
+
+    def set_band(self, text: str) -> str:
+        """Set the agreement band from ``"10 %"``, ``"0.1"`` or a force (``"2000 lbf"``)."""
+        t = text.strip()
+        if t.endswith("%"):
+            try:
+                v = float(t[:-1])
+            except ValueError:
+                raise InputError("band", f"expected a percentage such as 10 %, got {text!r}") from None
+            if not 0 < v < 100:
+                raise InputError("band", f"expected a percentage between 0 and 100, got {text!r}")
+            self.band_fraction, self.band_force = v / 100.0, 0.0
+        else:
+            try:
+                v = float(t)
+            except ValueError:
+                v = None
+            if v is not None:
+                if not 0 < v < 1:
+                    raise InputError("band", f"a bare number is a fraction between 0 and 1, "
+                                             f"got {text!r} (or write 10 % or 2000 lbf)")
+                self.band_fraction, self.band_force = v, 0.0
+            else:
+                force = U.parse(t, "force", None, "band")
+                if not force > 0:
+                    raise InputError("band", f"expected a force > 0, got {text!r}")
+                self.band_fraction, self.band_force = 0.0, force
+        if self.last_check is not None:
+            c = self.last_check
+            self.last_check = compare_reading(c.observed, c.predicted, self.band_fraction,
+                                              self.band_force, c.step)
+        return self.band_text()
+
+    def band_text(self) -> str:
+        if self.band_force > 0:
+            return f"+/- {U.format(self.band_force, 'force', self.units)}"
+        return f"+/- {self.band_fraction * 100:g} %"
+
+    # -- plan edits ----------------------------------------------------------
+
+    def _index(self, label: str) -> int:
+        for i, j in enumerate(self.base_plan.joints):
+            if j.label == label:
+                return i
+        raise InputError("joint", f"no joint {label!r} in the plan")
+
+    def _collar_label(self, plan: StringPlan):
+        m = plan.closure.valve_joint
+        if m is None or m == 0:
+            return None
+        running = plan.running_joints()
+        return running[m - 1].label if 1 <= m <= len(running) else None
+
+    def _with_joints(self, joints: list, collar_label) -> StringPlan:
+        plan = dataclasses.replace(self.base_plan, joints=tuple(joints))
+        if collar_label is not None:
+            running = [j.label for j in plan.running_joints()]
+            closure = dataclasses.replace(plan.closure, valve_joint=running.index(collar_label) + 1)
+            plan = dataclasses.replace(plan, closure=closure)
+        return plan
+
+    def _check_plan(self, plan: StringPlan) -> StringPlan:
+        """Refuse a plan the engine cannot rate (message names the joint)."""
+        rated_joints(apply_run_state(plan, self.state))
+        return plan
+
+    def _not_in_log(self, label: str, what: str) -> None:
+        if self.in_hole(label):
+            raise InputError(f"joint {label}", f"{label} is in the hole: {what} (undo its run first)")
+        if self.set_aside(label):
+            raise InputError(f"joint {label}", f"{label} is set aside in the run log: {what} "
+                                               "(undo the rejection first)")
+
+    def edited_plan(self, label: str, field: str, text: str) -> StringPlan:
+        """The base plan with one field of joint ``label`` set from ``text``.
+
+        Quantities without a unit are read in the display units.  Raises
+        InputError (naming joint and field, with the expected units) and
+        changes nothing when the text cannot be used.
+        """
+        if field not in EDITABLE_FIELDS:
+            raise InputError(f"joint {label}", f"{field} is computed, not entered")
+        how, what = EDITABLE_FIELDS[field]
+        i = self._index(label)
+        spec = self.base_plan.joints[i]
+        where = f"joint {label}.{field}"
+        t = text.strip()
+        if field in ("label", "measured_length"):
+            self._not_in_log(label, f"its {field.replace('_', ' ')} is fixed by the run log")
+        if how == "label":
+            if not t:
+                raise InputError(where, "expected a joint label, got an empty text")
+            if t != spec.label and t in {j.label for j in self.base_plan.joints}:
+                raise InputError(where, f"label {t!r} is already used by another joint")
+            value = t
+        elif how == "choice":
+            if t not in what:
+                raise InputError(where, f"expected one of {', '.join(what)}, got {t!r}")
+            value = t
+        elif how == "material":
+            from rigplan import materials
+            try:
+                value = materials.get_material(t).key
+            except KeyError:
+                raise InputError(where, f"unknown material {t!r}; known: "
+                                        f"{', '.join(materials.known_keys())}") from None
+        else:
+            if how == "optional_quantity" and t == "":
+                value = None
+            else:
+                value = U.parse(t, what, U.unit_label(what, self.units), where)
+                if not value > 0:
+                    raise InputError(where, f"expected {U.describe(what)} greater than zero, got {t!r}")
+        changed = dataclasses.replace(spec, **{field: value})
+        if changed.wall >= changed.od / 2.0:
+            raise InputError(where, f"the wall must be less than half the od "
+                                    f"({U.format(changed.od / 2, 'diameter', self.units)})")
+        joints = list(self.base_plan.joints)
+        joints[i] = changed
+        collar = self._collar_label(self.base_plan)
+        if collar == spec.label:
+            collar = changed.label
+        return self._check_plan(self._with_joints(joints, collar))
+
+    def apply_plan(self, plan: StringPlan) -> None:
+        """Use an edited base plan (from :meth:`edited_plan` or the joint edits)."""
+        self.base_plan = plan
+        self.dirty = True
+        self.recompute()
+
+    def _new_label(self) -> str:
+        used = {j.label for j in self.base_plan.joints}
+        n = len(used) + 1
+        while f"J{n}" in used:
+            n += 1
+        return f"J{n}"
+
+    def insert_after(self, label: str) -> str:
+        """Insert a copy of joint ``label`` (planned data only) right above it."""
+        i = self._index(label)
+        spec = self.base_plan.joints[i]
+        new = dataclasses.replace(spec, label=self._new_label(), measured_length=None,
+                                  measured_wall=None, rejected=False)
+        joints = list(self.base_plan.joints)
+        joints.insert(i + 1, new)
+        plan = self._check_plan(self._with_joints(joints, self._collar_label(self.base_plan)))
+        self.apply_plan(plan)
+        return new.label
+
+    def delete(self, label: str) -> None:
+        i = self._index(label)
+        self._not_in_log(label, "it cannot be taken out of the plan")
+        if label == self._collar_label(self.base_plan):
+            raise InputError(f"joint {label}", "the float collar sits on this joint: move the "
+                                               "collar in the plan file first")
+        joints = list(self.base_plan.joints)
+        del joints[i]
+        if not [j for j in joints if not j.rejected]:
+            raise InputError(f"joint {label}", "the plan must keep at least one joint to run")
+        self.apply_plan(self._check_plan(self._with_joints(joints, self._collar_label(self.base_plan))))
+
+    def move(self, label: str, delta: int) -> int:
+        """Move joint ``label`` ``delta`` places in the running order; return its new index."""
+        i = self._index(label)
+        k = i + delta
+        joints = list(self.base_plan.joints)
+        if not 0 <= k < len(joints):
+            raise InputError(f"joint {label}", "already at the end of the string")
+        self._not_in_log(label, "its place in the running order is fixed")
+        self._not_in_log(joints[k].label, f"{label} cannot swap with it")
+        joints[i], joints[k] = joints[k], joints[i]
+        self.apply_plan(self._check_plan(self._with_joints(joints, self._collar_label(self.base_plan))))
+        return k
+
+    def import_tally(self, path) -> int:
+        """Apply a tally CSV's measured lengths, walls and set-asides by label.
+
+        Returns the number of rows applied.
+        """
+        from rigplan.formats.planfile import _apply_tally
+        from rigplan.formats.tally import read_tally
+        p = Path(path)
+        if not p.is_absolute():
+            p = self.plan_path.parent / p
+        rows = read_tally(p)
+        joints = _apply_tally(list(self.base_plan.joints), rows, str(p))
+        self.apply_plan(self._check_plan(self._with_joints(joints, self._collar_label(self.base_plan))))
+        return len(rows)
+
+    def save_plan(self) -> Path:
+        """Write the edited plan over its file (atomically, in the file's units)."""
+        from rigplan.formats.planfile import write_plan
+        write_plan(self.base_plan, self.plan_path, system=self.file_units)
+        self.dirty = False
+        return self.plan_path
+
+    def export_path(self) -> Path:
+        return self.plan_path.with_name(self.plan_path.stem + EXPORT_SUFFIX)
+
+    def export_tally(self) -> Path:
+        """Write the run log's tally as CSV beside the plan; return the path."""
+        planned = {j.label: j.length for j in self.base_plan.joints if not j.rejected}
+        path = self.export_path()
+        self.log.export_tally_csv(path, planned=planned)
+        return path
+
+    # -- lookups for the screens -----------------------------------------------
+
+    def engine_index(self) -> dict:
+        """label -> index into the landing plan's per-joint arrays (running joints)."""
+        if self.landing is None:
+            return {}
+        return {lab: i for i, lab in enumerate(self.landing.joints.label)}
+
+    def measured_in_log(self, label: str):
+        for lab, length in self.state.run:
+            if lab == label:
+                return length
+        return None
+
+
+def finite(value) -> bool:
+    try:
+        return math.isfinite(float(value))
+    except (TypeError, ValueError):
+        return False

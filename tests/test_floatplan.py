@@ -1,0 +1,192 @@
+"""Fill window, fill schedule, switch point (rigplan.floatplan).
+
+The closed forms below are derived in each test from hydrostatics and the
+pressure-area method (mechanics reference, "Floating and fill-up"), for a
+uniform string with a float shoe, water inside and mud outside.
+"""
+
+import numpy as np
+import pytest
+from hypothesis import given, settings, strategies as st
+from numpy.testing import assert_allclose
+
+from rigplan.axial import running_loads
+from rigplan.collapse import timoshenko
+from rigplan.floatplan import (bore_volume_below, empty_run, fill_schedule, fill_window,
+                               height_for_bore_volume, switch_point)
+from rigplan.axial import string_geometry
+from rigplan.stringmodel import G, Closure, Hole, JointArrays
+
+INCH = 0.0254
+PSI = 6894.757293168361
+STEEL = 7850.0
+RHO_MUD, RHO_W = 1200.0, 998.2
+
+
+def uniform(n, od=16 * INCH, wall=0.375 * INCH, length=6.0, collapse=np.nan):
+    d = od - 2 * wall
+    w = STEEL * G * np.pi / 4 * (od ** 2 - d ** 2) * length
+    f = lambda v: np.full(n, float(v))
+    return JointArrays(label=tuple(f"J{i + 1}" for i in range(n)), kind=("blank",) * n,
+                       length=f(length), od=f(od), bore=f(d), weight=f(w),
+                       collapse_rating=f(collapse), burst_rating=f(np.nan),
+                       body_rating=f(np.nan), connection_rating=f(np.nan))
+
+
+def test_collapse_load_at_the_valve_and_longest_empty_column():
+    # Derived: float shoe at depth Z, water inside to level h, mud outside to
+    # the floor: collapse load at the valve P_o - P_i = rho_m g Z - rho_w g (Z - h).
+    # Setting it to R/DF gives the deepest allowed level
+    #     h_max = Z - (rho_m g Z - R/DF) / (rho_w g).
+    # Rating: Timoshenko, 16 in x 0.375 in, 35 ksi, 1 % ellipticity (about
+    # 470 psi, common practice, no source), on the minimum wall (12.5 % under).
+    r = float(timoshenko(16 * INCH, 0.875 * 0.375 * INCH, 35000 * PSI, 0.01))
+    df = 1.125
+    j = uniform(120, collapse=r)
+    hole = Hole(RHO_MUD)
+    w = fill_window(j, hole, Closure(0), RHO_W, string_limit=1e9, min_running_weight=-1e12,
+                    collapse_factor=df)
+    z = np.cumsum(j.length)
+    h_max = z - (RHO_MUD * G * z - r / df) / (RHO_W * G)
+    binding = RHO_MUD * G * z > r / df
+    assert np.any(binding) and np.any(~binding)
+    assert_allclose(w.max_fill_level[binding], h_max[binding], rtol=1e-12)
+    assert all(w.empty_limit[k] == "collapse" for k in np.flatnonzero(binding))
+    # where the empty pipe holds, it may run empty: the level may sit at the valve
+    assert_allclose(w.max_fill_level[~binding], z[~binding], rtol=1e-12)
+    # the window's collapse load at that level is exactly R/DF at the valve
+    k = int(np.flatnonzero(binding)[-1])
+    loads = running_loads(j, hole, Closure(0), RHO_W, w.max_fill_level)
+    assert_allclose(loads.collapse_max[0] * df, r, rtol=1e-9)
+
+
+def test_empty_length_at_which_a_closed_string_weighs_nothing():
+    # Derived: closed uniform string, float shoe at Z, water to level h:
+    #   F(0) = w Z - rho_m g A_o Z + rho_w g A_i (Z - h) = 0
+    #   => h0 = Z - (rho_m g A_o - w) Z / (rho_w g A_i)
+    # With the minimum running weight 0 the window's deepest level is h0.
+    j = uniform(80)
+    hole = Hole(RHO_MUD)
+    a_o = np.pi / 4 * j.od[0] ** 2
+    a_i = np.pi / 4 * j.bore[0] ** 2
+    wpl = j.weight[0] / j.length[0]
+    z = np.cumsum(j.length)
+    h0 = z - (RHO_MUD * G * a_o - wpl) * z / (RHO_W * G * a_i)
+    w = fill_window(j, hole, Closure(0), RHO_W, string_limit=1e9, min_running_weight=0.0)
+    assert_allclose(w.max_fill_level, h0, rtol=1e-10)
+    assert all(lim == "running weight" for lim in w.empty_limit)
+    loads = running_loads(j, hole, Closure(0), RHO_W, h0).string_load
+    assert_allclose(loads, 0.0, atol=1e-6 * j.weight.sum())
+
+
+def test_capacity_bound_is_the_shallowest_level():
+    # Derived: F(0)(h) = F_empty + rho_w g A_i (Z - h) <= limit
+    #   => h_min = Z - (limit - F_empty) / (rho_w g A_i), clipped at the floor.
+    j = uniform(100)
+    hole = Hole(RHO_MUD)
+    limit = 150e3
+    w = fill_window(j, hole, Closure(0), RHO_W, string_limit=limit)
+    empty = running_loads(j, hole, Closure(0), RHO_W, 1e9).string_load
+    a_i = np.pi / 4 * j.bore[0] ** 2
+    z = np.cumsum(j.length)
+    h_min = np.clip(z - (limit - empty) / (RHO_W * G * a_i), 0.0, None)
+    ok = w.feasible
+    assert_allclose(w.min_fill_level[ok], h_min[ok], rtol=1e-10, atol=1e-9)
+
+
+def test_schedule_stays_in_window_and_never_removes_fluid():
+    # Mechanics reference: fluid cannot leave through the check valve, so the
+    # fill height above the shoe never falls; every step keeps its window.
+    r = float(timoshenko(16 * INCH, 0.875 * 0.375 * INCH, 35000 * PSI, 0.01))
+    j = uniform(100, collapse=r)
+    hole = Hole(RHO_MUD)
+    limit = 240e3
+    w = fill_window(j, hole, Closure(0), RHO_W, limit, 10e3, 1.125)
+    s = fill_schedule(j, hole, Closure(0), RHO_W, limit, 10e3, 1.125, window=w)
+    assert s.feasible
+    z = np.cumsum(j.length)
+    height = z - s.fill_level
+    assert np.all(np.diff(height) >= -1e-9)
+    tol = 1e-6
+    assert np.all(s.fill_level >= np.nan_to_num(w.min_fill_level) - tol)
+    assert np.all(s.fill_level <= w.max_fill_level + tol)
+    loads = running_loads(j, hole, Closure(0), RHO_W, s.fill_level)
+    assert_allclose(loads.string_load, s.string_load, rtol=1e-9)
+    assert np.all(loads.string_load <= limit * (1 + 1e-12))
+    assert np.all(loads.collapse_max * 1.125 <= r * (1 + 1e-9))
+    assert len(s.top_ups) >= 1
+    for t in s.top_ups:
+        assert t.volume > 0
+        # the volume added is the bore volume between the old and new surface
+        k = t.joint - 1
+        before = z[k] - height[k - 1]
+        assert_allclose(t.volume, np.pi / 4 * j.bore[0] ** 2 * (before - t.level_after),
+                        rtol=1e-9)
+
+
+def test_switch_point_is_first_joint_over_the_limit():
+    # Definition (mechanics reference): the first joint at which the
+    # open-ended load exceeds the capacity, where floating must begin.
+    j = uniform(60)
+    hole = Hole(RHO_MUD)
+    load = running_loads(j, hole, Closure()).string_load
+    per_joint = j.weight[0] * (1 - RHO_MUD / STEEL)
+    limit = 20.5 * per_joint
+    assert switch_point(load, limit) == 21
+    assert switch_point(load, 1e12) == 0
+
+
+def test_check_valve_rating_limits_the_empty_column():
+    # Derived: at a float shoe the valve holds P_o(Z) - P_i(Z); with a rating
+    # Rv, h_max = Z - (rho_m g Z - Rv) / (rho_w g) where that is binding.
+    j = uniform(100)
+    hole = Hole(RHO_MUD)
+    rv = 500 * PSI
+    w = fill_window(j, hole, Closure(0, rv), RHO_W, 1e9, -1e12)
+    z = np.cumsum(j.length)
+    bind = RHO_MUD * G * z > rv
+    assert_allclose(w.max_fill_level[bind], (z - (RHO_MUD * G * z - rv) / (RHO_W * G))[bind],
+                    rtol=1e-12)
+    assert w.empty_limit[int(np.flatnonzero(bind)[0])] == "check valve"
+
+
+def test_air_filled_string_with_collapse_risk_has_no_window():
+    # Derived: with nothing to add (fill density 0), a pipe whose empty
+    # collapse load exceeds R/DF can never be made safe.
+    j = uniform(150, collapse=2e6)
+    w = fill_window(j, Hole(RHO_MUD), Closure(0), 0.0, 1e9, -1e12, 1.0)
+    assert not np.all(w.feasible)
+    k = int(np.flatnonzero(~w.feasible)[0])
+    assert RHO_MUD * G * np.cumsum(j.length)[k] > 2e6
+
+
+def test_empty_run_reports_collapse_and_floating():
+    # Derived: empty collapse begins where rho_m g Z > R/DF; the empty string
+    # load w Z - rho_m g A_o Z is negative from the first joint for this
+    # thin pipe (w < rho_m g A_o per metre).
+    r = 2.0e6
+    j = uniform(100, collapse=r)
+    e = empty_run(j, Hole(RHO_MUD), Closure(0), RHO_W, 0.0, 1.0)
+    z = np.cumsum(j.length)
+    assert e.collapse_step == int(np.flatnonzero(RHO_MUD * G * z > r)[0]) + 1
+    assert e.negative_step == 1
+
+
+def test_bore_volume_round_trip():
+    # Identity: the height <-> volume map is monotone and invertible.
+    j = uniform(10)
+    geo = string_geometry(j, Closure(0))
+    h = np.linspace(0, 60, 13)
+    assert_allclose(height_for_bore_volume(geo, bore_volume_below(geo, h)), h, atol=1e-9)
+
+
+@settings(max_examples=25, deadline=None)
+@given(limit=st.floats(120e3, 600e3), mud=st.floats(1050, 1400))
+def test_schedule_result_matches_pressure_area_engine(limit, mud):
+    # Identity: the schedule's string load (empty load + fill weight) equals
+    # the pressure-area sum with the same fill levels.
+    j = uniform(60, collapse=3e6)
+    hole = Hole(mud)
+    s = fill_schedule(j, hole, Closure(2), RHO_W, limit, 0.0, 1.0)
+    loads = running_loads(j, hole, Closure(2), RHO_W, np.nan_to_num(s.fill_level))
+    assert_allclose(loads.string_load, s.string_load, rtol=1e-9, atol=1e-6)

@@ -1,0 +1,63 @@
+"""Two-stage setting (rigplan.staging)."""
+
+import numpy as np
+from numpy.testing import assert_allclose
+
+from rigplan.axial import running_loads
+from rigplan.staging import landing_string_load, plan_two_stages
+from rigplan.stringmodel import G, Closure, Hole, JointArrays
+
+INCH = 0.0254
+STEEL = 7850.0
+
+
+def uniform(n, od=14 * INCH, wall=0.375 * INCH, length=6.0):
+    d = od - 2 * wall
+    w = STEEL * G * np.pi / 4 * (od ** 2 - d ** 2) * length
+    f = lambda v: np.full(n, float(v))
+    return JointArrays(label=tuple(f"J{i + 1}" for i in range(n)), kind=("blank",) * n,
+                       length=f(length), od=f(od), bore=f(d), weight=f(w),
+                       collapse_rating=f(np.nan), burst_rating=f(np.nan),
+                       body_rating=f(np.nan), connection_rating=f(np.nan))
+
+
+def test_landing_string_buoyed_weight():
+    # Identity (ADE ch. 7, buoyancy of an open pipe): fully submerged, the
+    # load is w L (1 - rho_f / rho_s); above the fluid level it is w L.
+    hole = Hole(1100.0)
+    assert_allclose(landing_string_load(300.0, 210.0, STEEL, hole),
+                    210.0 * 300.0 * (1 - 1100.0 / STEEL), rtol=1e-12)
+    dry = Hole(1100.0, fluid_level=500.0)
+    assert_allclose(landing_string_load(300.0, 210.0, STEEL, dry), 210.0 * 300.0, rtol=1e-12)
+
+
+def test_best_split_matches_brute_force_and_closed_form():
+    # Derived for a uniform open string (BF = 1 - rho/rho_s, buoyed weight
+    # per joint b, landing string buoyed per metre q, total length Z):
+    #   stage 1 peak(p) = b p + q (Z - 6 p)   (lowered to depth)
+    #   stage 2 peak(p) = b (N - p)
+    # The least margin max_p min(...) is found by brute force over every p.
+    n = 160
+    j = uniform(n)
+    hole = Hole(1150.0)
+    wpl = 220.0
+    limit = 0.6 * running_loads(j, hole, Closure()).string_load[-1]
+    plan = plan_two_stages(j, hole, limit, wpl, 2e6, STEEL, 1.0)
+    b = j.weight[0] * (1 - 1150.0 / STEEL)
+    q = wpl * (1 - 1150.0 / STEEL)
+    z = 6.0 * n
+    p = np.arange(1, n)
+    s1 = np.maximum(b * p, b * p + q * (z - 6.0 * p))
+    s2 = b * (n - p)
+    m = np.minimum((limit - s1) / limit, (limit - s2) / limit)
+    best = int(p[np.argmax(m)])
+    assert plan.feasible
+    assert_allclose(plan.least_margin, m.max(), rtol=1e-9)
+    assert abs(plan.split - best) <= 1
+    assert_allclose(plan.stage2_peak, b * (n - plan.split), rtol=1e-9)
+
+
+def test_unrated_landing_string_is_refused():
+    # Rule of the project: an unrated part is never assumed.
+    plan = plan_two_stages(uniform(20), Hole(1100.0), 1e6, 200.0, float("nan"))
+    assert not plan.feasible and "no tensile rating" in plan.reason
