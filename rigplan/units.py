@@ -243,6 +243,22 @@ _RE_THOUSANDS = re.compile(r"^[+-]?\d{1,3}(?:,\d{3})+(?:\.\d*)?(?=\D|$)")
 _RE_DECIMAL_COMMA = re.compile(r"^[+-]?\d*,\d+")
 
 
+_VULGAR_FRACTIONS = {"\u00bd": "1/2", "\u00bc": "1/4", "\u00be": "3/4", "\u215b": "1/8",
+                     "\u215c": "3/8", "\u215d": "5/8", "\u215e": "7/8"}
+_MARKS = {"\u2032": "'", "\u2019": "'", "\u2018": "'", "\u2033": '"', "\u201c": '"',
+          "\u201d": '"', "\u00a0": " "}
+
+
+def _normalize_marks(text: str) -> str:
+    """Typographic feet/inch marks and vulgar fractions (9\u215d) to plain text."""
+    for mark, plain in _MARKS.items():
+        text = text.replace(mark, plain)
+    for frac, plain in _VULGAR_FRACTIONS.items():
+        text = re.sub(r"(?<=\d)\s*" + frac, "-" + plain, text)
+        text = text.replace(frac, plain)
+    return text
+
+
 def describe(kind: str) -> str:
     """What a quantity of ``kind`` is, with an example: ``"a length (e.g. 1200 ft or 365 m)"``."""
     _check_kind(kind)
@@ -368,7 +384,7 @@ def parse(value, kind: str, default_unit: str | None = None, where: str = "") ->
             raise InputError(where, f"a bare number needs a unit here: expected {_describe(kind)}, got {value!r}")
         return _convert(number, unit, kind, where, f"{value!r} {unit}".strip())
 
-    text = value.strip()
+    text = _normalize_marks(value.strip())
     if not text:
         raise InputError(where, f"expected {_describe(kind)}, got an empty value")
     if "," in text:

@@ -96,6 +96,11 @@ NOTATIONS = [
     ("85 %", "dimensionless", None, 0.85),
     (0.85, "dimensionless", None, 0.85),
     ("-0.5 m", "length", None, -0.5),
+    # typographic marks and vulgar fractions as word processors write them
+    ("9\u215d in", "diameter", None, 9.625 * INCH),
+    ("\u215d in", "diameter", None, 0.625 * INCH),
+    ("20\u2032 6\u2033", "length", None, 20 * FOOT + 6 * INCH),
+    ("20\u2019 6\u00bd\u201d", "length", None, 20 * FOOT + 6.5 * INCH),
 ]
 
 

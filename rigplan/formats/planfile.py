@@ -82,7 +82,7 @@ the hole, a design factor below 1, float-equipment joints without a
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass, field, fields
+from dataclasses import dataclass, fields
 from pathlib import Path
 
 from rigplan.errors import InputError

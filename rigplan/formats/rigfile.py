@@ -70,8 +70,8 @@ def parse_rig(text: str, source: str = "<rig>"):
 
 
 def _rewhere(exc: InputError, where: str) -> InputError:
-    """An engine-side InputError re-issued with the file's key path."""
-    return InputError(where, exc.message)
+    """An engine-side InputError re-issued with the file's name in front."""
+    return InputError(where, str(exc))
 
 
 def rig_from_data(data: dict, source: str):
@@ -152,17 +152,14 @@ def rig_from_data(data: dict, source: str):
         if not math.isnan(od) and not math.isnan(bore) and bore >= od:
             raise InputError(lt.where("bore"), f"expected a bore smaller than the od, got "
                                                f"{lt.raw('bore')!r} with od {lt.raw('od')!r}")
+        weight = lt.quantity("weight_per_length", "linear_weight", required=True, positive=True)
+        tensile = lt.quantity("tensile_rating", "force", default=math.nan, allow_unrated=True,
+                              positive=True)
+        density = lt.quantity("density", "density", default=DEFAULT_LANDING_STRING_DENSITY,
+                              positive=True)
         try:
-            landing = LandingString(
-                name=lname,
-                weight_per_length=lt.quantity("weight_per_length", "linear_weight",
-                                              required=True, positive=True),
-                tensile_rating=lt.quantity("tensile_rating", "force", default=math.nan,
-                                           allow_unrated=True, positive=True),
-                density=lt.quantity("density", "density", default=DEFAULT_LANDING_STRING_DENSITY,
-                                    positive=True),
-                od=od, bore=bore,
-            )
+            landing = LandingString(name=lname, weight_per_length=weight, tensile_rating=tensile,
+                                    density=density, od=od, bore=bore)
         except InputError as exc:
             raise _rewhere(exc, f"{source}: landing_string") from None
 

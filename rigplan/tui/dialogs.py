@@ -1,0 +1,138 @@
+"""Small modal screens: a one-line prompt, a yes/no question, the key list."""
+
+from __future__ import annotations
+
+from typing import Callable
+
+from textual.app import ComposeResult
+from textual.binding import Binding
+from textual.containers import Horizontal, Vertical, VerticalScroll
+from textual.screen import ModalScreen
+from textual.widgets import Button, Input, Label, Static
+
+from rigplan.errors import InputError
+
+
+def _unfocusable(button: Button) -> Button:
+    """Buttons answer to the mouse; the keys are the dialog's own."""
+    button.can_focus = False
+    return button
+
+
+class PromptScreen(ModalScreen):
+    """Ask for one value.  Enter accepts, Escape cancels.
+
+    ``parse`` turns the text into the result; when it raises InputError the
+    message is shown under the field and the text stays as typed.
+    """
+
+    BINDINGS = [Binding("escape", "cancel", "Cancel", id="prompt.cancel")]
+
+    def __init__(self, title: str, value: str = "", hint: str = "",
+                 parse: Callable[[str], object] | None = None, prompt_id: str = "prompt"):
+        super().__init__(id=prompt_id)
+        self._title = title
+        self._value = value
+        self._hint = hint
+        self._parse = parse
+
+    def compose(self) -> ComposeResult:
+        with Vertical(classes="dialog"):
+            yield Label(self._title, classes="dialog-title")
+            yield Input(value=self._value, id="prompt-input", select_on_focus=True)
+            if self._hint:
+                yield Static(self._hint, classes="dialog-hint")
+            yield Static("", id="prompt-error", classes="dialog-error")
+            yield Static("Enter: accept   Esc: cancel", classes="dialog-keys")
+
+    def on_mount(self) -> None:
+        self.query_one(Input).focus()
+
+    def on_input_submitted(self, event: Input.Submitted) -> None:
+        event.stop()
+        text = event.value
+        if self._parse is None:
+            self.dismiss(text)
+            return
+        try:
+            result = self._parse(text)
+        except InputError as exc:
+            self.query_one("#prompt-error", Static).update(str(exc))
+            return
+        self.dismiss(result)
+
+    def action_cancel(self) -> None:
+        self.dismiss(None)
+
+
+class ConfirmScreen(ModalScreen):
+    """A yes/no question: y or Enter for yes, n or Escape for no."""
+
+    BINDINGS = [
+        Binding("y,enter", "answer(True)", "Yes", id="confirm.yes"),
+        Binding("n,escape", "answer(False)", "No", id="confirm.no"),
+    ]
+
+    def __init__(self, question: str, yes: str = "Yes", no: str = "No"):
+        super().__init__(id="confirm")
+        self._question = question
+        self._yes, self._no = yes, no
+
+    def compose(self) -> ComposeResult:
+        with Vertical(classes="dialog"):
+            yield Label(self._question, classes="dialog-title")
+            with Horizontal(classes="dialog-buttons"):
+                yield _unfocusable(Button(f"{self._yes} (y)", id="yes", variant="primary"))
+                yield _unfocusable(Button(f"{self._no} (n)", id="no"))
+
+    def on_button_pressed(self, event: Button.Pressed) -> None:
+        self.dismiss(event.button.id == "yes")
+
+    def action_answer(self, value: bool) -> None:
+        self.dismiss(value)
+
+
+class QuitScreen(ModalScreen):
+    """Unsaved plan edits on quitting: save, discard or stay."""
+
+    BINDINGS = [
+        Binding("s", "answer('save')", "Save and quit", id="quit.save"),
+        Binding("d", "answer('discard')", "Quit without saving", id="quit.discard"),
+        Binding("escape,c", "answer(None)", "Stay", id="quit.stay"),
+    ]
+
+    def compose(self) -> ComposeResult:
+        with Vertical(classes="dialog"):
+            yield Label("The plan has edits not saved to its file.", classes="dialog-title")
+            with Horizontal(classes="dialog-buttons"):
+                yield _unfocusable(Button("Save and quit (s)", id="save", variant="primary"))
+                yield _unfocusable(Button("Quit without saving (d)", id="discard", variant="error"))
+                yield _unfocusable(Button("Stay (Esc)", id="stay"))
+
+    def on_button_pressed(self, event: Button.Pressed) -> None:
+        self.dismiss(None if event.button.id == "stay" else event.button.id)
+
+    def action_answer(self, value) -> None:
+        self.dismiss(value)
+
+
+class HelpScreen(ModalScreen):
+    """Every key of the app, by area."""
+
+    BINDINGS = [Binding("escape,q,question_mark,f1", "close", "Close", id="help.close")]
+
+    def __init__(self, sections):
+        super().__init__(id="help")
+        self._sections = sections
+
+    def compose(self) -> ComposeResult:
+        with VerticalScroll(classes="dialog help"):
+            yield Label("Keys", classes="dialog-title")
+            for title, rows in self._sections:
+                yield Label(title, classes="help-section")
+                text = "\n".join(f"  {keys:<16} {what}" for keys, what in rows)
+                yield Static(text, classes="help-keys")
+            yield Static("Esc, q or ? closes this list.", classes="dialog-keys")
+
+    def action_close(self) -> None:
+        self.dismiss(None)
