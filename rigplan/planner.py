@@ -104,6 +104,8 @@ class LandingPlan:
         exceed the limit (0: never): where floating must begin
     neutral_point : depth of the neutral point when landed with the
         set-down weight [m] (nan: all in tension)
+    landed : StepProfile of the landed string with the set-down weight
+        (true force and effective tension at every joint face)
     cautions : the planning cautions
     """
 
@@ -122,6 +124,7 @@ class LandingPlan:
     switch_joint: int
     neutral_point: float
     grouting: object = None
+    landed: object = None
     unrated: tuple = ()
     reasons: tuple = ()
     notes: tuple = ()
@@ -375,7 +378,7 @@ def plan_landing(joints: JointArrays, hole: Hole, rig: Rig, settings: Settings,
         verdict=verdict, governing=governing, path=cap, dead_load=hoist.dead_load,
         joints=joints, hole=hole, settings=settings, open_check=open_check,
         chosen=chosen, float_options=tuple(options), best_float=best, stages=stages,
-        switch_joint=switch, neutral_point=neutral, grouting=grouting,
+        switch_joint=switch, neutral_point=neutral, grouting=grouting, landed=prof,
         unrated=unrated, reasons=tuple(reasons), notes=tuple(dict.fromkeys(notes)),
     )
 

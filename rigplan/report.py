@@ -62,6 +62,7 @@ def plan_dict(landing, plan=None, warnings=(), rig_name: str = "") -> dict:
     } for k in range(n)]
     shoe = loads.shoe_depth[-1]
     top_depth = shoe - np.cumsum(j.length)
+    landed = landing.landed
     tcap = np.where(np.isnan(j.connection_rating) | np.isnan(j.body_rating), np.nan,
                     np.fmin(j.connection_rating, j.body_rating))
     connections = [{
@@ -71,6 +72,8 @@ def plan_dict(landing, plan=None, warnings=(), rig_name: str = "") -> dict:
         "capacity": _f(tcap[i]), "connection_rating": _f(j.connection_rating[i]),
         "body_rating": _f(j.body_rating[i]),
         "utilization": _f(chk.tension_utilization[i]),
+        "landed_true_force": _f(landed.true_force_top[i]) if landed is not None else None,
+        "landed_effective_tension": _f(landed.effective_top[i]) if landed is not None else None,
     } for i in range(n)]
     joints = [{
         "joint": i + 1, "label": j.label[i], "kind": j.kind[i],
@@ -118,7 +121,11 @@ def plan_dict(landing, plan=None, warnings=(), rig_name: str = "") -> dict:
     opt = landing.best_float
     if opt is not None:
         w = opt.window
+        carried = np.concatenate(([0.0], opt.schedule.fill_volume[:-1]))
+        add_lo = np.maximum(w.min_volume - carried, 0.0)
+        add_hi = w.max_volume - carried
         out["fill_window"] = [{
+            "volume_to_add_min": _f(add_lo[k]), "volume_to_add_max": _f(add_hi[k]),
             "joint": int(w.joint[k]), "min_fill_level": _f(w.min_fill_level[k]),
             "max_fill_level": _f(w.max_fill_level[k]), "min_volume": _f(w.min_volume[k]),
             "max_volume": _f(w.max_volume[k]), "closing_limit": w.closing_limit[k],

@@ -375,7 +375,7 @@ def rig_tables(session) -> list:
     in_use = lp.path.path if lp is not None else session.path_name
     out = []
     for cap in rig_capacity(session.rig):
-        rows = [(name, fmt(rating, "force", sys_), fmt(allowed, "force", sys_),
+        rows = [(name, number(rating, "force", sys_), number(allowed, "force", sys_),
                  name == cap.governing) for name, _kind, rating, allowed in cap.components]
         out.append((cap.path, cap.path == in_use, cap.governing, rows, tuple(cap.unrated),
                     (fmt(cap.string_limit, "force", sys_), fmt(cap.hook_limit, "force", sys_))))

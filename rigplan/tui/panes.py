@@ -1,0 +1,237 @@
+"""The app's tab contents: overview, string and tally grid, running, rig.
+
+Each pane has ``show(session)``, which redraws it from the session's landing
+plan; the texts come from :mod:`rigplan.tui.present`.
+"""
+
+from __future__ import annotations
+
+from rich.table import Table
+from rich.text import Text
+from textual.app import ComposeResult
+from textual.containers import Horizontal, Vertical, VerticalScroll
+from textual.widgets import DataTable, Static
+
+from rigplan import units as U
+from rigplan.tui import present as P
+
+
+class OverviewPane(VerticalScroll):
+    """Verdict, governing limit, hoisting path and what the crew does next."""
+
+    def compose(self) -> ComposeResult:
+        yield Static("", id="verdict")
+        yield Static("", id="governing", classes="line")
+        yield Static("", id="path-line", classes="line")
+        yield Static("", id="next-action", classes="line next")
+        yield Static("", id="fill-plan", classes="line")
+        yield Static("", id="float-line", classes="line")
+        yield Static("", id="switch-line", classes="line")
+        yield Static("", id="progress", classes="line")
+        yield Static("", id="reasons", classes="line dim")
+        yield Static("", id="warnings", classes="line dim")
+
+    def show(self, session) -> None:
+        lp = session.landing
+        sys_ = session.units
+        verdict = self.query_one("#verdict", Static)
+        verdict.remove_class("good", "fair", "bad")
+        if lp is None:
+            verdict.update("NO PLAN")
+            verdict.add_class("bad")
+            self.query_one("#governing", Static).update(f"The planner refused the input: {session.error}")
+            for wid in ("#path-line", "#next-action", "#fill-plan", "#float-line",
+                        "#switch-line", "#reasons"):
+                self.query_one(wid, Static).update("")
+        else:
+            verdict.update(P.verdict_text(lp))
+            verdict.add_class(P.VERDICT_CLASS.get(lp.verdict, "fair"))
+            self.query_one("#governing", Static).update(P.governing_text(lp, sys_))
+            self.query_one("#path-line", Static).update(P.path_text(lp, sys_))
+            self.query_one("#next-action", Static).update(
+                "Next for the crew: " + P.fill_instruction(lp, session.step, sys_))
+            self.query_one("#fill-plan", Static).update(P.fill_plan_text(lp, sys_))
+            self.query_one("#float-line", Static).update(P.float_text(lp, sys_))
+            self.query_one("#switch-line", Static).update(P.switch_text(lp))
+            notes = list(lp.reasons) + [f"unrated: {u}" for u in lp.unrated[:8]]
+            if len(lp.unrated) > 8:
+                notes.append(f"... and {len(lp.unrated) - 8} more unrated parts")
+            self.query_one("#reasons", Static).update(
+                Text("\n".join(notes)) if notes else "")
+        nxt = session.next_joint()
+        total = len(session.plan.running_joints())
+        self.query_one("#progress", Static).update(
+            f"Run log: {session.step} of {total} joints in the hole, "
+            f"{len(session.state.rejected)} set aside, "
+            f"{len(session.state.observations)} weight readings; next joint: "
+            f"{nxt.label if nxt is not None else 'none (all in)'}"
+            + ("   [plan edited, not saved: s on the String tab]" if session.dirty else ""))
+        self.query_one("#warnings", Static).update(
+            Text("\n".join(session.warnings)) if session.warnings else "")
+
+
+class _Grid(DataTable):
+    """A DataTable redrawn from ``(row key, cells)`` rows, updating in place
+    when the rows and columns are unchanged."""
+
+    def __init__(self, **kwargs):
+        super().__init__(zebra_stripes=True, **kwargs)
+        self._columns_sig = None
+        self._rows_sig = None
+        self._cells = {}
+        self._hl = None
+
+    def load(self, columns, rows, highlight=None) -> None:
+        """columns: ``[(key, title)]``; rows: ``[(key, [cells])]``."""
+        col_sig = tuple(columns)
+        row_sig = tuple(k for k, _ in rows)
+        keys = [c[0] for c in columns]
+        if col_sig != self._columns_sig or row_sig != self._rows_sig:
+            cursor = self.cursor_coordinate
+            self.clear(columns=col_sig != self._columns_sig)
+            if col_sig != self._columns_sig:
+                for key, title in columns:
+                    self.add_column(title, key=key)
+            self._cells = {}
+            for key, cells in rows:
+                self.add_row(*self._styled(key, cells, highlight), key=key)
+                self._cells[key] = list(cells)
+            self._columns_sig, self._rows_sig = col_sig, row_sig
+            self._hl = highlight
+            if self.row_count:
+                self.move_cursor(row=min(cursor.row, self.row_count - 1),
+                                 column=min(cursor.column, len(columns) - 1), animate=False)
+            return
+        for key, cells in rows:
+            old = self._cells.get(key)
+            styled = self._styled(key, cells, highlight)
+            was_hl = self._hl == key
+            if old != cells or key == highlight or was_hl:
+                for ck, value in zip(keys, styled):
+                    self.update_cell(key, ck, value)
+                self._cells[key] = list(cells)
+        self._hl = highlight
+
+    def _styled(self, key, cells, highlight):
+        if key != highlight:
+            return list(cells)
+        return [Text(c, style="bold reverse") for c in cells]
+
+
+class TallyPane(Vertical):
+    """The string joint by joint with its loads; plan edits."""
+
+    def compose(self) -> ComposeResult:
+        yield Static("", id="tally-status", classes="line")
+        yield _Grid(id="tally-table", cursor_type="cell")
+
+    @property
+    def table(self) -> _Grid:
+        return self.query_one("#tally-table", _Grid)
+
+    def show(self, session) -> None:
+        sys_ = session.units
+        columns = [(key, P.column_title(title, kind, sys_)) for key, title, kind, _ in P.TALLY_COLUMNS]
+        rows = P.tally_cells(session)
+        nxt = session.next_joint()
+        self.table.load(columns, rows, highlight=nxt.label if nxt is not None else None)
+        status = (f"{len(rows)} joints, {sys_.upper()} units.  e/Enter edit  i insert  d delete  "
+                  f"[ ] move  t import tally  s save")
+        if session.dirty:
+            status += "   * edited, not saved"
+        self.query_one("#tally-status", Static).update(status)
+
+    def cursor_cell(self):
+        """(row label, column key) under the cursor, or (None, None)."""
+        t = self.table
+        if not t.row_count:
+            return None, None
+        cell = t.coordinate_to_cell_key(t.cursor_coordinate)
+        return cell.row_key.value, cell.column_key.value
+
+    def focus_row(self, label: str) -> None:
+        t = self.table
+        try:
+            row = t.get_row_index(label)
+        except Exception:
+            return
+        t.move_cursor(row=row, animate=False)
+
+
+class RunningPane(Horizontal):
+    """Joint by joint while running: next joint, hook load, fill, weight checks."""
+
+    def compose(self) -> ComposeResult:
+        yield _Grid(id="run-table", cursor_type="row")
+        with VerticalScroll(id="run-side"):
+            yield Static("", id="run-summary")
+            yield Static("", id="weight-check")
+            yield Static("r run   z undo   j set aside   w weight reading   b band",
+                         id="run-keys", classes="dim")
+
+    @property
+    def table(self) -> _Grid:
+        return self.query_one("#run-table", _Grid)
+
+    def show(self, session) -> None:
+        sys_ = session.units
+        columns = [(key, P.column_title(title, kind, sys_)) for key, title, kind in P.RUN_COLUMNS]
+        rows = [(label, [cells[c[0]] for c in P.RUN_COLUMNS])
+                for label, cells in P.run_cells(session)]
+        nxt = session.next_joint()
+        self.table.load(columns, rows, highlight=nxt.label if nxt is not None else None)
+        if nxt is not None:
+            try:
+                self.table.move_cursor(row=self.table.get_row_index(nxt.label), animate=False)
+            except Exception:
+                pass
+        self.query_one("#run-summary", Static).update("\n".join(P.running_summary(session)))
+        head, causes = P.weight_text(session.last_check, sys_)
+        box = self.query_one("#weight-check", Static)
+        box.set_class(bool(session.last_check and session.last_check.outside), "warning")
+        box.update("\n".join((head,) + causes) if head else "")
+
+    def cursor_label(self):
+        t = self.table
+        if not t.row_count:
+            return None
+        return t.coordinate_to_cell_key(t.cursor_coordinate).row_key.value
+
+
+class RigPane(VerticalScroll):
+    """Each hoisting path: components, ratings at the hook, allowed string load."""
+
+    def compose(self) -> ComposeResult:
+        yield Static("", id="rig-view")
+
+    def show(self, session) -> None:
+        rig = session.rig
+        parts = []
+        for name, in_use, governing, rows, unrated, (s_lim, h_lim) in P.rig_tables(session):
+            title = f"{name}{'  (in use)' if in_use else ''}"
+            t = Table(title=title, title_justify="left", expand=False)
+            t.add_column("Component")
+            t.add_column(f"Rating at hook [{U.unit_label('force', session.units)}]", justify="right")
+            t.add_column(f"Allowed string load [{U.unit_label('force', session.units)}]",
+                         justify="right")
+            t.add_column("")
+            for comp, rating, allowed, gov in rows:
+                t.add_row(comp, rating, allowed,
+                          "governs" if gov else "", style="bold" if gov else None)
+            for u in unrated:
+                t.add_row(u, "unrated", "not counted", "")
+            t.caption = (f"string limit {s_lim}, hook limit {h_lim}; governed by "
+                         f"{governing or 'nothing rated'}")
+            t.caption_justify = "left"
+            parts.append(t)
+        ls = rig.landing_string
+        from rich.console import Group
+        head = Text(f"Rig: {rig.name}" + (f"   {rig.notes}" if rig.notes else ""), style="bold")
+        extra = []
+        if ls is not None:
+            extra.append(Text(
+                f"Landing string: {ls.name}, {P.fmt(ls.weight_per_length, 'linear_weight', session.units)}"
+                f", tensile rating {P.fmt(ls.tensile_rating, 'force', session.units)}"))
+        else:
+            extra.append(Text("No landing string in the rig profile (no staged setting)."))
+        self.query_one("#rig-view", Static).update(Group(head, *parts, *extra))
