@@ -15,14 +15,14 @@ from rigplan.errors import InputError
 from rigplan.stringmodel import JointSpec, StringPlan
 
 #: Where the bundled demo lives: the repository's ``rigs/`` and ``strings/``
-#: when run from a checkout, else the copies installed with the package.
+#: (an editable install from the checkout), else those of the current folder.
 _PACKAGE = Path(__file__).resolve().parent
 _REPO = _PACKAGE.parent
 
 
 def demo_dir(kind: str) -> Path:
     """Folder of the bundled demo ``rigs`` or ``strings``."""
-    for base in (_REPO / kind, _PACKAGE / "data" / kind):
+    for base in (_REPO / kind, Path.cwd() / kind):
         if base.is_dir() and any(base.glob("*.toml")):
             return base
     raise InputError(kind, f"the bundled demo {kind} folder is missing")

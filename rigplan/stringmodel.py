@@ -78,6 +78,7 @@ class JointSpec:
     dmax: float | None = None               # measured largest OD [m]
     dmin: float | None = None               # measured smallest OD [m]
     rejected: bool = False                  # set aside on site: not run
+    note: str = ""                          # tally note (reason for rejection, etc.)
 
     @property
     def run_length(self) -> float:

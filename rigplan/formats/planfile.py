@@ -46,7 +46,7 @@ weight (w)::
     label = "J1"                 # as a section without joint_length/count,
     length = "20 ft"             # plus label (default J<n>), length (L,
     measured_length = "..."      # required), measured_length (L) and
-    rejected = false             # rejected (true/false)
+    rejected = false             # rejected (true/false), note (free text)
 
     [float_equipment]            # optional; none when absent
     type = "float_collar"        # none | float_shoe | float_collar
@@ -99,7 +99,7 @@ COMMON_JOINT_KEYS = ("kind", "material", "od", "wall", "connection", "weld_effic
                      "joint_weight", "weight_per_length", "ellipticity", "measured_wall", "bore",
                      "dmax", "dmin")
 SECTION_KEYS = COMMON_JOINT_KEYS + ("joint_length", "count")
-JOINT_KEYS = ("label",) + COMMON_JOINT_KEYS + ("length", "measured_length", "rejected")
+JOINT_KEYS = ("label",) + COMMON_JOINT_KEYS + ("length", "measured_length", "rejected", "note")
 FLOAT_KEYS = ("type", "collar_joint", "valve_rating")
 FLOAT_TYPES = ("none", "float_shoe", "float_collar")
 RUNNING_KEYS = ("fill_density", "fill_alternatives", "min_running_weight", "set_down_weight",
@@ -260,6 +260,7 @@ def _joints_one_by_one(tables) -> list:
             length=t.quantity("length", "length", required=True, positive=True),
             measured_length=t.quantity("measured_length", "length", default=None, positive=True),
             rejected=t.boolean("rejected"),
+            note=t.text("note", default=""),
             **common,
         ))
     return joints
@@ -280,6 +281,8 @@ def _apply_tally(joints: list, rows, tally_source: str) -> list:
             raise InputError(f"{where}, kind", f"the tally says {row.kind!r} but the plan has "
                                                f"{j.kind!r} for {j.label}: correct one of them")
         changes = {"rejected": row.status == "rejected"}
+        if getattr(row, "note", ""):
+            changes["note"] = row.note
         if row.measured_length is not None:
             changes["measured_length"] = row.measured_length
         if row.measured_wall is not None:
@@ -511,6 +514,8 @@ def _joint_doc(j: JointSpec, system: str, as_section: bool) -> dict:
             d["measured_length"] = quantity_text(j.measured_length, "length", system)
         if j.rejected:
             d["rejected"] = True
+        if j.note:
+            d["note"] = j.note
     d["connection"] = j.connection
     if j.weld_efficiency is not None:
         d["weld_efficiency"] = float(j.weld_efficiency)

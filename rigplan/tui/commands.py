@@ -115,7 +115,7 @@ class RigplanCommands(Provider):
     """Command palette entries: every action in :data:`ACTIONS`."""
 
     def _command(self, spec: ActionSpec):
-        return partial(self.app.run_action, spec.action)
+        return partial(self.app.run_from_palette, spec.action)
 
     async def discover(self):
         for spec in ACTIONS:

@@ -1,0 +1,470 @@
+"""The rigplan terminal app: plan, run and record a casing or screen string.
+
+:func:`run_app` is what the command line calls; :func:`build_app` makes the
+app for tests.  The app shows what the engine returns (through
+:class:`rigplan.tui.session.JobSession`) and computes no physics.  Every
+run, set-aside, undo and weight reading is committed to the run log as it is
+entered; opening the same plan again resumes from the log.
+
+textual-plot is imported only when the Charts tab is first shown.
+"""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+from textual.app import App, ComposeResult
+from textual.containers import Vertical
+from textual.screen import ModalScreen
+from textual.widgets import Footer, Header, Static, TabbedContent, TabPane
+
+from rigplan import CAUTION
+from rigplan import units as U
+from rigplan.errors import InputError
+from rigplan.runlog import RunLogWriteError
+from rigplan.tui import present as P
+from rigplan.tui.commands import ACTIONS, GLOBAL, RUNNING, TALLY, RigplanCommands, bindings, help_sections
+from rigplan.tui.dialogs import ConfirmScreen, HelpScreen, PromptScreen, QuitScreen
+from rigplan.tui.panes import OverviewPane, RigPane, RunningPane, TallyPane
+from rigplan.tui.session import EDITABLE_FIELDS, JobSession
+
+TABS = ("overview", "tally", "running", "charts", "rig")
+_CONTEXT_TABS = {RUNNING: ("overview", "running"), TALLY: ("tally",)}
+_CONTEXT_OF = {a.name: a.context for a in ACTIONS}
+_HOME_TAB = {RUNNING: "running", TALLY: "tally"}
+
+
+class ChartsPane(Vertical):
+    """Holds the charts once loaded (textual-plot is imported on first show)."""
+
+    def __init__(self, **kwargs):
+        super().__init__(**kwargs)
+        self.view = None
+
+    def compose(self) -> ComposeResult:
+        yield Static("Charts load when this tab is first shown.", id="charts-placeholder")
+
+    async def load(self) -> None:
+        if self.view is None:
+            from rigplan.tui.charts import ChartsView
+            await self.query_one("#charts-placeholder").remove()
+            self.view = ChartsView(id="charts-view")
+            await self.mount(self.view)
+
+    def show(self, session) -> None:
+        if self.view is not None:
+            self.view.show(session)
+
+
+class RigplanApp(App):
+    """Terminal app for one job (a string plan on a rig)."""
+
+    CSS_PATH = "rigplan.tcss"
+    TITLE = "rigplan"
+    BINDINGS = bindings()
+    COMMANDS = App.COMMANDS | {RigplanCommands}
+
+    def __init__(self, session: JobSession):
+        super().__init__()
+        self.session = session
+        self._stale = set(TABS)
+
+    # -- layout --------------------------------------------------------------
+
+    def compose(self) -> ComposeResult:
+        yield Header()
+        with TabbedContent(initial="overview", id="tabs"):
+            with TabPane("Overview", id="overview"):
+                yield OverviewPane(id="overview-pane")
+            with TabPane("String & tally", id="tally"):
+                yield TallyPane(id="tally-pane")
+            with TabPane("Running", id="running"):
+                yield RunningPane(id="running-pane")
+            with TabPane("Charts", id="charts"):
+                yield ChartsPane(id="charts-pane")
+            with TabPane("Rig", id="rig"):
+                yield RigPane(id="rig-pane")
+        yield Static(CAUTION, id="caution")
+        yield Footer()
+
+    def on_mount(self) -> None:
+        self._tabs = self.query_one("#tabs", TabbedContent)
+        self._caution = self.query_one("#caution", Static)
+        self._panes = {tab: self.query_one(f"#{tab}-pane") for tab in TABS}
+        self.refresh_views()
+
+    def on_unmount(self) -> None:
+        self.session.close()
+
+    @property
+    def active_tab(self) -> str:
+        return self._tabs.active
+
+    def _pane(self, tab: str):
+        return self._panes[tab]
+
+    def refresh_views(self) -> None:
+        """Redraw the visible tab now; the others when next shown."""
+        s = self.session
+        lp = s.landing
+        self.sub_title = (f"{s.plan.name}" + (f", well {s.plan.well}" if s.plan.well else "")
+                          + f"  |  rig {s.rig.name}"
+                          + (f", path {lp.path.path}" if lp is not None else "")
+                          + f"  |  {'US field' if s.units == 'us' else 'SI'} units"
+                          + ("  |  edited, not saved" if s.dirty else ""))
+        self._caution.update(P.cautions_text(lp))
+        self._stale = set(TABS)
+        self._show(self.active_tab)
+        if self.active_tab != "overview":
+            self._show("overview")
+
+    def _show(self, tab: str) -> None:
+        self._pane(tab).show(self.session)
+        self._stale.discard(tab)
+
+    async def on_tabbed_content_tab_activated(self, event: TabbedContent.TabActivated) -> None:
+        tab = event.pane.id
+        if tab == "charts":
+            await self._pane("charts").load()
+            self._stale.add("charts")
+        if tab in self._stale:
+            self._show(tab)
+        if tab == "tally":
+            self._pane("tally").table.focus()
+        elif tab == "running":
+            self._pane("running").table.focus()
+        self.refresh_bindings()
+
+    def check_action(self, action: str, parameters) -> bool | None:
+        ctx = _CONTEXT_OF.get(action)
+        if ctx is None:
+            return True
+        if isinstance(self.screen, ModalScreen) or not hasattr(self, "_tabs"):
+            return False  # a dialog is open: its own keys only
+        if ctx in _CONTEXT_TABS:
+            return self.active_tab in _CONTEXT_TABS[ctx]
+        return True
+
+    async def run_from_palette(self, action: str) -> None:
+        """Command palette: go to the action's tab first, then run it."""
+        ctx = _CONTEXT_OF.get(action.split("(")[0], GLOBAL)
+        if ctx in _CONTEXT_TABS and self.active_tab not in _CONTEXT_TABS[ctx]:
+            self._tabs.active = _HOME_TAB[ctx]
+        await self.run_action(action)
+
+    # -- helpers -------------------------------------------------------------
+
+    def _error(self, exc: Exception) -> None:
+        self.notify(str(exc), severity="error", timeout=8)
+
+    def _committed(self, message: str) -> None:
+        self.refresh_views()
+        self.notify(message, timeout=4)
+
+    # -- global actions -----------------------------------------------------
+
+    def action_show_tab(self, tab: str) -> None:
+        self._tabs.active = tab
+
+    def action_toggle_units(self) -> None:
+        system = self.session.toggle_units()
+        self.refresh_views()
+        self.notify(f"Units: {'US field' if system == 'us' else 'SI'}", timeout=2)
+
+    def action_next_path(self) -> None:
+        name = self.session.cycle_path()
+        self.refresh_views()
+        self.notify(f"Planning with hoisting path {name!r}", timeout=3)
+
+    def action_help(self) -> None:
+        self.push_screen(HelpScreen(help_sections()))
+
+    def action_export_tally(self) -> None:
+        try:
+            path = self.session.export_tally()
+        except (InputError, OSError) as exc:
+            self._error(exc)
+            return
+        self.notify(f"Tally written to {path}", timeout=8)
+
+    async def action_quit(self) -> None:
+        if not self.session.dirty:
+            self.exit()
+            return
+
+        def answer(choice) -> None:
+            if choice == "save":
+                try:
+                    self.session.save_plan()
+                except (InputError, OSError, ValueError) as exc:
+                    self._error(exc)
+                    return
+                self.exit()
+            elif choice == "discard":
+                self.exit()
+
+        self.push_screen(QuitScreen(id="quit"), answer)
+
+    # -- running -------------------------------------------------------------
+
+    def action_record_run(self, prefill: str | None = None) -> None:
+        s = self.session
+        nxt = s.next_joint()
+        if nxt is None:
+            self.notify("Every joint of the plan is in the hole.", severity="warning")
+            return
+        unit = U.unit_label("length", s.units)
+        default = P.fmt(nxt.length, "length", s.units, 2)
+
+        def parse(text: str):
+            t = text.strip()
+            if t == default:
+                return (nxt.length, "planned length accepted")
+            if t == "":
+                return (None, "not measured")
+            v = U.parse(t, "length", unit, f"{nxt.label} measured length")
+            if not v > 0:
+                raise InputError(f"{nxt.label} measured length", f"expected a length > 0, got {t!r}")
+            return (v, "")
+
+        def done(result) -> None:
+            if result is None:
+                return
+            length, note = result
+            try:
+                event_id = s.record_run(length, note)
+            except RunLogWriteError as exc:
+                self._error(exc)
+                # nothing entered is lost: ask again with the same value
+                self.action_record_run(prefill=P.fmt(length, "length", s.units, 4)
+                                       if length is not None else "")
+                return
+            except InputError as exc:
+                self._error(exc)
+                return
+            self._committed(f"{nxt.label} in the hole "
+                            f"({P.fmt(length, 'length', s.units) if length else 'not measured'}), "
+                            f"entry {event_id}")
+
+        self.push_screen(PromptScreen(
+            f"{nxt.label} goes in the hole: measured length",
+            value=default if prefill is None else prefill,
+            hint=f"Enter keeps the planned {default}.  A bare number is in {unit}; "
+                 "20 ft 6 in, 20' 6\" or 6.25 m also work.  Empty: not measured.",
+            parse=parse, prompt_id="prompt-run"), done)
+
+    def action_undo(self) -> None:
+        s = self.session
+        last = s.last_undoable()
+        if last is None:
+            self.notify("Nothing to undo.", severity="warning")
+            return
+        what = (f"the run of {last.label}"
+                + (f" ({P.fmt(last.value, 'length', s.units)})" if last.value is not None else "")
+                if last.kind == "run" else f"setting {last.label} aside ({last.note})")
+
+        def done(yes) -> None:
+            if not yes:
+                return
+            try:
+                event_id = s.undo()
+            except (RunLogWriteError, InputError) as exc:
+                self._error(exc)
+                return
+            self._committed(f"Undone: {what} (entry {event_id})")
+
+        self.push_screen(ConfirmScreen(f"Undo {what}?"), done)
+
+    def _reject_target(self):
+        s = self.session
+        if self.active_tab == "running":
+            label = self._pane("running").cursor_label()
+            if label is not None and not s.in_hole(label) and not s.set_aside(label):
+                spec = s.joint(label)
+                if not spec.rejected:
+                    return spec
+        return s.next_joint()
+
+    def action_reject(self) -> None:
+        s = self.session
+        target = self._reject_target()
+        if target is None:
+            self.notify("No joint left to set aside.", severity="warning")
+            return
+
+        def parse(text: str):
+            if not text.strip():
+                raise InputError("reason", "give the reason the joint is set aside "
+                                           "(e.g. dented pin end, bad thread, short)")
+            return text.strip()
+
+        def done(reason) -> None:
+            if reason is None:
+                return
+            try:
+                event_id = s.reject(target.label, reason)
+            except (RunLogWriteError, InputError) as exc:
+                self._error(exc)
+                return
+            self._committed(f"{target.label} set aside: {reason} (entry {event_id})")
+
+        self.push_screen(PromptScreen(f"Set {target.label} aside: reason", parse=parse,
+                                      prompt_id="prompt-reject"), done)
+
+    def action_observe(self) -> None:
+        s = self.session
+        unit = U.unit_label("force", s.units)
+        predicted = s.predicted_hook_load()
+
+        def parse(text: str):
+            v = U.parse(text.strip(), "force", unit, "weight reading")
+            return v
+
+        def done(value) -> None:
+            if value is None:
+                return
+            try:
+                event_id, check = s.observe(value)
+            except (RunLogWriteError, InputError) as exc:
+                self._error(exc)
+                return
+            self.refresh_views()
+            head, causes = P.weight_text(check, s.units)
+            if check is not None and check.outside:
+                self.notify(head + "\n" + "\n".join(causes), title="Weight off the plan",
+                            severity="warning", timeout=15)
+            else:
+                self.notify(f"Reading recorded (entry {event_id}). {head}", timeout=5)
+
+        self.push_screen(PromptScreen(
+            f"Weight indicator: hook load with {s.step} joints in the hole",
+            hint=f"Planned now: {P.fmt(predicted, 'force', s.units)}.  A bare number is in {unit}.",
+            parse=parse, prompt_id="prompt-weight"), done)
+
+    def action_band(self) -> None:
+        s = self.session
+        self.push_screen(PromptScreen(
+            "Weight band: how far a reading may be from the plan",
+            value=s.band_text().replace("+/- ", ""),
+            hint="A percentage of the planned hook load (10 %) or a force (2000 lbf, 9 kN).",
+            parse=s.set_band, prompt_id="prompt-band"),
+            lambda r: r is not None and self._committed(f"Weight band {r}"))
+
+    # -- tally edits ---------------------------------------------------------
+
+    def _tally(self) -> TallyPane:
+        return self._pane("tally")
+
+    def on_data_table_cell_selected(self, event) -> None:
+        if event.data_table.id == "tally-table":
+            event.stop()
+            self.action_edit_cell()
+
+    def action_edit_cell(self) -> None:
+        label, field = self._tally().cursor_cell()
+        if label is None:
+            return
+        if field not in EDITABLE_FIELDS:
+            self.notify(f"{field.replace('_', ' ')} comes from the planner; edit the joint's "
+                        "entered data instead", severity="warning")
+            return
+        s = self.session
+        title = next(t for k, t, _, _ in P.TALLY_COLUMNS if k == field)
+        how, what = EDITABLE_FIELDS[field]
+        if how == "choice":
+            hint = "One of: " + ", ".join(what)
+        elif how == "material":
+            from rigplan import materials
+            hint = "One of: " + ", ".join(materials.known_keys())
+        elif how in ("quantity", "optional_quantity"):
+            hint = (f"A bare number is in {U.unit_label(what, s.units)}; a unit may be given "
+                    f"({U.describe(what)})" + ("; empty: not measured" if how != "quantity" else ""))
+        else:
+            hint = "A label not used by another joint"
+
+        def done(plan) -> None:
+            if plan is None:
+                return
+            s.apply_plan(plan)
+            self._committed(f"{label}: {title.lower()} changed (not saved yet: s saves the plan)")
+
+        self.push_screen(PromptScreen(f"{label}: {title}", value=P.edit_text(s, label, field),
+                                      hint=hint, parse=lambda t: s.edited_plan(label, field, t),
+                                      prompt_id="prompt-edit"), done)
+
+    def action_insert_joint(self) -> None:
+        label, _ = self._tally().cursor_cell()
+        if label is None:
+            return
+        try:
+            new = self.session.insert_after(label)
+        except InputError as exc:
+            self._error(exc)
+            return
+        self.refresh_views()
+        self._tally().focus_row(new)
+        self.notify(f"Inserted {new} above {label} (a copy of its planned data)", timeout=4)
+
+    def action_delete_joint(self) -> None:
+        label, _ = self._tally().cursor_cell()
+        if label is None:
+            return
+
+        def done(yes) -> None:
+            if not yes:
+                return
+            try:
+                self.session.delete(label)
+            except InputError as exc:
+                self._error(exc)
+                return
+            self._committed(f"{label} taken out of the plan (not saved yet)")
+
+        self.push_screen(ConfirmScreen(f"Take {label} out of the plan?"), done)
+
+    def action_move_joint(self, delta: int) -> None:
+        label, _ = self._tally().cursor_cell()
+        if label is None:
+            return
+        try:
+            self.session.move(label, int(delta))
+        except InputError as exc:
+            self._error(exc)
+            return
+        self.refresh_views()
+        self._tally().focus_row(label)
+
+    def action_import_tally(self) -> None:
+        s = self.session
+        default = s.plan_path.stem + ".tally.csv"
+        self.push_screen(PromptScreen(
+            "Import a tally CSV (measured lengths, set-asides)", value=default,
+            hint=f"Path, relative to {s.plan_path.parent}",
+            parse=s.import_tally, prompt_id="prompt-tally"),
+            lambda n: n is not None and self._committed(f"Tally applied: {n} rows (not saved yet)"))
+
+    def action_save_plan(self) -> None:
+        try:
+            path = self.session.save_plan()
+        except (InputError, OSError, ValueError) as exc:
+            self._error(exc)
+            return
+        self.refresh_views()
+        self.notify(f"Plan saved to {path}", timeout=6)
+
+
+def build_app(plan_path, rig_path, path_name: str | None = None, units: str = "us",
+              **session_options) -> RigplanApp:
+    """The app for a plan and a rig (raises InputError for bad files).
+
+    ``session_options`` go to :class:`JobSession` (``band_fraction``,
+    ``band_force``).
+    """
+    session = JobSession(Path(plan_path), rig_path, path_name=path_name, units=units,
+                         **session_options)
+    return RigplanApp(session)
+
+
+def run_app(plan_path, rig_path, path_name: str | None = None, units: str = "us") -> None:
+    """Open the terminal app on a plan and a rig and run it until the user quits."""
+    build_app(plan_path, rig_path, path_name=path_name, units=units).run()
