@@ -49,6 +49,13 @@ from rigplan.stringmodel import G, Closure, Hole, JointArrays
 
 _BLOCK_ELEMENTS = 1 << 20
 
+#: The last few geometries built: ``(joints, valve_joint, copies of the
+#: input arrays, geometry)``.  A plan asks for the same string's geometry
+#: many times (every float position and fill fluid); a hit needs the same
+#: JointArrays object with unchanged lengths, diameters and weights.
+_GEOMETRY_CACHE: list = []
+_GEOMETRY_CACHE_SIZE = 8
+
 
 @dataclass(frozen=True)
 class StringGeometry:
@@ -80,12 +87,33 @@ def string_geometry(joints: JointArrays, closure: Closure) -> StringGeometry:
     closure : Closure
         Check-valve position: None (open shoe), 0 (float shoe) or m >= 1
         (float collar at the top of joint m).
+
+    The result's arrays are read-only: it may be shared with later calls
+    for the same, unchanged string.
     """
+    valve = closure.valve_joint
+    inputs = (joints.length, joints.od, joints.bore, joints.weight)
+    for entry in tuple(_GEOMETRY_CACHE):
+        if entry[0] is joints and entry[1] == valve and all(
+                np.array_equal(a, b) for a, b in zip(entry[2], inputs)):
+            return entry[3]
+    geo = _build_geometry(joints, closure)
+    for name in ("bottom", "top", "outside_area", "bore_area", "fill_side", "cum_weight",
+                 "active", "section"):
+        getattr(geo, name).flags.writeable = False
+    _GEOMETRY_CACHE.insert(0, (joints, valve, tuple(np.array(a, dtype=float) for a in inputs),
+                               geo))
+    del _GEOMETRY_CACHE[_GEOMETRY_CACHE_SIZE:]
+    return geo
+
+
+def _build_geometry(joints: JointArrays, closure: Closure) -> StringGeometry:
+    """:func:`string_geometry` without the cache."""
     n = joints.n
     if n == 0:
         raise ValueError("the string has no joints")
     length = np.asarray(joints.length, dtype=float)
-    if np.any(~np.isfinite(length)) or np.any(length <= 0):
+    if not (np.isfinite(length).all() and (length > 0).all()):
         raise ValueError("every joint length must be positive [m]")
     top = np.cumsum(length)
     bottom = np.concatenate(([0.0], top[:-1]))
@@ -109,7 +137,7 @@ def string_geometry(joints: JointArrays, closure: Closure) -> StringGeometry:
     active_mask = (ao_low != ao) | (ab_low != ab) | (side_low != fill_side)
     active_mask[0] = True
     active = np.flatnonzero(active_mask)
-    section = np.searchsorted(active, np.arange(n), side="right") - 1
+    section = np.cumsum(active_mask) - 1     # index of the last active interface <= j
     return StringGeometry(
         bottom=bottom, top=top, outside_area=ao, bore_area=ab, fill_side=fill_side,
         cum_weight=np.cumsum(np.asarray(joints.weight, dtype=float)),
@@ -122,23 +150,25 @@ def _interface_terms(geo: StringGeometry, rows: np.ndarray, hole: Hole,
     """Pressure force [N] on each active interface at the given steps.
 
     ``rows`` are 0-based step indices; interfaces not yet in the hole (above
-    the floor at that step) contribute zero.  Shape (len(rows), I).
+    the floor at that step) contribute zero.  Shape (I, len(rows)): the
+    steps run along the last axis, so each operation loops over steps.
     """
     act = geo.active
     shoe = geo.top[rows]
-    z = shoe[:, None] - geo.bottom[act][None, :]
+    z = shoe[None, :] - geo.bottom[act][:, None]
     p_out = hole.fluid_density * G * np.maximum(0.0, z - hole.fluid_level)
-    p_fill = fill_density * G * np.maximum(0.0, z - fill_level[rows][:, None])
+    p_fill = fill_density * G * np.maximum(0.0, z - fill_level[rows][None, :])
     up_fill = geo.fill_side[act]
     low_fill = np.where(act > 0, geo.fill_side[np.maximum(act - 1, 0)], False)
     ao_up = geo.outside_area[act]
     ab_up = geo.bore_area[act]
     ao_low = np.where(act > 0, geo.outside_area[np.maximum(act - 1, 0)], 0.0)
     ab_low = np.where(act > 0, geo.bore_area[np.maximum(act - 1, 0)], 0.0)
-    p_up = np.where(up_fill[None, :], p_fill, p_out)
-    p_low = np.where(low_fill[None, :], p_fill, p_out)
-    terms = p_out * (ao_low - ao_up) + p_up * ab_up - p_low * ab_low
-    terms[act[None, :] > rows[:, None]] = 0.0
+    p_up = np.where(up_fill[:, None], p_fill, p_out)
+    p_low = np.where(low_fill[:, None], p_fill, p_out)
+    terms = (p_out * (ao_low - ao_up)[:, None] + p_up * ab_up[:, None]
+             - p_low * ab_low[:, None])
+    terms[act[:, None] > rows[None, :]] = 0.0
     return terms
 
 
@@ -150,6 +180,47 @@ def _fill_levels(geo: StringGeometry, closure: Closure, fill_level) -> np.ndarra
     if np.any(~np.isfinite(level)) or np.any(level < 0):
         raise ValueError("fill levels must be depths >= 0 below the floor [m]")
     return level
+
+
+def string_load_by_step(geo: StringGeometry, hole: Hole, fill_density: float,
+                        fill_level: np.ndarray) -> np.ndarray:
+    """True force at the top of the string at every running step [N].
+
+    ``F_k = sum_{i<=k} W_i + sum_{active i<=k} [ P_o(z_i) (A_o,i-1 - A_o,i)
+    + P_in,i(z_i) A_b,i - P_in,i-1(z_i) A_b,i-1 ]`` at step k, the
+    pressure-area sum of the module docstring taken at the string top
+    (the hook load less the dead load of the hoisting gear).
+
+    Parameters
+    ----------
+    geo : StringGeometry
+        From :func:`string_geometry` (joints and check-valve position).
+    hole : Hole
+        Annulus fluid density [kg/m^3] and level [m].
+    fill_density : float
+        Fluid inside above the check valve [kg/m^3].
+    fill_level : ndarray of N
+        Depth of the inside fill surface at each step [m] (zeros for an
+        open shoe, where it is not used).
+
+    Returns
+    -------
+    ndarray of N
+        ``running_loads(...).string_load`` [N], computed the same way (same
+        operations, same order) but without the envelopes: ``O(N x I)``
+        work for ``I`` active interfaces.  Static, vertical hole; sources as
+        the module docstring.
+    """
+    n = len(geo.top)
+    block = max(1, _BLOCK_ELEMENTS // max(1, len(geo.active)))
+    level = np.broadcast_to(np.asarray(fill_level, dtype=float), (n,))
+    out = np.empty(n)
+    steps = np.arange(n)
+    for r0 in range(0, n, block):
+        rows = steps[r0:r0 + block]
+        q = np.cumsum(_interface_terms(geo, rows, hole, fill_density, level), axis=0)
+        out[rows] = geo.cum_weight[rows] + q[geo.section[rows], rows - r0]
+    return out
 
 
 @dataclass(frozen=True)
@@ -235,22 +306,24 @@ def running_loads(joints: JointArrays, hole: Hole, closure: Closure,
     for r1 in range(n, 0, -block):
         r0 = max(0, r1 - block)
         rows = steps[r0:r1]
-        q = np.cumsum(_interface_terms(geo, rows, hole, fill_density, level), axis=1)
+        # q[i, r]: pressure forces on the active interfaces 0..i at step
+        # rows[r] (interfaces along the first axis, steps along the last)
+        q = np.cumsum(_interface_terms(geo, rows, hole, fill_density, level), axis=0)
         sec = geo.section[rows]
-        string_load[rows] = geo.cum_weight[rows] + q[rows - r0, sec]
+        string_load[rows] = geo.cum_weight[rows] + q[sec, rows - r0]
         for sign, carry, carry_at, out, out_step in (
                 (1.0, carry_max, carry_max_at, env_max, env_step),
                 (-1.0, carry_min, carry_min_at, env_min, env_min_step)):
             v = sign * q
-            suffix = np.maximum.accumulate(v[::-1], axis=0)[::-1]
-            suffix = np.maximum(suffix, sign * carry[None, :])
-            at = np.where(v == suffix, rows[:, None], n)
-            at = np.minimum.accumulate(at[::-1], axis=0)[::-1]
-            at = np.where(at == n, carry_at[None, :], at)
-            out[rows] = geo.cum_weight[rows] + sign * suffix[rows - r0, sec]
-            out_step[rows] = at[rows - r0, sec] + 1
-            carry[:] = sign * suffix[0]
-            carry_at[:] = at[0]
+            suffix = np.maximum.accumulate(v[:, ::-1], axis=1)[:, ::-1]
+            suffix = np.maximum(suffix, sign * carry[:, None])
+            at = np.where(v == suffix, rows[None, :], n)
+            at = np.minimum.accumulate(at[:, ::-1], axis=1)[:, ::-1]
+            at = np.where(at == n, carry_at[:, None], at)
+            out[rows] = geo.cum_weight[rows] + sign * suffix[sec, rows - r0]
+            out_step[rows] = at[sec, rows - r0] + 1
+            carry[:] = sign * suffix[:, 0]
+            carry_at[:] = at[:, 0]
 
     shoe = geo.top
     top_depth = 0.0
@@ -390,15 +463,22 @@ def collapse_envelope(geo: StringGeometry, hole: Hole, fill_density: float,
     for first, last, mode in segments:
         if mode != 1 or last - first < 2:
             continue
-        sel = fill_j <= last
+        sel = np.flatnonzero(fill_j <= last)
         j = fill_j[sel]
         lo = np.maximum(first, j)
         hf = level[first]
         cands = []
-        for b in (geo.bottom[j] + h_o, geo.top[j] + h_o, geo.bottom[j] + hf, geo.top[j] + hf):
-            kk = np.searchsorted(geo.top, b)
-            cands += [np.clip(kk - 1, lo, last), np.clip(kk, lo, last)]
+        for surface in ((h_o,) if hf == h_o else (h_o, hf)):
+            for b in (geo.bottom[j] + surface, geo.top[j] + surface):
+                kk = np.searchsorted(geo.top, b)
+                cands += [np.clip(kk - 1, lo, last), np.clip(kk, lo, last)]
         k = np.stack(cands, axis=0)
+        # A joint whose candidates are all its entry step (taken above)
+        # adds nothing: a repeated step never beats itself.
+        new = np.any(k != j[None, :], axis=0)
+        if not np.any(new):
+            continue
+        sel, j, k = sel[new], j[new], k[:, new]
         worst, best = _loads_at(geo, hole, fill_density, level, k, j[None, :])
         full_w = np.full((k.shape[0], len(fill_j)), -np.inf)
         full_b = np.full((k.shape[0], len(fill_j)), np.inf)

@@ -31,14 +31,24 @@ design loads).  The schedule search is this project's own method.
 
 from __future__ import annotations
 
+from bisect import bisect_right
 from dataclasses import dataclass, field
 
 import numpy as np
 
-from rigplan.axial import StringGeometry, running_loads, string_geometry
+from rigplan.axial import StringGeometry, string_geometry, string_load_by_step
 from rigplan.stringmodel import G, Closure, Hole, JointArrays
 
 _EMPTY = 1e12  # a fill level deeper than any string [m]: empty above the valve
+_BLOCK_ELEMENTS = 1 << 20  # largest (steps x sections) array built at once
+
+
+def _bore_volume_table(geo: StringGeometry):
+    """Knots of the bore volume curve: heights of the joint tops above the
+    shoe [m] (0 first) and the bore volume below each [m^3]."""
+    knots = np.concatenate(([0.0], geo.top))
+    vols = np.concatenate(([0.0], np.cumsum(geo.bore_area * np.diff(knots))))
+    return knots, vols
 
 
 def bore_volume_below(geo: StringGeometry, height):
@@ -47,15 +57,13 @@ def bore_volume_below(geo: StringGeometry, height):
     Piecewise linear through the joint tops: ``V(x) = sum A_b,i L_i`` over
     the joints below ``x`` plus the part of the joint holding ``x``.
     """
-    knots = np.concatenate(([0.0], geo.top))
-    vols = np.concatenate(([0.0], np.cumsum(geo.bore_area * np.diff(knots))))
+    knots, vols = _bore_volume_table(geo)
     return np.interp(height, knots, vols)
 
 
 def height_for_bore_volume(geo: StringGeometry, volume):
     """Inverse of :func:`bore_volume_below` [m]."""
-    knots = np.concatenate(([0.0], geo.top))
-    vols = np.concatenate(([0.0], np.cumsum(geo.bore_area * np.diff(knots))))
+    knots, vols = _bore_volume_table(geo)
     return np.interp(volume, vols, knots)
 
 
@@ -71,6 +79,26 @@ def collapse_sections(geo: StringGeometry, allowable: np.ndarray):
     first = idx[np.concatenate(([0], brk))]
     last = idx[np.concatenate((brk - 1, [len(idx) - 1]))]
     return first, last, allowable[first]
+
+
+def _governing_sections(sections, hole: Hole, fill_density: float):
+    """The collapse sections that can govern, from :func:`collapse_sections`.
+
+    With the hole fluid at least as heavy as the fill (``rho_o >= rho_f``)
+    the collapse load ``P_o - P_in = rho_o g (z - h_o)+ - rho_f g (z - h)+``
+    does not fall with depth wherever it is positive (slope ``rho_o g`` or
+    ``(rho_o - rho_f) g >= 0`` below the annulus level, negative values
+    above it), so a section with a deeper section of equal or smaller
+    allowable load below it never sets a requirement or a utilization: only
+    the sections weaker than every section below them are kept.  Otherwise
+    (fill heavier than the hole fluid) all are kept.
+    """
+    first, last, r = sections
+    if len(first) < 2 or not hole.fluid_density >= fill_density:
+        return sections
+    weakest_below = np.minimum.accumulate(np.concatenate(([np.inf], r[:-1])))
+    keep = r < weakest_below
+    return first[keep], last[keep], r[keep]
 
 
 def collapse_required_height(geo: StringGeometry, hole: Hole, fill_density: float,
@@ -93,7 +121,7 @@ def collapse_required_height(geo: StringGeometry, hole: Hole, fill_density: floa
     """
     n = len(geo.top)
     shoe = geo.top
-    first, last, r = collapse_sections(geo, allowable)
+    first, last, r = _governing_sections(collapse_sections(geo, allowable), hole, fill_density)
     rho_o, h_o = hole.fluid_density, hole.fluid_level
     grad_f = fill_density * G
     need = np.full(n, -np.inf)
@@ -109,23 +137,24 @@ def collapse_required_height(geo: StringGeometry, hole: Hole, fill_density: floa
         return s
 
     if len(first):
-        k = np.arange(n)[:, None]
-        in_hole = first[None, :] <= k
-        x_b = geo.bottom[first][None, :]
-        x_t = geo.top[np.minimum(last[None, :], k)]
-        z_ref = shoe[:, None] - h_o
+        # sections along the first axis, steps along the last
+        k = np.arange(n)[None, :]
+        in_hole = first[:, None] <= k
+        x_b = geo.bottom[first][:, None]
+        x_t = geo.top[np.minimum(last[:, None], k)]
+        z_ref = shoe[None, :] - h_o
         p_b = rho_o * G * np.maximum(0.0, z_ref - x_b)
         p_t = rho_o * G * np.maximum(0.0, z_ref - x_t)
-        s_a = from_face(p_b, x_b, r[None, :])
+        s_a = from_face(p_b, x_b, r[:, None])
         if rho_o > 0:
-            x_star = z_ref - r[None, :] / (rho_o * G)
+            x_star = z_ref - r[:, None] / (rho_o * G)
         else:
             x_star = np.full_like(p_b, -np.inf)
-        s_top = from_face(p_t, x_t, r[None, :])
+        s_top = from_face(p_t, x_t, r[:, None])
         s_c = np.where(x_star <= x_b, -np.inf, np.where(x_star <= x_t, x_star, s_top))
         s_req = np.where(in_hole, np.maximum(s_a, s_c), -np.inf)
-        need = s_req.max(axis=1)
-        limit = np.where(np.isfinite(need) | (need == np.inf), "collapse", "").astype(object)
+        need = s_req.max(axis=0)
+        limit[np.isfinite(need) | (need == np.inf)] = "collapse"
     if np.isfinite(valve_allowable) and np.isfinite(geo.valve_height):
         xv = geo.valve_height
         p_v = rho_o * G * np.maximum(0.0, shoe - h_o - xv)
@@ -133,7 +162,7 @@ def collapse_required_height(geo: StringGeometry, hole: Hole, fill_density: floa
         s_v = np.where(shoe > xv, s_v, -np.inf)
         use = s_v > need
         need = np.where(use, s_v, need)
-        limit = np.where(use, "check valve", limit).astype(object)
+        limit[use] = "check valve"
     return need, limit
 
 
@@ -195,9 +224,10 @@ def fill_window(joints: JointArrays, hole: Hole, closure: Closure, fill_density:
     xv = geo.valve_height
     m = closure.valve_joint
     valve_in = np.arange(n) >= m
-    empty = running_loads(joints, hole, closure, fill_density, _EMPTY).string_load
-    v_valve = float(bore_volume_below(geo, xv))
-    full_vol = bore_volume_below(geo, shoe) - v_valve
+    empty = string_load_by_step(geo, hole, fill_density, np.full(n, _EMPTY))
+    knots, vols = _bore_volume_table(geo)
+    v_valve = float(np.interp(xv, knots, vols))
+    full_vol = np.interp(shoe, knots, vols) - v_valve
     grad = fill_density * G
     with np.errstate(divide="ignore", invalid="ignore"):
         vol_cap = np.where(grad > 0, (string_limit - empty) / (grad if grad > 0 else 1.0),
@@ -206,14 +236,14 @@ def fill_window(joints: JointArrays, hole: Hole, closure: Closure, fill_density:
                          np.where(empty >= min_running_weight, -np.inf, np.inf))
     s_cap = np.where(vol_cap >= full_vol, shoe,
                      np.where(vol_cap < 0, -np.inf,
-                              height_for_bore_volume(geo, v_valve + np.clip(vol_cap, 0, None))))
+                              np.interp(v_valve + np.clip(vol_cap, 0, None), vols, knots)))
     # A string lighter than the minimum running weight even when full must
     # be kept full; it is impossible only when it would float full.
     full_load = empty + grad * full_vol
     vol_w = np.where((vol_w > full_vol) & (full_load > 0), full_vol, vol_w)
     s_w = np.where(vol_w <= 0, -np.inf,
                    np.where(vol_w > full_vol, np.inf,
-                            height_for_bore_volume(geo, v_valve + np.clip(vol_w, 0, None))))
+                            np.interp(v_valve + np.clip(vol_w, 0, None), vols, knots)))
     allowable = np.asarray(joints.collapse_rating, dtype=float) / collapse_factor
     s_col, col_name = collapse_required_height(geo, hole, fill_density, allowable,
                                                closure.valve_rating)
@@ -229,20 +259,27 @@ def fill_window(joints: JointArrays, hole: Hole, closure: Closure, fill_density:
     full_limit = np.where(s_cap < shoe, "hoisting capacity", "")
     tol = 1e-9 * max(1.0, float(shoe[-1]))
     feasible = (lo <= hi + tol) | ~valve_in
-    closing = np.where(
-        full_limit == "",
-        np.char.add(np.asarray(empty_limit, dtype=str), " even with the pipe full"),
-        np.char.add(np.char.add(np.asarray(empty_limit, dtype=str), " vs "), full_limit))
-    closing = np.where(feasible, "", np.where(
-        (np.asarray(empty_limit, dtype=str) == "running weight") & (full_limit == ""),
-        "the string is too light (floats) even with the pipe full", closing))
-    closing = np.where(feasible, empty_limit, closing).astype(object)
+    # Where the window is empty, name the limits that close it; the names
+    # take a handful of values, so the messages are set per pair of names.
+    closing = np.array(empty_limit, dtype=object)
+    bad = ~feasible
+    for low_name in set(empty_limit[bad]):
+        for high_name in ("", "hoisting capacity"):
+            sel = bad & (empty_limit == low_name) & (full_limit == high_name)
+            if not np.any(sel):
+                continue
+            if high_name:
+                closing[sel] = f"{low_name} vs {high_name}"
+            elif low_name == "running weight":
+                closing[sel] = "the string is too light (floats) even with the pipe full"
+            else:
+                closing[sel] = f"{low_name} even with the pipe full"
     with np.errstate(invalid="ignore"):
         ok = feasible & valve_in
         min_level = np.where(ok, shoe - hi, np.nan)
         max_level = np.where(ok, shoe - np.clip(lo, xv, None), np.nan)
-        vmin = np.where(ok, bore_volume_below(geo, np.clip(lo, xv, shoe)) - v_valve, np.nan)
-        vmax = np.where(ok, bore_volume_below(geo, np.clip(hi, xv, shoe)) - v_valve, np.nan)
+        vmin = np.where(ok, np.interp(np.clip(lo, xv, shoe), knots, vols) - v_valve, np.nan)
+        vmax = np.where(ok, np.interp(np.clip(hi, xv, shoe), knots, vols) - v_valve, np.nan)
     return FillWindow(
         joint=np.arange(1, n + 1), shoe_depth=shoe.copy(), valve_in_hole=valve_in,
         low_height=np.where(valve_in, lo, np.nan), high_height=np.where(valve_in, hi, np.nan),
@@ -251,7 +288,7 @@ def fill_window(joints: JointArrays, hole: Hole, closure: Closure, fill_density:
         empty_string_load=empty,
         weight_floor=np.minimum(min_running_weight, np.maximum(full_load, 0.0)),
         empty_limit=tuple(np.where(valve_in, empty_limit, "")),
-        full_limit=tuple(np.where(valve_in, full_limit, "")),
+        full_limit=tuple(np.where(valve_in, full_limit, "").tolist()),
         closing_limit=tuple(np.where(valve_in, closing, "")),
         feasible=feasible,
     )
@@ -314,44 +351,109 @@ def collapse_utilization_by_step(joints: JointArrays, hole: Hole, closure: Closu
     if closure.is_open:
         return np.zeros(n)
     allowable = np.asarray(joints.collapse_rating, dtype=float) / collapse_factor
-    first, last, r = collapse_sections(geo, allowable)
-    if len(first) == 0:
+    sections = _governing_sections(collapse_sections(geo, allowable), hole, fill_density)
+    if len(sections[0]) == 0:
         return np.zeros(n)
     level = np.broadcast_to(np.asarray(fill_level, dtype=float), (n,))
-    k = np.arange(n)[:, None]
-    shoe = geo.top[:, None]
-    s = shoe - level[:, None]
-    x_b = geo.bottom[first][None, :]
-    x_t = geo.top[np.minimum(last[None, :], k)]
-    best = np.zeros((n, len(first)))
-    for x in (x_b + 0 * s, x_t + 0 * s, np.clip(s, x_b, x_t)):
-        z = shoe - x
-        dp = (hole.fluid_density * G * np.maximum(0.0, z - hole.fluid_level)
-              - fill_density * G * np.maximum(0.0, z - level[:, None]))
-        best = np.maximum(best, dp / r[None, :])
-    best = np.where(first[None, :] <= k, best, 0.0)
-    return best.max(axis=1)
+    return _collapse_utilization(geo, sections, hole, fill_density, np.arange(n), level)
 
 
-def _evaluate(geo, joints, hole, closure, fill_density, heights, string_limit,
-              min_weight, collapse_factor, empty_load):
-    """Loads and margins of one candidate schedule; ``min_weight`` is the
-    per-step running-weight floor (never above the full-pipe load)."""
+def _collapse_utilization(geo: StringGeometry, sections, hole: Hole, fill_density: float,
+                          rows: np.ndarray, level: np.ndarray) -> np.ndarray:
+    """:func:`collapse_utilization_by_step` at the 0-based steps ``rows``.
+
+    ``sections`` are the governing sections (:func:`_governing_sections`
+    of :func:`collapse_sections`: first, last, allowable [Pa]); ``level``
+    the fill level at each of ``rows`` [m] (a step may appear more than
+    once, with different levels).  At each step and
+    section, ``dP = rho_o g (z - h_o)+ - rho_f g (z - level)+`` [Pa] at the
+    section's bottom, its top and the fill surface, the largest over the
+    three divided by the allowable (dividing by a positive number keeps the
+    order, so this equals the largest of the three ratios); sections not
+    yet in the hole count 0.  ``O(len(rows) x S)`` for ``S`` governing
+    sections, in blocks of rows to bound memory.
+    """
+    first, last, r = sections
+    out = np.zeros(len(rows))
+    if len(first) == 0 or len(rows) == 0:
+        return out
+    go = hole.fluid_density * G
+    gf = fill_density * G
+    h_o = hole.fluid_level
+    # sections along the first axis, steps along the last
+    x_b = geo.bottom[first][:, None]
+    block = max(1, _BLOCK_ELEMENTS // len(first))
+    for i0 in range(0, len(rows), block):
+        k = rows[i0:i0 + block][None, :]
+        shoe = geo.top[k]
+        lv = level[i0:i0 + block][None, :]
+        x_t = geo.top[np.minimum(last[:, None], k)]
+        worst = np.zeros((len(first), k.shape[1]))
+        for x in (x_b, x_t, np.clip(shoe - lv, x_b, x_t)):
+            z = shoe - x
+            p_out = z - h_o
+            np.maximum(0.0, p_out, out=p_out)
+            p_out *= go
+            z -= lv
+            np.maximum(0.0, z, out=z)
+            z *= gf
+            p_out -= z
+            np.maximum(worst, p_out, out=worst)
+        worst /= r[:, None]
+        worst[first[:, None] > k] = 0.0
+        out[i0:i0 + block] = worst.max(axis=0)
+    return out
+
+
+def _first_over(values: np.ndarray, start: int, threshold: float, stop: int | None = None):
+    """Offset from ``start`` of the first ``values[i] > threshold`` with
+    ``start <= i < stop`` (``stop - start`` when there is none).  Scans in
+    doubling windows, so the cost follows the distance to the hit."""
+    stop = len(values) if stop is None else min(stop, len(values))
+    i, width = start, 64
+    while i < stop:
+        j = min(stop, i + width)
+        hit = np.flatnonzero(values[i:j] > threshold)
+        if len(hit):
+            return i - start + int(hit[0])
+        i, width = j, 2 * width
+    return stop - start
+
+
+def _evaluate(geo, table, sections, hole, fill_density, heights, throughs, full_col,
+              string_limit, min_weight, empty_load):
+    """Loads and margins of candidate schedules, all at once: row ``b`` of
+    ``heights`` [m] is candidate ``b``, full to the top (level 0) through
+    step ``throughs[b]``, whose collapse utilization there is ``full_col``
+    (shared).  ``min_weight`` is the per-step running-weight floor (never
+    above the full-pipe load).  Returns per-candidate rows of level, volume,
+    load, capacity margin, collapse utilization and weight margin, the least
+    margin of each and its 1-based step."""
     shoe = geo.top
-    v_valve = float(bore_volume_below(geo, geo.valve_height))
-    vol = np.clip(bore_volume_below(geo, heights) - v_valve, 0.0, None)
+    n = len(shoe)
+    knots, vols = table
+    v_valve = float(np.interp(geo.valve_height, knots, vols))
+    vol = np.clip(np.interp(heights, knots, vols) - v_valve, 0.0, None)
     load = empty_load + fill_density * G * vol
     level = shoe - heights
-    col = collapse_utilization_by_step(joints, hole, closure, fill_density, level,
-                                       collapse_factor)
+    rows = np.concatenate([np.arange(t, n) for t in throughs])
+    util = _collapse_utilization(geo, sections, hole, fill_density, rows,
+                                 np.concatenate([level[b, t:] for b, t in enumerate(throughs)]))
+    col = np.empty_like(heights)
+    pos = 0
+    for b, t in enumerate(throughs):
+        col[b, :t] = full_col[:t]
+        col[b, t:] = util[pos:pos + n - t]
+        pos += n - t
     cap_margin = (string_limit - load) / string_limit
     w_margin = (load - min_weight) / string_limit
     # A full pipe cannot be made heavier: its weight margin sets no choice.
     full = heights >= shoe - 1e-9 * max(1.0, float(shoe[-1]))
     w_margin = np.where(full, np.inf, w_margin)
     margins = np.minimum(np.minimum(cap_margin, 1.0 - col), w_margin)
-    i = int(np.argmin(margins))
-    return level, vol, load, cap_margin, col, w_margin, float(margins[i]), i + 1
+    at = np.argmin(margins, axis=1)
+    least = margins[np.arange(len(heights)), at]
+    return level, vol, load, cap_margin, col, w_margin, least, at + 1
 
 
 def fill_schedule(joints: JointArrays, hole: Hole, closure: Closure, fill_density: float,
@@ -381,19 +483,39 @@ def fill_schedule(joints: JointArrays, hole: Hole, closure: Closure, fill_densit
     lo = np.where(window.valve_in_hole, window.low_height, -np.inf)
     hi = np.where(window.valve_in_hole, window.high_height, np.inf)
     hi_ahead = np.minimum.accumulate(hi[::-1])[::-1]
+    # For the searches below: the highest floor so far (nan never binds) and
+    # the lowest ceiling from each step on.
+    lo_so_far = np.maximum.accumulate(np.where(np.isnan(lo), -np.inf, lo))
+    hi_from = np.fmin.accumulate(hi[::-1])[::-1]
+    neg_hi = -hi
     full_ok = (shoe <= hi_ahead + tol) & (lo <= shoe + tol)
     full_ok[:m] = True
     bad = np.flatnonzero(~full_ok)
     longest = n if len(bad) == 0 else int(bad[0])   # joints 1..longest may be full
-    best = None
+    # Shared by every candidate: the bore volume curve, the collapse
+    # sections and the collapse utilization with the pipe full.
+    table = _bore_volume_table(geo)
+    allowable = np.asarray(joints.collapse_rating, dtype=float) / collapse_factor
+    sections = _governing_sections(collapse_sections(geo, allowable), hole, fill_density)
+    throughs = []
     for share in shares:
         # Stop filling once the carried fill would reach this share of the
         # longest full length (share 1: fill to the top as long as possible).
         if longest >= n or longest <= m:
-            through = longest
+            throughs.append(longest)
         else:
             target = xv + share * (shoe[longest - 1] - xv)
-            through = max(m + 1, min(longest, int(np.searchsorted(shoe, target + tol, side="right"))))
+            throughs.append(max(m + 1, min(longest, int(np.searchsorted(shoe, target + tol,
+                                                                         side="right")))))
+    most = max(throughs, default=0)
+    full_col = _collapse_utilization(geo, sections, hole, fill_density, np.arange(most),
+                                     (shoe - shoe)[:most])
+    # The top-up search below steps from one top-up to the next (a few per
+    # schedule, not one per joint); it reads single values, kept as floats.
+    lo_at, ceiling_at = lo.tolist(), np.minimum(hi_ahead, shoe).tolist()
+    lo_so_far, hi_from = lo_so_far.tolist(), hi_from.tolist()
+    candidates = []      # (heights, top-ups, failure step, failure) per share tried
+    for share, through in zip(shares, throughs):
         heights = np.empty(n)
         heights[:through] = shoe[:through]
         s = float(shoe[through - 1]) if through > 0 else xv
@@ -403,12 +525,20 @@ def fill_schedule(joints: JointArrays, hole: Hole, closure: Closure, fill_densit
         failure_step, failure = 0, ""
         k = through
         while k < n:
-            seg_lo = lo[k:]
-            need = np.flatnonzero(seg_lo > s + tol)
-            over = np.flatnonzero(hi[k:] < s - tol)
-            nxt = need[0] if len(need) else n - k
-            if len(over) and over[0] <= nxt:
-                kk = k + int(over[0])
+            # next step whose floor is above the carried fill, and the first
+            # step up to it whose ceiling is below it
+            # (every floor before k is at or below the carried fill, so the
+            # first floor above it is where the running highest floor passes
+            # it; a scan settles the case where rounding says otherwise)
+            nxt = bisect_right(lo_so_far, s + tol) - k
+            if nxt < 0:
+                nxt = _first_over(lo, k, s + tol)
+            if hi_from[k] < s - tol:
+                over = _first_over(neg_hi, k, -(s - tol), k + nxt + 1)
+            else:
+                over = n
+            if over <= nxt and k + over < n:
+                kk = k + over
                 heights[k:kk] = s
                 failure_step = kk + 1
                 failure = f"the carried fill is over the {window.full_limit[kk] or 'window'}"
@@ -418,7 +548,7 @@ def fill_schedule(joints: JointArrays, hole: Hole, closure: Closure, fill_densit
             k += nxt
             if k >= n:
                 break
-            floor, ceiling = lo[k], min(hi_ahead[k], shoe[k])
+            floor, ceiling = lo_at[k], ceiling_at[k]
             if floor > ceiling + tol:
                 failure_step = k + 1
                 failure = (f"no fill level works at joint {k + 1}: "
@@ -429,30 +559,39 @@ def fill_schedule(joints: JointArrays, hole: Hole, closure: Closure, fill_densit
             new = max(new, s)
             tops.append((k, s, new))
             s = new
-        level, vol, load, capm, col, wm, least, at = _evaluate(
-            geo, joints, hole, closure, fill_density, heights, string_limit,
-            window.weight_floor, collapse_factor, window.empty_string_load)
-        v_valve = float(bore_volume_below(geo, xv))
-        top_ups = tuple(
-            TopUp(joint=k + 1,
-                  volume=float(bore_volume_below(geo, new) - bore_volume_below(geo, old)),
-                  level_after=float(shoe[k] - new))
-            for k, old, new in tops)
-        sched = FillSchedule(
-            fill_density=fill_density, fill_to_top_through=through, top_ups=top_ups,
-            fill_level=np.where(np.arange(n) >= m, level, np.nan),
-            fill_volume=np.where(np.arange(n) >= m, vol, 0.0),
-            string_load=load, capacity_margin=capm, collapse_utilization=col,
-            weight_margin=wm, least_margin=least, least_margin_step=at,
-            feasible=failure_step == 0, failure_step=failure_step, failure=failure,
-            added_volume=float(vol[-1] if n else 0.0),
-        )
-        key = (sched.feasible, -len(top_ups), round(least, 4))
-        if best is None or key > best[0]:
-            best = (key, sched)
+        candidates.append((heights, tops, failure_step, failure))
         if failure_step:
             break
-    return best[1]
+    throughs = throughs[:len(candidates)]
+    level, vol, load, capm, col, wm, least, at = _evaluate(
+        geo, table, sections, hole, fill_density, np.stack([c[0] for c in candidates]),
+        throughs, full_col, string_limit, window.weight_floor, window.empty_string_load)
+    # The best: feasible, then the fewest top-ups, then the largest least
+    # margin (to 4 decimals); the first tried on a tie.
+    best = None
+    for b, (_, tops, failure_step, _) in enumerate(candidates):
+        key = (failure_step == 0, -len(tops), round(float(least[b]), 4))
+        if best is None or key > best[0]:
+            best = (key, b)
+    b = best[1]
+    _, tops, failure_step, failure = candidates[b]
+    through = throughs[b]
+    top_ups = ()
+    if tops:
+        steps, olds, news = (np.array(column) for column in zip(*tops))
+        added = np.interp(news, *table) - np.interp(olds, *table)
+        top_ups = tuple(TopUp(joint=int(k) + 1, volume=float(v), level_after=float(z))
+                        for k, v, z in zip(steps, added, shoe[steps] - news))
+    return FillSchedule(
+        fill_density=fill_density, fill_to_top_through=through, top_ups=top_ups,
+        fill_level=np.where(np.arange(n) >= m, level[b], np.nan),
+        fill_volume=np.where(np.arange(n) >= m, vol[b], 0.0),
+        string_load=load[b].copy(), capacity_margin=capm[b].copy(),
+        collapse_utilization=col[b].copy(), weight_margin=wm[b].copy(),
+        least_margin=float(least[b]), least_margin_step=int(at[b]),
+        feasible=failure_step == 0, failure_step=failure_step, failure=failure,
+        added_volume=float(vol[b, -1] if n else 0.0),
+    )
 
 
 def switch_point(string_load: np.ndarray, string_limit: float) -> int:
@@ -489,10 +628,15 @@ def empty_run(joints: JointArrays, hole: Hole, closure: Closure, fill_density: f
     if window is None:
         window = fill_window(joints, hole, closure, fill_density, np.inf,
                              min_running_weight, collapse_factor)
-    n = joints.n
-    level = np.full(n, _EMPTY)
-    util = collapse_utilization_by_step(joints, hole, closure, fill_density, level,
-                                        collapse_factor)
+    geo = string_geometry(joints, closure)
+    n = len(geo.top)
+    if closure.is_open:
+        util = np.zeros(n)
+    else:
+        allowable = np.asarray(joints.collapse_rating, dtype=float) / collapse_factor
+        sections = _governing_sections(collapse_sections(geo, allowable), hole, fill_density)
+        util = _collapse_utilization(geo, sections, hole, fill_density, np.arange(n),
+                                     np.full(n, _EMPTY))
     load = window.empty_string_load
     valve_in = window.valve_in_hole
 
@@ -500,12 +644,11 @@ def empty_run(joints: JointArrays, hole: Hole, closure: Closure, fill_density: f
         idx = np.flatnonzero(mask & valve_in)
         return int(idx[0]) + 1 if len(idx) else 0
 
-    geo = string_geometry(joints, closure)
     need = np.where(valve_in, window.low_height, -np.inf)
     # collapse-limited: the fill surface may sit no deeper than shoe - need
     empty_len = np.where(np.isfinite(need) & (need > geo.valve_height),
                          geo.top - need, geo.top - geo.valve_height)
-    col_bound = np.array([lim == "collapse" for lim in window.empty_limit])
+    col_bound = np.asarray(window.empty_limit, dtype=object) == "collapse"
     longest = float(np.min(empty_len[col_bound & valve_in])) if np.any(col_bound & valve_in) \
         else float("inf")
     return EmptyRun(collapse_step=first(util > 1.0 + 1e-12),

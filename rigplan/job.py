@@ -117,6 +117,11 @@ def apply_run_state(plan: StringPlan, state) -> StringPlan:
     """
     if state is None:
         return plan
+    collar = None
+    m = plan.closure.valve_joint
+    if m:
+        running = plan.running_joints()
+        collar = running[m - 1].label if m <= len(running) else None
     measured = {label: length for label, length in state.run}
     rejected = dict(state.rejected)
     joints = []
@@ -127,7 +132,15 @@ def apply_run_state(plan: StringPlan, state) -> StringPlan:
         if j.label in rejected:
             changes["rejected"] = True
         joints.append(dataclasses.replace(j, **changes) if changes else j)
-    return dataclasses.replace(plan, joints=tuple(joints))
+    out = dataclasses.replace(plan, joints=tuple(joints))
+    if collar is not None:
+        labels = [j.label for j in out.running_joints()]
+        if collar not in labels:
+            raise InputError(f"joint {collar}", "the float collar joint is set aside in the run "
+                                                "log: move the collar in the plan first")
+        out = dataclasses.replace(out, closure=dataclasses.replace(
+            plan.closure, valve_joint=labels.index(collar) + 1))
+    return out
 
 
 def rated_joints(plan: StringPlan):
@@ -144,34 +157,23 @@ def rated_joints(plan: StringPlan):
         raise InputError(plan.source or plan.name, str(err).strip("'\"")) from None
 
 
-def valve_for_running(plan: StringPlan):
-    """The plan's closure with the float-collar position counted among the
-    joints actually run (rejected joints drop out of the count)."""
-    c = plan.closure
-    if c.valve_joint is None or c.valve_joint == 0:
-        return c
-    labels = [j.label for j in plan.joints]
-    running = [j.label for j in plan.running_joints()]
-    m = c.valve_joint
-    if m > len(labels):
-        return c
-    # count the running joints at or below the planned collar joint
-    below = [lab for lab in labels[:m] if lab in running]
-    return dataclasses.replace(c, valve_joint=len(below))
+def plan_job(plan: StringPlan, rig, path_name: str | None = None,
+             fixed_closure: bool = False):
+    """Rate the string and plan its landing (``rigplan.planner.LandingPlan``).
 
-
-def plan_job(plan: StringPlan, rig, path_name: str | None = None):
-    """Rate the string and plan its landing (``rigplan.planner.LandingPlan``)."""
+    ``fixed_closure``: joints are in the hole, so the planned float
+    equipment is installed and no other position is tried.
+    """
     from rigplan.planner import plan_landing
     joints = rated_joints(plan)
-    closure = valve_for_running(plan)
+    closure = plan.closure
     if closure.valve_joint is not None and closure.valve_joint >= joints.n:
         raise InputError(plan.source or plan.name,
                          f"float_equipment.collar_joint: the float collar must sit on a joint "
                          f"below the top (1..{joints.n - 1}), got {closure.valve_joint}")
     try:
         return plan_landing(joints, plan.hole, rig, plan.settings, closure=closure,
-                            path=path_name, grout=plan.grout)
+                            path=path_name, grout=plan.grout, fixed_closure=fixed_closure)
     except InputError:
         raise
     except ValueError as err:

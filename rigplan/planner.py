@@ -16,6 +16,7 @@ Order of trial (first that keeps every limit wins):
 
 from __future__ import annotations
 
+import dataclasses
 from dataclasses import dataclass, field
 
 import numpy as np
@@ -48,6 +49,7 @@ class Limit:
     load: float
     capacity: float
     margin: float
+    kind: str = "force"      # quantity kind of load and capacity: "force" or "pressure"
 
 
 @dataclass(frozen=True)
@@ -149,7 +151,6 @@ def check_run(joints: JointArrays, loads: RunningLoads, closure: Closure,
               string_limit: float, settings: Settings) -> RunCheck:
     """Check one run against hoisting, tension, collapse and burst limits."""
     d = settings.design
-    n = joints.n
     cap_margin = (string_limit - loads.string_load) / string_limit
     tension_cap = np.fmin(joints.connection_rating, joints.body_rating)
     # Where either rating is missing the joint is unrated, never the other.
@@ -171,15 +172,16 @@ def check_run(joints: JointArrays, loads: RunningLoads, closure: Closure,
         if np.any(np.isfinite(util)):
             j = int(np.nanargmax(util))
             limits.append(Limit(name, f"joint {j + 1} ({label[j]})", float(load[j]),
-                                float(cap[j]), float(1.0 - util[j])))
-    unrated = []
-    for j in range(n):
-        if np.isnan(tension_cap[j]) and loads.envelope_max[j] > 0:
-            unrated.append(f"tension at the top of joint {j + 1} ({label[j]})")
-        if np.isnan(joints.collapse_rating[j]) and loads.collapse_max[j] > 0:
-            unrated.append(f"collapse of joint {j + 1} ({label[j]})")
-        if np.isnan(joints.burst_rating[j]) and loads.burst_max[j] > 0:
-            unrated.append(f"burst of joint {j + 1} ({label[j]})")
+                                float(cap[j]), float(1.0 - util[j]),
+                                "force" if name == "connection tension" else "pressure"))
+    # Loaded but unrated parts, joint by joint in running order (tension,
+    # collapse, burst for each joint): row-major order of the flags.
+    flags = np.stack((np.isnan(tension_cap) & (loads.envelope_max > 0),
+                      np.isnan(joints.collapse_rating) & (loads.collapse_max > 0),
+                      np.isnan(joints.burst_rating) & (loads.burst_max > 0)), axis=1)
+    what = ("tension at the top of joint", "collapse of joint", "burst of joint")
+    unrated = [f"{what[w]} {j + 1} ({label[j]})"
+               for j, w in zip(*(idx.tolist() for idx in np.nonzero(flags)))]
     ok = all(lim.margin >= -1e-12 for lim in limits)
     return RunCheck(closure=closure, loads=loads, capacity_margin=cap_margin,
                     tension_utilization=t_util, collapse_utilization=c_util,
@@ -264,7 +266,7 @@ def _option_key(opt: FloatOption):
 
 def plan_landing(joints: JointArrays, hole: Hole, rig: Rig, settings: Settings,
                  closure: Closure = Closure(), path: str | None = None,
-                 grout: GroutSpec | None = None) -> LandingPlan:
+                 grout: GroutSpec | None = None, fixed_closure: bool = False) -> LandingPlan:
     """Plan how to land a string with a rig and check every limit.
 
     Parameters
@@ -276,6 +278,8 @@ def plan_landing(joints: JointArrays, hole: Hole, rig: Rig, settings: Settings,
     closure : Closure     the float equipment planned (tried first)
     path : str            hoisting path name (default: the strongest)
     grout : GroutSpec     annular grout to check after landing
+    fixed_closure : bool  the planned float equipment is already in the hole
+        (joints have been run): try no other position and no staging
     """
     caps = [path_capacity(p) for p in rig.paths]
     if not caps:
@@ -303,30 +307,60 @@ def plan_landing(joints: JointArrays, hole: Hole, rig: Rig, settings: Settings,
     best = None
     stages = None
     chosen = open_check
-    verdict = LANDS_OPEN if open_check.ok else None
+    verdict = None
+    fluids = (settings.fill_density,) + tuple(settings.fill_density_alternatives)
+
+    def explain(opts, prefix=""):
+        why = {}
+        for o in opts:
+            why.setdefault((_closure_name(o.closure), o.reason), []).append(
+                f"{o.fill_density:.0f}")
+        for (name, reason), rhos in why.items():
+            reasons.append(f"{prefix}{name} (fill {', '.join(rhos)} kg/m3): {reason}")
+
+    def best_tried(opts):
+        tried = [o for o in opts if o.check is not None]
+        return max(tried, key=lambda o: _governing(o.check).margin).check if tried else None
+
     if not open_check.ok:
         g = _governing(open_check)
         reasons.append(f"open-ended: {g.name} over its limit at {g.where}")
-        fluids = (settings.fill_density,) + tuple(settings.fill_density_alternatives)
-        for c in _float_closures(joints.n, closure, settings):
-            for rho in fluids:
-                options.append(try_float(joints, hole, c, rho, limit, settings))
-        landing = [o for o in options if o.lands]
+    if not closure.is_open:
+        # The float equipment planned (or already in the hole) comes first:
+        # the loads shown must be those of the run the crew will make.
+        planned = [try_float(joints, hole, closure, rho, limit, settings) for rho in fluids]
+        options += planned
+        landing = [o for o in planned if o.lands]
+        if landing:
+            best = max(landing, key=_option_key)
+            chosen = best.check
+            verdict = LANDS_FLOATED
+            explain([o for o in planned if not o.lands], "planned ")
+        else:
+            explain(planned, "planned ")
+            if fixed_closure:
+                chosen = best_tried(planned) or chosen
+                verdict = CANNOT_LAND
+                reasons.append("the float equipment is already in the hole: no other "
+                               "position or stage is tried")
+    if verdict is None and open_check.ok:
+        verdict = LANDS_OPEN
+        if not closure.is_open:
+            reasons.append("the planned float equipment does not keep every limit, but the "
+                           "string lands open-ended: run it without the check valve")
+    if verdict is None:
+        others = [c for c in _float_closures(joints.n, Closure(), settings)
+                  if c.valve_joint != closure.valve_joint]
+        tried = [try_float(joints, hole, c, rho, limit, settings) for c in others for rho in fluids]
+        options += tried
+        landing = [o for o in tried if o.lands]
         if landing:
             best = max(landing, key=_option_key)
             chosen = best.check
             verdict = LANDS_FLOATED
         else:
-            why = {}
-            for o in options:
-                why.setdefault((_closure_name(o.closure), o.reason), []).append(
-                    f"{o.fill_density:.0f}")
-            for (name, reason), rhos in why.items():
-                reasons.append(f"{name} (fill {', '.join(rhos)} kg/m3): {reason}")
-            if options:
-                tried = [o for o in options if o.check is not None]
-                if tried:
-                    chosen = max(tried, key=lambda o: _governing(o.check).margin).check
+            explain(tried)
+            chosen = best_tried(options) or chosen
             ls = rig.landing_string
             if ls is None:
                 reasons.append("staged setting: the rig profile has no landing string")
@@ -336,20 +370,12 @@ def plan_landing(joints: JointArrays, hole: Hole, rig: Rig, settings: Settings,
                                          settings.design.tension, open_loads)
                 if stages.feasible:
                     verdict = LANDS_STAGED
+                    chosen = check_run(joints, _staged_loads(open_loads, stages), Closure(),
+                                       limit, settings)
                 else:
                     reasons.append(f"staged setting: {stages.reason}")
             if verdict is None:
                 verdict = CANNOT_LAND
-    elif not closure.is_open:
-        # The planned float equipment still has to be filled: give its plan.
-        for rho in (settings.fill_density,) + tuple(settings.fill_density_alternatives):
-            options.append(try_float(joints, hole, closure, rho, limit, settings))
-        landing = [o for o in options if o.lands]
-        best = max(landing, key=_option_key) if landing else None
-        for o in options:
-            if not o.lands:
-                reasons.append(f"planned {_closure_name(o.closure)} with fill "
-                               f"{o.fill_density:.0f} kg/m3 does not work: {o.reason}")
 
     notes = []
     for o in ([best] if best is not None else []) + [o for o in options if o is not best][:1]:
@@ -380,6 +406,29 @@ def plan_landing(joints: JointArrays, hole: Hole, rig: Rig, settings: Settings,
         chosen=chosen, float_options=tuple(options), best_float=best, stages=stages,
         switch_joint=switch, neutral_point=neutral, grouting=grouting, landed=prof,
         unrated=unrated, reasons=tuple(reasons), notes=tuple(dict.fromkeys(notes)),
+    )
+
+
+def _staged_loads(open_loads: RunningLoads, stages: StagedPlan) -> RunningLoads:
+    """Per-step loads of a two-stage set: stage 1 as run open-ended (its
+    joints see the same forces lowered on the landing string), then stage 2
+    run from the floor.  Index k-1 is still joint k."""
+    p = stages.split
+    s2 = stages.stage2_loads
+    cat = lambda a, b: np.concatenate((a[:p], b))
+    return dataclasses.replace(
+        open_loads,
+        shoe_depth=cat(open_loads.shoe_depth, s2.shoe_depth),
+        fill_level=cat(open_loads.fill_level, s2.fill_level),
+        string_load=cat(open_loads.string_load, s2.string_load),
+        effective_top=cat(open_loads.effective_top, s2.effective_top),
+        envelope_max=cat(open_loads.envelope_max, s2.envelope_max),
+        envelope_step=cat(open_loads.envelope_step, s2.envelope_step + p),
+        envelope_min=cat(open_loads.envelope_min, s2.envelope_min),
+        envelope_min_step=cat(open_loads.envelope_min_step, s2.envelope_min_step + p),
+        collapse_max=cat(open_loads.collapse_max, s2.collapse_max),
+        collapse_step=cat(open_loads.collapse_step, s2.collapse_step + p),
+        burst_max=cat(open_loads.burst_max, s2.burst_max),
     )
 
 

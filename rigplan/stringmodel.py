@@ -237,7 +237,9 @@ class StringPlan:
 
     ``joints`` lists every joint in running order (joint 1 first); rejected
     joints stay in the list with ``rejected=True`` and are skipped by the
-    planner.  ``source`` is the file it came from (for messages only).
+    planner.  ``closure.valve_joint`` counts the *running* joints (rejected
+    ones left out), as the planner sees the string.  ``source`` is the file
+    it came from (for messages only).
     """
 
     name: str

@@ -266,7 +266,7 @@ def _joints_one_by_one(tables) -> list:
     return joints
 
 
-def _apply_tally(joints: list, rows, tally_source: str) -> list:
+def apply_tally(joints: list, rows, tally_source: str) -> list:
     """Joints with the tally's measured lengths, walls and rejections (by label)."""
     index = {j.label: i for i, j in enumerate(joints)}
     out = list(joints)
@@ -355,7 +355,7 @@ def plan_from_data(data: dict, source: str, base_dir=Path("."), default_name: st
         if not tally_path.is_file():
             raise InputError(top.where("tally"), f"tally file {str(tally_path)!r} not found "
                                                  "(the path is relative to the plan file)")
-        joints = _apply_tally(joints, read_tally(tally_path), str(tally_path))
+        joints = apply_tally(joints, read_tally(tally_path), str(tally_path))
 
     running = [j for j in joints if not j.rejected]
     if not running:

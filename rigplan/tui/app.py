@@ -42,14 +42,17 @@ class ChartsPane(Vertical):
         self.view = None
 
     def compose(self) -> ComposeResult:
-        yield Static("Charts load when this tab is first shown.", id="charts-placeholder")
+        yield Static("Charts load when this tab is first shown.", id="charts-placeholder", markup=False)
 
-    async def load(self) -> None:
-        if self.view is None:
-            from rigplan.tui.charts import ChartsView
-            await self.query_one("#charts-placeholder").remove()
-            self.view = ChartsView(id="charts-view")
-            await self.mount(self.view)
+    async def load(self) -> bool:
+        """Import the plot library and mount the charts; True the first time."""
+        if self.view is not None:
+            return False
+        from rigplan.tui.charts import ChartsView
+        await self.query_one("#charts-placeholder").remove()
+        self.view = ChartsView(id="charts-view")
+        await self.mount(self.view)
+        return True
 
     def show(self, session) -> None:
         if self.view is not None:
@@ -74,17 +77,17 @@ class RigplanApp(App):
     def compose(self) -> ComposeResult:
         yield Header()
         with TabbedContent(initial="overview", id="tabs"):
-            with TabPane("Overview", id="overview"):
+            with TabPane("1 Overview", id="overview"):
                 yield OverviewPane(id="overview-pane")
-            with TabPane("String & tally", id="tally"):
+            with TabPane("2 String & tally", id="tally"):
                 yield TallyPane(id="tally-pane")
-            with TabPane("Running", id="running"):
+            with TabPane("3 Running", id="running"):
                 yield RunningPane(id="running-pane")
-            with TabPane("Charts", id="charts"):
+            with TabPane("4 Charts", id="charts"):
                 yield ChartsPane(id="charts-pane")
-            with TabPane("Rig", id="rig"):
+            with TabPane("5 Rig", id="rig"):
                 yield RigPane(id="rig-pane")
-        yield Static(CAUTION, id="caution")
+        yield Static(CAUTION, id="caution", markup=False)
         yield Footer()
 
     def on_mount(self) -> None:
@@ -124,15 +127,20 @@ class RigplanApp(App):
 
     async def on_tabbed_content_tab_activated(self, event: TabbedContent.TabActivated) -> None:
         tab = event.pane.id
-        if tab == "charts":
-            await self._pane("charts").load()
+        if tab == "charts" and await self._pane("charts").load():
             self._stale.add("charts")
         if tab in self._stale:
             self._show(tab)
+        # focus inside the shown pane: focus left in a hidden pane would
+        # bring its tab back
         if tab == "tally":
             self._pane("tally").table.focus()
         elif tab == "running":
             self._pane("running").table.focus()
+        elif tab == "charts":
+            self._pane("charts").view.query_one("#chart-hook").focus()
+        else:
+            self.set_focus(None)
         self.refresh_bindings()
 
     def check_action(self, action: str, parameters) -> bool | None:
@@ -153,6 +161,11 @@ class RigplanApp(App):
         await self.run_action(action)
 
     # -- helpers -------------------------------------------------------------
+
+    def notify(self, message: str, *, title: str = "", severity="information",
+               timeout: float | None = None, markup: bool = False) -> None:
+        """Notifications show text as written (labels and paths may hold brackets)."""
+        super().notify(message, title=title, severity=severity, timeout=timeout, markup=markup)
 
     def _error(self, exc: Exception) -> None:
         self.notify(str(exc), severity="error", timeout=8)
@@ -215,6 +228,11 @@ class RigplanApp(App):
             return
         unit = U.unit_label("length", s.units)
         default = P.fmt(nxt.length, "length", s.units, 2)
+        caution = ""
+        if s.landing is None:
+            caution = "  There is no plan (see the Overview): record only what was run."
+        elif not s.landing.lands:
+            caution = f"  The plan says: {s.landing.verdict}."
 
         def parse(text: str):
             t = text.strip()
@@ -250,7 +268,7 @@ class RigplanApp(App):
             f"{nxt.label} goes in the hole: measured length",
             value=default if prefill is None else prefill,
             hint=f"Enter keeps the planned {default}.  A bare number is in {unit}; "
-                 "20 ft 6 in, 20' 6\" or 6.25 m also work.  Empty: not measured.",
+                 "20 ft 6 in, 20' 6\" or 6.25 m also work.  Empty: not measured." + caution,
             parse=parse, prompt_id="prompt-run"), done)
 
     def action_undo(self) -> None:
@@ -338,7 +356,9 @@ class RigplanApp(App):
 
         self.push_screen(PromptScreen(
             f"Weight indicator: hook load with {s.step} joints in the hole",
-            hint=f"Planned now: {P.fmt(predicted, 'force', s.units)}.  A bare number is in {unit}.",
+            hint=(f"Planned now: {P.fmt(predicted, 'force', s.units)}." if predicted is not None
+                  else "No planned hook load to compare with (no plan, or a staged setting).")
+            + f"  A bare number is in {unit}.",
             parse=parse, prompt_id="prompt-weight"), done)
 
     def action_band(self) -> None:

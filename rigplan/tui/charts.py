@@ -13,6 +13,7 @@ Every series is the engine's, converted to display units.
 from __future__ import annotations
 
 import numpy as np
+from rich.markup import escape
 from textual.app import ComposeResult
 from textual.containers import Horizontal, Vertical
 from textual.widgets import Static
@@ -37,7 +38,7 @@ class ChartsView(Vertical):
     """The three charts side by side."""
 
     def compose(self) -> ComposeResult:
-        yield Static("", id="charts-note", classes="line dim")
+        yield Static("", id="charts-note", classes="line dim", markup=False)
         with Horizontal(id="charts-row"):
             yield PlotWidget(id="chart-hook")
             with Vertical(id="charts-right"):
@@ -59,13 +60,17 @@ class ChartsView(Vertical):
         f_unit = U.unit_label("force", sys_)
         l_unit = U.unit_label("length", sys_)
         shoe = U.to_display(np.asarray(lp.chosen.loads.shoe_depth, dtype=float), "length", sys_)
-        load = U.to_display(np.asarray(lp.hook_load, dtype=float), "force", sys_)
+        loads = session.step_hook_loads()
+        staged = loads is None
+        load = U.to_display(np.asarray(lp.hook_load if staged else loads, dtype=float),
+                            "force", sys_)
 
-        hook.set_xlabel(f"hook load [{f_unit}]")
-        hook.set_ylabel(f"shoe depth [{l_unit}]")
+        hook.set_xlabel(escape(f"hook load [{f_unit}]"))
+        hook.set_ylabel(escape(f"shoe depth [{l_unit}]"))
         hook.set_y_formatter(DepthFormatter())
-        hook.plot(load, -shoe, line_style="bright_cyan", hires_mode=HiResMode.BRAILLE,
-                  label="planned hook load")
+        hook.plot(load, -shoe, line_style="grey50" if staged else "bright_cyan",
+                  hires_mode=HiResMode.BRAILLE,
+                  label="one-piece run (not the staged plan)" if staged else "planned hook load")
         limit = float(U.to_display(lp.path.hook_limit, "force", sys_))
         if np.isfinite(limit):
             hook.add_v_line(limit, line_style="bright_red", label=f"hook limit ({lp.path.path})")
@@ -80,8 +85,8 @@ class ChartsView(Vertical):
         hook.show_legend(LegendLocation.TOPRIGHT)
 
         steps = np.arange(1, lp.joints.n + 1, dtype=float)
-        fill.set_xlabel("joints in the hole")
-        fill.set_ylabel(f"fill level [{l_unit}]")
+        fill.set_xlabel(escape("joints in the hole"))
+        fill.set_ylabel(escape(f"fill level [{l_unit}]"))
         fill.set_y_formatter(DepthFormatter())
         bf = lp.best_float
         if bf is not None:
@@ -98,8 +103,8 @@ class ChartsView(Vertical):
             fill.plot(steps, -shoe, line_style="grey50", label="shoe (no float: no fill window)")
             fill.show_legend(LegendLocation.BOTTOMLEFT)
 
-        util.set_xlabel("joint (1 = bottom)")
-        util.set_ylabel("utilization")
+        util.set_xlabel(escape("joint (1 = bottom)"))
+        util.set_ylabel(escape("utilization"))
         t_u = np.asarray(lp.chosen.tension_utilization, float)
         c_u = np.asarray(lp.chosen.collapse_utilization, float)
         util.plot(steps, t_u, line_style="bright_cyan", hires_mode=HiResMode.BRAILLE, label="tension")
@@ -111,6 +116,8 @@ class ChartsView(Vertical):
         unrated_t = int(np.isnan(t_u).sum())
         unrated_c = int(np.isnan(c_u).sum())
         parts = [f"Verdict: {lp.verdict}"]
+        if staged:
+            parts.append("staged setting: the planner gives stage peaks, not a hook load per joint")
         if unrated_t or unrated_c:
             parts.append(f"unrated (not drawn): tension {unrated_t} joints, collapse {unrated_c} joints")
         parts.append("focus a chart (Tab) to zoom with + and -, pan with the arrows, r resets")

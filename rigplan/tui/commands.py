@@ -26,6 +26,13 @@ class ActionSpec:
     title: str
     help: str
     context: str = GLOBAL
+    short: str = ""
+    show: bool = True
+
+    @property
+    def footer(self) -> str:
+        """Description in the footer (short)."""
+        return self.short or self.title
 
     @property
     def name(self) -> str:
@@ -39,46 +46,47 @@ class ActionSpec:
 
 ACTIONS = (
     ActionSpec("show_tab('overview')", "1", "1", "Overview",
-               "Verdict, governing limit, hoisting path and the crew's next action"),
+               "Verdict, governing limit, hoisting path and the crew's next action", show=False),
     ActionSpec("show_tab('tally')", "2", "2", "String and tally",
-               "The joints in running order with their loads; edit the plan"),
+               "The joints in running order with their loads; edit the plan", short="String",
+               show=False),
     ActionSpec("show_tab('running')", "3", "3", "Running",
-               "Record joints as they go in, weight readings, fill instructions"),
+               "Record joints as they go in, weight readings, fill instructions", show=False),
     ActionSpec("show_tab('charts')", "4", "4", "Charts",
-               "Hook load against shoe depth, fill window, utilization per joint"),
+               "Hook load against shoe depth, fill window, utilization per joint", show=False),
     ActionSpec("show_tab('rig')", "5", "5", "Rig",
-               "Each hoisting path's components, their ratings and what governs"),
+               "Each hoisting path's components, their ratings and what governs", show=False),
     ActionSpec("record_run", "r", "r", "Record joint run",
                "The next joint went in the hole: asks its measured length (Enter keeps the "
-               "planned length)", RUNNING),
+               "planned length)", RUNNING, short="Run joint"),
     ActionSpec("undo", "z", "z", "Undo last entry",
-               "Cancel the latest joint run or set aside (asks first)", RUNNING),
+               "Cancel the latest joint run or set aside (asks first)", RUNNING, short="Undo"),
     ActionSpec("reject", "j", "j", "Set joint aside",
-               "Reject the selected (or next) joint, with a reason", RUNNING),
+               "Reject the selected (or next) joint, with a reason", RUNNING, short="Set aside"),
     ActionSpec("observe", "w", "w", "Weight reading",
-               "Enter the weight indicator's hook load and compare it with the plan", RUNNING),
+               "Enter the weight indicator's hook load and compare it with the plan", RUNNING, short="Weight"),
     ActionSpec("band", "b", "b", "Weight band",
-               "Set the agreement band for weight readings (10 % or a force)", RUNNING),
+               "Set the agreement band for weight readings (10 % or a force)", RUNNING, short="Band"),
     ActionSpec("edit_cell", "e", "e/Enter", "Edit cell",
-               "Change the selected cell of the string (planned data)", TALLY),
+               "Change the selected cell of the string (planned data)", TALLY, short="Edit"),
     ActionSpec("insert_joint", "i", "i", "Insert joint",
-               "Insert a copy of the selected joint above it", TALLY),
+               "Insert a copy of the selected joint above it", TALLY, short="Insert"),
     ActionSpec("delete_joint", "d", "d", "Delete joint",
-               "Take the selected joint out of the plan (asks first)", TALLY),
+               "Take the selected joint out of the plan (asks first)", TALLY, short="Delete"),
     ActionSpec("move_joint(-1)", "left_square_bracket", "[", "Move joint down the hole",
-               "Move the selected joint one place earlier in the running order", TALLY),
+               "Move the selected joint one place earlier in the running order", TALLY, short="Down"),
     ActionSpec("move_joint(1)", "right_square_bracket", "]", "Move joint up the hole",
-               "Move the selected joint one place later in the running order", TALLY),
+               "Move the selected joint one place later in the running order", TALLY, short="Up"),
     ActionSpec("import_tally", "t", "t", "Import tally CSV",
-               "Apply measured lengths and set-asides from a tally sheet", TALLY),
+               "Apply measured lengths and set-asides from a tally sheet", TALLY, short="Import"),
     ActionSpec("save_plan", "s", "s", "Save plan",
-               "Write the edited plan over its file (atomic)", TALLY),
+               "Write the edited plan over its file (atomic)", TALLY, short="Save"),
     ActionSpec("export_tally", "x", "x", "Export tally CSV",
-               "Write the site tally from the run log beside the plan"),
+               "Write the site tally from the run log beside the plan", short="Export"),
     ActionSpec("toggle_units", "u", "u", "Units US/SI",
-               "Switch the display between US field units and SI"),
+               "Switch the display between US field units and SI", short="Units"),
     ActionSpec("next_path", "p", "p", "Next hoisting path",
-               "Plan with the rig's next hoisting path"),
+               "Plan with the rig's next hoisting path", short="Path"),
     ActionSpec("help", "question_mark,f1", "? F1", "Keys", "List every key"),
     ActionSpec("quit", "q", "q", "Quit", "Leave the app (the run log is already saved)"),
 )
@@ -95,7 +103,7 @@ WIDGET_KEYS = (
 
 
 def bindings() -> list:
-    return [Binding(a.keys, a.action, a.title, id=a.binding_id, tooltip=a.help,
+    return [Binding(a.keys, a.action, a.footer, show=a.show, id=a.binding_id, tooltip=a.help,
                     key_display=a.shown.split()[0] if a.shown else None)
             for a in ACTIONS]
 

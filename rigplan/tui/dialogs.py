@@ -38,12 +38,12 @@ class PromptScreen(ModalScreen):
 
     def compose(self) -> ComposeResult:
         with Vertical(classes="dialog"):
-            yield Label(self._title, classes="dialog-title")
+            yield Label(self._title, classes="dialog-title", markup=False)
             yield Input(value=self._value, id="prompt-input", select_on_focus=True)
             if self._hint:
-                yield Static(self._hint, classes="dialog-hint")
-            yield Static("", id="prompt-error", classes="dialog-error")
-            yield Static("Enter: accept   Esc: cancel", classes="dialog-keys")
+                yield Static(self._hint, classes="dialog-hint", markup=False)
+            yield Static("", id="prompt-error", classes="dialog-error", markup=False)
+            yield Static("Enter: accept   Esc: cancel", classes="dialog-keys", markup=False)
 
     def on_mount(self) -> None:
         self.query_one(Input).focus()
@@ -80,7 +80,7 @@ class ConfirmScreen(ModalScreen):
 
     def compose(self) -> ComposeResult:
         with Vertical(classes="dialog"):
-            yield Label(self._question, classes="dialog-title")
+            yield Label(self._question, classes="dialog-title", markup=False)
             with Horizontal(classes="dialog-buttons"):
                 yield _unfocusable(Button(f"{self._yes} (y)", id="yes", variant="primary"))
                 yield _unfocusable(Button(f"{self._no} (n)", id="no"))
@@ -103,7 +103,7 @@ class QuitScreen(ModalScreen):
 
     def compose(self) -> ComposeResult:
         with Vertical(classes="dialog"):
-            yield Label("The plan has edits not saved to its file.", classes="dialog-title")
+            yield Label("The plan has edits not saved to its file.", classes="dialog-title", markup=False)
             with Horizontal(classes="dialog-buttons"):
                 yield _unfocusable(Button("Save and quit (s)", id="save", variant="primary"))
                 yield _unfocusable(Button("Quit without saving (d)", id="discard", variant="error"))
@@ -127,12 +127,12 @@ class HelpScreen(ModalScreen):
 
     def compose(self) -> ComposeResult:
         with VerticalScroll(classes="dialog help"):
-            yield Label("Keys", classes="dialog-title")
+            yield Label("Keys", classes="dialog-title", markup=False)
             for title, rows in self._sections:
-                yield Label(title, classes="help-section")
+                yield Label(title, classes="help-section", markup=False)
                 text = "\n".join(f"  {keys:<16} {what}" for keys, what in rows)
-                yield Static(text, classes="help-keys")
-            yield Static("Esc, q or ? closes this list.", classes="dialog-keys")
+                yield Static(text, classes="help-keys", markup=False)
+            yield Static("Esc, q or ? closes this list.", classes="dialog-keys", markup=False)
 
     def action_close(self) -> None:
         self.dismiss(None)

@@ -20,16 +20,16 @@ class OverviewPane(VerticalScroll):
     """Verdict, governing limit, hoisting path and what the crew does next."""
 
     def compose(self) -> ComposeResult:
-        yield Static("", id="verdict")
-        yield Static("", id="governing", classes="line")
-        yield Static("", id="path-line", classes="line")
-        yield Static("", id="next-action", classes="line next")
-        yield Static("", id="fill-plan", classes="line")
-        yield Static("", id="float-line", classes="line")
-        yield Static("", id="switch-line", classes="line")
-        yield Static("", id="progress", classes="line")
-        yield Static("", id="reasons", classes="line dim")
-        yield Static("", id="warnings", classes="line dim")
+        yield Static("", id="verdict", markup=False)
+        yield Static("", id="governing", classes="line", markup=False)
+        yield Static("", id="path-line", classes="line", markup=False)
+        yield Static("", id="next-action", classes="line next", markup=False)
+        yield Static("", id="fill-plan", classes="line", markup=False)
+        yield Static("", id="float-line", classes="line", markup=False)
+        yield Static("", id="switch-line", classes="line", markup=False)
+        yield Static("", id="progress", classes="line", markup=False)
+        yield Static("", id="reasons", classes="line dim", markup=False)
+        yield Static("", id="warnings", classes="line dim", markup=False)
 
     def show(self, session) -> None:
         lp = session.landing
@@ -71,13 +71,18 @@ class OverviewPane(VerticalScroll):
 
 
 class _Grid(DataTable):
-    """A DataTable redrawn from ``(row key, cells)`` rows, updating in place
-    when the rows and columns are unchanged."""
+    """A DataTable redrawn from ``(row key, cells)`` rows.
+
+    Column widths are set from the text (never measured by the table), so a
+    redraw with the same rows and columns updates only the cells that
+    changed; anything else rebuilds the table.
+    """
 
     def __init__(self, **kwargs):
         super().__init__(zebra_stripes=True, **kwargs)
         self._columns_sig = None
         self._rows_sig = None
+        self._widths = ()
         self._cells = {}
         self._hl = None
 
@@ -86,17 +91,21 @@ class _Grid(DataTable):
         col_sig = tuple(columns)
         row_sig = tuple(k for k, _ in rows)
         keys = [c[0] for c in columns]
-        if col_sig != self._columns_sig or row_sig != self._rows_sig:
+        widths = [len(title) for _, title in columns]
+        for _, cells in rows:
+            for i, c in enumerate(cells):
+                if len(c) > widths[i]:
+                    widths[i] = len(c)
+        if (col_sig != self._columns_sig or row_sig != self._rows_sig
+                or any(w > old for w, old in zip(widths, self._widths))):
             cursor = self.cursor_coordinate
-            self.clear(columns=col_sig != self._columns_sig)
-            if col_sig != self._columns_sig:
-                for key, title in columns:
-                    self.add_column(title, key=key)
-            self._cells = {}
+            self.clear(columns=True)
+            for (key, title), w in zip(columns, widths):
+                self.add_column(Text(title), key=key, width=w)
             for key, cells in rows:
                 self.add_row(*self._styled(key, cells, highlight), key=key)
-                self._cells[key] = list(cells)
-            self._columns_sig, self._rows_sig = col_sig, row_sig
+            self._cells = {key: list(cells) for key, cells in rows}
+            self._columns_sig, self._rows_sig, self._widths = col_sig, row_sig, tuple(widths)
             self._hl = highlight
             if self.row_count:
                 self.move_cursor(row=min(cursor.row, self.row_count - 1),
@@ -104,25 +113,22 @@ class _Grid(DataTable):
             return
         for key, cells in rows:
             old = self._cells.get(key)
-            styled = self._styled(key, cells, highlight)
-            was_hl = self._hl == key
-            if old != cells or key == highlight or was_hl:
-                for ck, value in zip(keys, styled):
+            if old != cells or key == highlight or key == self._hl:
+                for ck, value in zip(keys, self._styled(key, cells, highlight)):
                     self.update_cell(key, ck, value)
                 self._cells[key] = list(cells)
         self._hl = highlight
 
     def _styled(self, key, cells, highlight):
-        if key != highlight:
-            return list(cells)
-        return [Text(c, style="bold reverse") for c in cells]
+        style = "bold reverse" if key == highlight else ""
+        return [Text(c, style=style) for c in cells]
 
 
 class TallyPane(Vertical):
     """The string joint by joint with its loads; plan edits."""
 
     def compose(self) -> ComposeResult:
-        yield Static("", id="tally-status", classes="line")
+        yield Static("", id="tally-status", classes="line", markup=False)
         yield _Grid(id="tally-table", cursor_type="cell")
 
     @property
@@ -164,10 +170,8 @@ class RunningPane(Horizontal):
     def compose(self) -> ComposeResult:
         yield _Grid(id="run-table", cursor_type="row")
         with VerticalScroll(id="run-side"):
-            yield Static("", id="run-summary")
-            yield Static("", id="weight-check")
-            yield Static("r run   z undo   j set aside   w weight reading   b band",
-                         id="run-keys", classes="dim")
+            yield Static("", id="run-summary", markup=False)
+            yield Static("", id="weight-check", markup=False)
 
     @property
     def table(self) -> _Grid:
@@ -202,26 +206,26 @@ class RigPane(VerticalScroll):
     """Each hoisting path: components, ratings at the hook, allowed string load."""
 
     def compose(self) -> ComposeResult:
-        yield Static("", id="rig-view")
+        yield Static("", id="rig-view", markup=False)
 
     def show(self, session) -> None:
         rig = session.rig
         parts = []
         for name, in_use, governing, rows, unrated, (s_lim, h_lim) in P.rig_tables(session):
             title = f"{name}{'  (in use)' if in_use else ''}"
-            t = Table(title=title, title_justify="left", expand=False)
-            t.add_column("Component")
-            t.add_column(f"Rating at hook [{U.unit_label('force', session.units)}]", justify="right")
-            t.add_column(f"Allowed string load [{U.unit_label('force', session.units)}]",
-                         justify="right")
-            t.add_column("")
+            t = Table(title=Text(title, style="bold"), title_justify="left", expand=False)
+            unit = U.unit_label("force", session.units)
+            t.add_column(Text("Component"))
+            t.add_column(Text(f"Rating at hook [{unit}]"), justify="right")
+            t.add_column(Text(f"Allowed string load [{unit}]"), justify="right")
+            t.add_column(Text(""))
             for comp, rating, allowed, gov in rows:
-                t.add_row(comp, rating, allowed,
+                t.add_row(Text(comp), rating, allowed,
                           "governs" if gov else "", style="bold" if gov else None)
             for u in unrated:
-                t.add_row(u, "unrated", "not counted", "")
-            t.caption = (f"string limit {s_lim}, hook limit {h_lim}; governed by "
-                         f"{governing or 'nothing rated'}")
+                t.add_row(Text(u), "unrated", "not counted", "")
+            t.caption = Text(f"string limit {s_lim}, hook limit {h_lim}; governed by "
+                             f"{governing or 'nothing rated'}")
             t.caption_justify = "left"
             parts.append(t)
         ls = rig.landing_string

@@ -94,7 +94,7 @@ def path_text(lp, system: str) -> str:
 def switch_text(lp) -> str:
     k = lp.switch_joint
     if k == 0:
-        return "Switch joint: none: run open-ended the string load stays inside the path's limit"
+        return "Switch joint: none (run open-ended, the string load stays inside the path's limit)"
     return (f"Switch joint: {joint_name(lp, k)}: open-ended, the string load passes the "
             f"path's limit there, so floating must have begun by then")
 
@@ -102,6 +102,9 @@ def switch_text(lp) -> str:
 def float_text(lp, system: str) -> str:
     bf = lp.best_float
     if bf is None:
+        if lp.float_options:
+            return ("Float equipment: no float position and fill fluid tried lands the string "
+                    "(see the reasons below)")
         if lp.chosen.closure.is_open:
             return "Float equipment: none needed (open shoe)"
         return f"Float equipment: {closure_name(lp.chosen.closure)}, no fill plan that lands"
@@ -138,7 +141,8 @@ def fill_instruction(lp, step: int, system: str) -> str:
     s = step + 1
     here = joint_name(lp, s)
     if lp.verdict == CANNOT_LAND:
-        return f"Do not run: the string cannot land with this rig ({lp.reasons[0] if lp.reasons else 'see reasons'})"
+        why = lp.reasons[0] if lp.reasons else "see the reasons on the Overview"
+        return f"Do not run: the string cannot land with this rig ({why})"
     if lp.verdict == LANDS_STAGED and lp.stages is not None:
         st = lp.stages
         if s <= st.split:
@@ -164,10 +168,10 @@ def fill_instruction(lp, step: int, system: str) -> str:
     if ups:
         u = ups[0]
         if u.joint == s:
-            return (f"Fill {both(u.volume, 'volume', system)} after {here} "
+            return (f"Fill {both(u.volume, 'volume', system)} with {here} at the floor "
                     f"(fill level then {fmt(u.level_after, 'length', system)} below the floor)")
         return (f"Run {here} without filling; next: fill {both(u.volume, 'volume', system)} "
-                f"after {joint_name(lp, u.joint)}")
+                f"with {joint_name(lp, u.joint)} at the floor")
     return f"Run {here} without filling: no more fill to landing"
 
 
@@ -184,18 +188,18 @@ def cautions_text(lp) -> str:
 TALLY_COLUMNS = (
     ("seq", "#", None, False),
     ("label", "Joint", None, True),
+    ("status", "Status", None, False),
     ("kind", "Kind", None, True),
-    ("material", "Material", None, True),
+    ("measured_length", "Tally", "length", True),
+    ("length", "Plan", "length", True),
+    ("top_depth", "Top at", "length", False),
+    ("max_tension", "Max tension", "force", False),
+    ("tension_util", "Tens. util", None, False),
+    ("collapse_util", "Coll. util", None, False),
     ("od", "OD", "diameter", True),
     ("wall", "Wall", "diameter", True),
-    ("length", "Planned", "length", True),
-    ("measured_length", "Measured", "length", True),
+    ("material", "Material", None, True),
     ("connection", "Connection", None, True),
-    ("top_depth", "Top landed", "length", False),
-    ("max_tension", "Max tension", "force", False),
-    ("tension_util", "Tension util", None, False),
-    ("collapse_util", "Collapse util", None, False),
-    ("status", "Status", None, False),
 )
 
 
@@ -205,11 +209,11 @@ def column_title(title: str, kind, system: str) -> str:
     return f"{title} [{U.unit_label(kind, system)}]"
 
 
-def joint_status(session, spec) -> str:
+def joint_status(session, spec, reason: bool = False) -> str:
     if session.in_hole(spec.label):
         return "in hole"
     if session.set_aside(spec.label):
-        return "set aside: " + session.state.rejected[spec.label]
+        return "set aside" + (": " + session.state.rejected[spec.label] if reason else "")
     if spec.rejected:
         return "rejected (plan)"
     nxt = session.next_joint()
@@ -285,6 +289,7 @@ RUN_COLUMNS = (
 def run_cells(session) -> list:
     """Rows of the running table: every joint in plan order."""
     lp = session.landing
+    loads = session.step_hook_loads()
     idx = session.engine_index()
     sys_ = session.units
     rows = []
@@ -293,13 +298,13 @@ def run_cells(session) -> list:
         step = "" if k is None else str(k + 1)
         if lp is not None and k is not None:
             shoe = number(lp.chosen.loads.shoe_depth[k], "length", sys_)
-            hook = number(lp.hook_load[k], "force", sys_)
+            hook = number(loads[k], "force", sys_) if loads is not None else "staged"
             fill = fill_marker(lp, k + 1)
         else:
             shoe = hook = fill = ""
         length = spec.run_length
         rows.append((spec.label, {
-            "step": step, "label": spec.label, "status": joint_status(session, spec),
+            "step": step, "label": spec.label, "status": joint_status(session, spec, reason=True),
             "length": number(length, "length", sys_) + ("" if spec.measured_length is not None
                                                           else " (plan)"),
             "shoe": shoe, "hook": hook, "fill": fill,
@@ -338,10 +343,18 @@ def running_summary(session) -> list:
                  (f"   next: {nxt.label}" if nxt is not None else "   all in"))
     shoe = float(lp.chosen.loads.shoe_depth[k - 1]) if k >= 1 else 0.0
     lines.append(f"Shoe depth: {fmt(shoe, 'length', sys_)}")
-    now = session.predicted_hook_load()
-    lines.append(f"Hook load now (planned): {fmt(now, 'force', sys_)}")
-    if k < n:
-        lines.append(f"After the next joint: {fmt(lp.hook_load[k], 'force', sys_)}")
+    loads = session.step_hook_loads()
+    if loads is None and lp.stages is not None:
+        st = lp.stages
+        lines.append("Hook load per joint: not given by the planner for a staged setting")
+        lines.append(f"Peak string load: stage 1 {fmt(st.stage1_peak, 'force', sys_)}, "
+                     f"stage 2 {fmt(st.stage2_peak, 'force', sys_)} (plus "
+                     f"{fmt(lp.dead_load, 'force', sys_)} of gear on the hook)")
+    else:
+        now = session.predicted_hook_load()
+        lines.append(f"Hook load now (planned): {fmt(now, 'force', sys_)}")
+        if k < n:
+            lines.append(f"After the next joint: {fmt(loads[k], 'force', sys_)}")
     lines.append(f"Hook capacity ({lp.path.path}): {fmt(lp.path.hook_limit, 'force', sys_)}")
     if k >= 1:
         lines.append(f"Capacity margin now: {percent(lp.chosen.capacity_margin[k - 1])}")

@@ -173,9 +173,12 @@ class JobSession:
 
     def recompute(self) -> None:
         """Apply the run state to the plan and ask the engine for the landing plan."""
-        self.plan = apply_run_state(self.base_plan, self.state)
         try:
-            self.landing = plan_job(self.plan, self.rig, self.path_name)
+            self.plan = apply_run_state(self.base_plan, self.state)
+            # Once a joint is in the hole the planned float equipment is
+            # installed: the planner must not move it.
+            self.landing = plan_job(self.plan, self.rig, self.path_name,
+                                    fixed_closure=bool(self.state.run))
             self.error = ""
         except InputError as exc:
             self.landing = None
@@ -268,17 +271,30 @@ class JobSession:
             self._after_event(event_id)
         return event_id
 
+    def step_hook_loads(self):
+        """The engine's planned hook load per running step [N], or None.
+
+        None without a plan and for a staged setting: the landing plan's
+        per-step hook load is that of a one-piece run, not of the stages
+        (the planner gives only each stage's peak).
+        """
+        from rigplan.planner import LANDS_STAGED
+        lp = self.landing
+        if lp is None or lp.verdict == LANDS_STAGED:
+            return None
+        return lp.hook_load
+
     def predicted_hook_load(self, step: int | None = None) -> float | None:
         """Planned hook load [N] with ``step`` joints in the hole (default: now)."""
-        lp = self.landing
-        if lp is None:
+        loads = self.step_hook_loads()
+        if loads is None:
             return None
         k = self.step if step is None else step
         if k == 0:
-            return float(lp.dead_load)
-        if k > lp.joints.n:
+            return float(self.landing.dead_load)
+        if k > len(loads):
             return None
-        return float(lp.hook_load[k - 1])
+        return float(loads[k - 1])
 
     def observe(self, hook_load_n: float, note: str = "") -> tuple:
         """Record a weight reading now; return (event id, WeightCheck or None)."""
@@ -471,13 +487,23 @@ class JobSession:
 
         Returns the number of rows applied.
         """
-        from rigplan.formats.planfile import _apply_tally
+        from rigplan.formats.planfile import apply_tally
         from rigplan.formats.tally import read_tally
         p = Path(path)
         if not p.is_absolute():
             p = self.plan_path.parent / p
         rows = read_tally(p)
-        joints = _apply_tally(list(self.base_plan.joints), rows, str(p))
+        for row in rows:
+            if self.in_hole(row.label) and (row.status == "rejected"
+                                            or row.measured_length is not None):
+                raise InputError(f"{p}: row {row.row}",
+                                 f"{row.label} is in the hole by the run log, which holds its "
+                                 "measured length; undo its run first or correct the tally")
+            if self.set_aside(row.label) and row.status != "rejected":
+                raise InputError(f"{p}: row {row.row}",
+                                 f"{row.label} is set aside in the run log; undo the rejection "
+                                 "first or mark it rejected in the tally")
+        joints = apply_tally(list(self.base_plan.joints), rows, str(p))
         self.apply_plan(self._check_plan(self._with_joints(joints, self._collar_label(self.base_plan))))
         return len(rows)
 

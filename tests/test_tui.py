@@ -1,0 +1,413 @@
+"""Terminal app: open a job, run joints, weight readings, units, edits, charts.
+
+The app shows what the engine returns; these tests drive it with Textual's
+Pilot and check (a) that what it shows and records is the engine's and the
+run log's, and (b) the few figures that can be checked by hand against
+published definitions and formulas (named beside each check).
+"""
+
+from __future__ import annotations
+
+import csv
+import re
+import subprocess
+import sys
+from pathlib import Path
+
+import numpy as np
+import pytest
+from numpy.testing import assert_allclose
+
+from _units import ft, inch, lbf
+from rigplan import CAUTION
+from rigplan.job import apply_run_state, load_job, plan_job
+from rigplan.runlog import RunLog, log_path_for
+
+SIZE = (140, 45)
+
+# A 16 in x 0.375 in welded steel string of 50 joints of 20 ft with a float
+# shoe, in 9.2 lb/gal mud, on a small rig: invented demo data (not a check
+# value; the checks below are derived from published formulas).
+PLAN_TOML = """\
+version = 1
+units = "us"
+name = "test string"
+well = "test well"
+
+[hole]
+fluid_density = "9.2 ppg"
+depth = "1100 ft"
+
+[[section]]
+kind = "float_shoe"
+material = "a53b"
+od = "16 in"
+wall = "0.375 in"
+joint_length = "20 ft"
+count = 1
+weld_efficiency = 0.85
+
+[[section]]
+kind = "blank"
+material = "a53b"
+od = "16 in"
+wall = "0.375 in"
+joint_length = "20 ft"
+count = 49
+weld_efficiency = 0.85
+
+[float_equipment]
+type = "float_shoe"
+
+[running]
+fill_density = "8.34 ppg"
+"""
+
+RIG_TOML = """\
+version = 1
+units = "us"
+name = "test rig"
+
+[[path]]
+name = "main line"
+lines = 2
+sheave_factor = 1.04
+winch_line_pull = "15000 lbf"
+rope_breaking_force = "60000 lbf"
+mast_rating = "40000 lbf"
+dead_load = "1500 lbf"
+overpull_reserve = "3000 lbf"
+
+[[path.tool]]
+name = "casing elevator"
+kind = "elevator"
+rating = "60000 lbf"
+
+[[path]]
+name = "top head"
+top_head_pullup = "20000 lbf"
+dead_load = "0 lbf"
+"""
+
+
+def write_job(directory: Path) -> tuple[Path, Path]:
+    """Write the test plan and rig into ``directory``; return their paths."""
+    directory.mkdir(parents=True, exist_ok=True)
+    plan = directory / "test-string.toml"
+    rig = directory / "test-rig.toml"
+    plan.write_text(PLAN_TOML, encoding="utf-8")
+    rig.write_text(RIG_TOML, encoding="utf-8")
+    return plan, rig
+
+
+@pytest.fixture
+def job(tmp_path):
+    return write_job(tmp_path)
+
+
+def make_app(plan, rig, **kw):
+    from rigplan.tui.app import build_app
+    app = build_app(plan, rig, **kw)
+    app.animation_level = "none"   # no tab underline animation to wait for
+    return app
+
+
+async def answer(pilot, text: str) -> None:
+    """Type into the open prompt (value set directly) and press Enter."""
+    from textual.widgets import Input
+    pilot.app.screen.query_one(Input).value = text
+    await pilot.press("enter")
+    await pilot.pause()
+
+
+def static_text(app, selector: str) -> str:
+    return str(app.query_one(selector).content)
+
+
+def engine_plan(plan_path, rig_path):
+    job = load_job(plan_path, rig_path)
+    with RunLog(log_path_for(plan_path)) as log:
+        state = log.state()
+    return plan_job(apply_run_state(job.plan, state), job.rig)
+
+
+def cell(table, row_key: str, column_key: str) -> str:
+    return str(table.get_cell(row_key, column_key))
+
+
+# ---------------------------------------------------------------------------
+
+
+async def test_open_shows_the_engine_verdict_and_the_hoisting_limit(job):
+    plan, rig = job
+    lp = engine_plan(plan, rig)
+    app = make_app(plan, rig)
+    async with app.run_test(size=SIZE) as pilot:
+        await pilot.pause()
+        assert static_text(app, "#verdict") == lp.verdict.upper()
+        assert CAUTION in static_text(app, "#caution")
+        # Hand check of the path's string limit shown.  Block efficiency
+        # E_n = (K^n - 1) / (n K^n (K - 1)) (Bourgoyne et al., Applied
+        # Drilling Engineering, 1986, ch. 1); hook rating of the winch =
+        # line pull x n x E_n; less the gear on the hook and the overpull
+        # reserve (common practice, no source).
+        k, n = 1.04, 2
+        e_n = (k**n - 1) / (n * k**n * (k - 1))
+        limit_lbf = 15000 * n * e_n - 1500 - 3000
+        text = static_text(app, "#path-line")
+        shown = float(re.search(r"string load of (\d+) lbf", text).group(1))
+        assert_allclose(shown, limit_lbf, atol=0.5)   # shown to the pound
+        assert "winch line pull" in text
+        # The open-ended string's buoyed weight W_air x (1 - MW/65.4) with the
+        # plain-end weight 10.69 (D - t) t lb/ft (ASTM A53/A53M plain-end
+        # weight formula; buoyancy factor for steel, Bourgoyne et al. 1986,
+        # ch. 7, from memory) far exceeds that limit, so the string cannot
+        # land open-ended: the verdict must say how else it lands.
+        w_air = 10.69 * (16 - 0.375) * 0.375 * 1000
+        buoyed = w_air * (1 - 9.2 / 65.4)
+        assert buoyed > 2 * limit_lbf
+        assert lp.verdict != "lands open"
+        assert static_text(app, "#next-action").startswith("Next for the crew:")
+
+
+async def test_run_undo_reject_weight_reading_export_and_resume(job):
+    plan, rig = job
+    app = make_app(plan, rig)
+    async with app.run_test(size=SIZE) as pilot:
+        await pilot.press("3")
+        # three joints with measured lengths: feet and inches, a bare number
+        # (display units, ft) and metres
+        for text in ("20 ft 1 in", "19.95", "6.1 m"):
+            await pilot.press("r")
+            await answer(pilot, text)
+        state = app.session.state
+        assert [lab for lab, _ in state.run] == ["J1", "J2", "J3"]
+        # exact unit definitions, NIST SP 811 (2008) B.8: ft = 0.3048 m, in = 0.0254 m
+        assert_allclose([v for _, v in state.run],
+                        [20 * ft + 1 * inch, 19.95 * ft, 6.1], rtol=1e-12)
+
+        await pilot.press("z")          # undo asks first
+        await pilot.press("y")
+        await pilot.pause()
+        assert [lab for lab, _ in app.session.state.run] == ["J1", "J2"]
+
+        await pilot.press("j")          # set the next joint (J3) aside
+        await answer(pilot, "dented pin end")
+        assert app.session.state.rejected == {"J3": "dented pin end"}
+        run_table = app.query_one("#run-table")
+        assert cell(run_table, "J3", "status").startswith("set aside")
+        assert cell(run_table, "J4", "status") == "NEXT"
+
+        await pilot.press("r", "enter")  # Enter keeps the planned length
+        await pilot.pause()
+        label, length = app.session.state.run[-1]
+        assert label == "J4"
+        assert_allclose(length, 20 * ft, rtol=1e-12)
+        assert app.session.log.events()[-1].note == "planned length accepted"
+
+        # planned hook load now, from the engine with the run applied
+        lp = engine_plan(plan, rig)
+        predicted_lbf = lp.hook_load[2] / lbf
+        await pilot.press("w")
+        await answer(pilot, f"{predicted_lbf * 1.02:.0f}")
+        box = app.query_one("#weight-check")
+        assert not box.has_class("warning")
+        await pilot.press("w")
+        await answer(pilot, f"{predicted_lbf * 1.5:.0f} lbf")
+        assert box.has_class("warning")
+        text = str(box.content)
+        assert "HEAVIER" in text and "fill not as planned" in text
+        obs = app.session.state.observations
+        assert len(obs) == 2 and obs[-1].step == 3
+        assert_allclose(obs[-1].predicted_n, lp.hook_load[2], rtol=1e-12)
+
+        await pilot.press("x")          # export the tally beside the plan
+        await pilot.pause()
+        out = plan.with_name(plan.stem + ".tally-export.csv")
+        rows = list(csv.DictReader(out.open(newline="")))
+        assert [r["label"] for r in rows if r["status"] == "run"] == ["J1", "J2", "J4"]
+        assert [r["label"] for r in rows if r["status"] == "rejected"] == ["J3"]
+
+        await pilot.press("q")
+        await pilot.pause()
+    assert app.return_code == 0
+
+    # reopen: the tally is intact and the run resumes at J5
+    app = make_app(plan, rig)
+    async with app.run_test(size=SIZE) as pilot:
+        await pilot.press("3")
+        t = app.query_one("#run-table")
+        assert [cell(t, f"J{i}", "status") for i in (1, 2, 4)] == ["in hole"] * 3
+        assert cell(t, "J3", "status") == "set aside: dented pin end"
+        assert cell(t, "J5", "status") == "NEXT"
+        await pilot.press("2")
+        g = app.query_one("#tally-table")
+        # 20 ft 1 in = 20.083 ft; 19.95 ft (shown to 0.01 ft)
+        assert cell(g, "J1", "measured_length") == "20.08"
+        assert cell(g, "J2", "measured_length") == "19.95"
+        assert cell(g, "J3", "status") == "set aside"
+
+
+async def test_units_toggle_changes_column_units(job):
+    plan, rig = job
+    app = make_app(plan, rig)
+    async with app.run_test(size=SIZE) as pilot:
+        await pilot.press("2")
+        g = app.query_one("#tally-table")
+        assert str(g.columns["length"].label) == "Plan [ft]"
+        assert cell(g, "J1", "length") == "20.00"
+        assert str(g.columns["od"].label) == "OD [in]"
+        await pilot.press("u")
+        await pilot.pause()
+        assert str(g.columns["length"].label) == "Plan [m]"
+        assert str(g.columns["od"].label) == "OD [mm]"
+        # 20 ft = 6.096 m and 16 in = 406.4 mm (NIST SP 811, 2008, B.8, exact)
+        assert cell(g, "J1", "length") == "6.10"
+        assert cell(g, "J1", "od") == "406.4"
+        assert "SI units" in app.sub_title
+
+
+async def test_plan_edits_are_checked_applied_and_saved(job):
+    from rigplan.formats.planfile import read_plan
+    from rigplan.tui.dialogs import PromptScreen
+    plan, rig = job
+    app = make_app(plan, rig)
+    async with app.run_test(size=SIZE) as pilot:
+        await pilot.press("2")
+        g = app.query_one("#tally-table")
+        g.move_cursor(row=g.get_row_index("J5"), column=g.get_column_index("length"))
+        await pilot.press("e")
+        await answer(pilot, "1,5")             # refused: a comma is never read
+        assert isinstance(app.screen, PromptScreen)
+        assert "comma" in str(app.screen.query_one("#prompt-error").content)
+        await answer(pilot, "25 ft")
+        assert not isinstance(app.screen, PromptScreen)
+        assert_allclose(app.session.joint("J5").length, 25 * ft, rtol=1e-12)
+        assert app.session.dirty
+
+        await pilot.press("i")                 # copy of J5 above it
+        await pilot.pause()
+        labels = [j.label for j in app.session.base_plan.joints]
+        assert labels[4:6] == ["J5", "J51"] and len(labels) == 51
+        await pilot.press("d")                 # delete the copy (asks first)
+        await pilot.press("y")
+        await pilot.pause()
+        assert "J51" not in [j.label for j in app.session.base_plan.joints]
+        g.move_cursor(row=g.get_row_index("J5"))
+        await pilot.press("right_square_bracket")   # later in the running order
+        await pilot.pause()
+        labels = [j.label for j in app.session.base_plan.joints]
+        assert labels[3:6] == ["J4", "J6", "J5"]
+        await pilot.press("s")
+        await pilot.pause()
+        assert not app.session.dirty
+    read = read_plan(plan).plan
+    assert [j.label for j in read.joints][3:6] == ["J4", "J6", "J5"]
+    assert_allclose(read.joints[5].length, 25 * ft, rtol=1e-11)
+    assert read.closure.valve_joint == 0      # the float shoe stays
+
+
+async def test_tally_import_applies_measured_lengths(job, tmp_path):
+    plan, rig = job
+    (tmp_path / "site.tally.csv").write_text(
+        "label,measured_length [ft],status,note\nJ1,20 ft 6 in,run,\nJ2,,rejected,bent\n",
+        encoding="utf-8")
+    app = make_app(plan, rig)
+    async with app.run_test(size=SIZE) as pilot:
+        await pilot.press("2")
+        await pilot.press("t")
+        await answer(pilot, "site.tally.csv")
+        # 20 ft 6 in = 246 in x 0.0254 m (NIST SP 811, 2008, B.8)
+        assert_allclose(app.session.joint("J1").measured_length, 246 * inch, rtol=1e-12)
+        assert app.session.joint("J2").rejected
+        assert cell(app.query_one("#tally-table"), "J1", "measured_length") == "20.50"
+
+
+def test_tally_import_cannot_contradict_the_run_log(job, tmp_path):
+    from rigplan.errors import InputError
+    from rigplan.tui.session import JobSession
+    plan, rig = job
+    (tmp_path / "t.csv").write_text("label,status,note\nJ1,rejected,bent\n", encoding="utf-8")
+    session = JobSession(plan, rig)
+    try:
+        session.record_run(20 * ft)
+        with pytest.raises(InputError, match="J1 is in the hole"):
+            session.import_tally("t.csv")
+        assert not session.joint("J1").rejected and not session.dirty
+    finally:
+        session.close()
+
+
+async def test_charts_tab_plots_the_engine_hook_load(job):
+    plan, rig = job
+    lp = engine_plan(plan, rig)
+    app = make_app(plan, rig)
+    async with app.run_test(size=SIZE) as pilot:
+        assert not app.query("PlotWidget")
+        await pilot.press("4")
+        await pilot.pause()
+        plots = app.query("PlotWidget")
+        assert len(plots) == 3
+        hook = app.query_one("#chart-hook")
+        line = hook._datasets[0]
+        # 1 lbf = 4.4482216152605 N (NIST SP 811, 2008, B.8); depth drawn downward
+        assert_allclose(line.x, lp.hook_load / lbf, rtol=1e-12)
+        assert_allclose(line.y, -lp.chosen.loads.shoe_depth / ft, rtol=1e-12)
+        assert_allclose(hook._v_lines[0].x, lp.path.hook_limit / lbf, rtol=1e-12)
+        await pilot.press("u")           # redrawn in SI
+        await pilot.pause()
+        assert_allclose(app.query_one("#chart-hook")._datasets[0].x, lp.hook_load / 1e3,
+                        rtol=1e-12)
+
+
+async def test_help_lists_every_key_and_palette_has_every_action(job):
+    from rigplan.tui.commands import ACTIONS, RigplanCommands
+    from rigplan.tui.dialogs import HelpScreen
+    plan, rig = job
+    app = make_app(plan, rig)
+    async with app.run_test(size=SIZE) as pilot:
+        await pilot.press("question_mark")
+        await pilot.pause()
+        assert isinstance(app.screen, HelpScreen)
+        text = "\n".join(str(s.content) for s in app.screen.query(".help-keys"))
+        for a in ACTIONS:
+            assert a.title in text and a.shown in text
+        await pilot.press("escape")
+        await pilot.pause()
+        provider = RigplanCommands(app.screen)
+        hits = [h async for h in provider.discover()]
+        assert sorted(h.text for h in hits) == sorted(a.title for a in ACTIONS)
+        units_hit = [h async for h in provider.search("Units")][0]
+        await units_hit.command()
+        await pilot.pause()
+        assert app.session.units == "si"
+
+
+def test_app_module_does_not_import_the_plot_library():
+    # startup stays fast: textual-plot is imported only with the Charts tab
+    code = ("import sys, rigplan.tui.app, rigplan.tui.panes; "
+            "print('textual_plot' in sys.modules)")
+    out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
+                         cwd=Path(__file__).resolve().parents[1], check=True)
+    assert out.stdout.strip() == "False"
+
+
+def test_session_layer_imports_no_textual():
+    code = ("import sys, rigplan.tui, rigplan.tui.session, rigplan.tui.present; "
+            "print('textual' in sys.modules)")
+    out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
+                         cwd=Path(__file__).resolve().parents[1], check=True)
+    assert out.stdout.strip() == "False"
+
+
+def test_weight_band_compares_both_ways():
+    from rigplan.tui.session import compare_reading
+    # +/-10 % band (common practice, no source)
+    inside = compare_reading(104.0, 100.0, 0.10, 0.0, 5)
+    low = compare_reading(85.0, 100.0, 0.10, 0.0, 5)
+    high = compare_reading(100.0, 100.0 - 30.0, 0.10, 20.0, 5)   # force floor 20
+    assert not inside.outside and inside.causes == ()
+    assert low.outside and any("heavier than entered" in c for c in low.causes)
+    assert high.outside and high.tolerance == 20.0
+    assert any("fill not as planned" in c for c in high.causes)
+    assert np.isclose(low.difference, -15.0)
