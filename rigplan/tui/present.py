@@ -78,7 +78,7 @@ def governing_text(lp, system: str) -> str:
         return "Governing limit: none found"
     if g.capacity == 0 and g.load == 0:
         return f"Governing limit: {g.name} at {g.where}, margin {percent(g.margin)}"
-    kind = "force" if "tension" in g.name or "hoisting" in g.name else "pressure"
+    kind = getattr(g, "kind", "force")
     return (f"Governing limit: {g.name} at {g.where}: load {fmt(g.load, kind, system)} "
             f"against {fmt(g.capacity, kind, system)}, margin {percent(g.margin)}")
 
@@ -229,12 +229,11 @@ def tally_cells(session) -> list:
     sys_ = session.units
     rows = []
     if lp is not None:
-        shoe = lp.chosen.loads.shoe_depth
-        landed = float(shoe[-1])
+        tops = lp.landed.top_depth      # landed depth of each joint's top (engine)
     for i, spec in enumerate(session.plan.joints, start=1):
         k = idx.get(spec.label)
         if lp is not None and k is not None:
-            top = number(landed - float(shoe[k]), "length", sys_)
+            top = number(tops[k], "length", sys_)
             tension = number(lp.chosen.loads.envelope_max[k], "force", sys_)
             t_util = ratio(lp.chosen.tension_utilization[k])
             c_util = ratio(lp.chosen.collapse_utilization[k])
