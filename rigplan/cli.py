@@ -75,7 +75,7 @@ def cmd_check(args) -> int:
         sys.stdout.write("\n")
     else:
         from rich.console import Console
-        console = Console(highlight=False)
+        console = Console(highlight=False, width=None if sys.stdout.isatty() else 120)
         for r in text_renderables(landing, job.plan, args.units, job.warnings, job.rig.name,
                                   all_steps=not args.brief):
             console.print(r)

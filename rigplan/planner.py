@@ -80,8 +80,8 @@ class FloatOption:
 
     closure: Closure
     fill_density: float
-    window: FillWindow
-    schedule: FillSchedule
+    window: FillWindow | None      # None when the position cannot float at all
+    schedule: FillSchedule | None
     check: RunCheck | None
     lands: bool
     reason: str = ""
@@ -193,11 +193,28 @@ def _governing(check: RunCheck) -> Limit:
     return min(check.limits, key=lambda lim: lim.margin)
 
 
-def _float_closures(n: int, planned: Closure, settings: Settings):
+#: Joint kinds open to the hole through their wall: a check valve below one
+#: cannot keep the bore above it empty.
+OPEN_WALL_KINDS = ("screen",)
+
+
+def top_open_wall_joint(joints: JointArrays) -> int:
+    """1-based number of the highest screen joint (0: none)."""
+    idx = [i for i, k in enumerate(joints.kind) if k in OPEN_WALL_KINDS]
+    return idx[-1] + 1 if idx else 0
+
+
+def _float_closures(n: int, planned: Closure, settings: Settings, top_screen: int = 0):
     seen = []
     cands = [planned] if not planned.is_open else []
+    if top_screen:
+        # a float collar on the top screen joint keeps the screens in the shoe track
+        cands.append(Closure(top_screen, planned.valve_rating))
     cands.append(Closure(0, planned.valve_rating))
     cands += [Closure(m, planned.valve_rating) for m in settings.float_collar_positions]
+    # positions below the top screen cannot float (the planned one is still
+    # reported, with the reason)
+    cands = [c for c in cands if c is planned or (c.valve_joint or 0) >= top_screen]
     for c in cands:
         if c.valve_joint is not None and 0 <= c.valve_joint < n and \
                 c.valve_joint not in [s.valve_joint for s in seen]:
@@ -216,6 +233,14 @@ def try_float(joints: JointArrays, hole: Hole, closure: Closure, fill_density: f
     """
     d = settings.design
     limit = string_limit
+    top_screen = top_open_wall_joint(joints)
+    m = closure.valve_joint or 0
+    if top_screen > m:
+        return FloatOption(
+            closure, fill_density, None, None, None, False,
+            f"joint {top_screen} ({joints.label[top_screen - 1]}) is a screen above the check "
+            f"valve: hole fluid enters through it, so the pipe cannot be floated; put the float "
+            f"collar on joint {top_screen} or higher")
     window = fill_window(joints, hole, closure, fill_density, limit,
                          settings.min_running_weight, d.collapse)
     schedule = fill_schedule(joints, hole, closure, fill_density, limit,
@@ -258,7 +283,7 @@ def float_notes(opt: FloatOption, n: int) -> list:
 
 
 def _option_key(opt: FloatOption):
-    if not opt.lands:
+    if not opt.lands or opt.schedule is None:
         return (0, 0, -np.inf)
     return (1, -len(opt.schedule.top_ups), round(min(opt.schedule.least_margin,
                                                      _governing(opt.check).margin), 4))
@@ -349,7 +374,8 @@ def plan_landing(joints: JointArrays, hole: Hole, rig: Rig, settings: Settings,
             reasons.append("the planned float equipment does not keep every limit, but the "
                            "string lands open-ended: run it without the check valve")
     if verdict is None:
-        others = [c for c in _float_closures(joints.n, Closure(), settings)
+        others = [c for c in _float_closures(joints.n, Closure(), settings,
+                                             top_open_wall_joint(joints))
                   if c.valve_joint != closure.valve_joint]
         tried = [try_float(joints, hole, c, rho, limit, settings) for c in others for rho in fluids]
         options += tried

@@ -26,14 +26,14 @@ def _f(x):
     return x if math.isfinite(x) else None
 
 
-def next_action(landing) -> str:
+def next_action(landing, system: str = "si") -> str:
     """The crew's next instruction in words (from the chosen plan)."""
     if landing.verdict == LANDS_OPEN:
         return "run open-ended: the hole fluid fills the pipe through the shoe"
     if landing.verdict == LANDS_STAGED and landing.stages is not None:
         s = landing.stages
-        return (f"run joints 1-{s.split} on the landing string, release at "
-                f"{s.release_depth:.1f} m, then run the rest")
+        return (f"run joints 1-{s.split} on the landing string, release with its top at "
+                f"{U.format(s.release_depth, 'length', system, 1)}, then run the rest")
     opt = landing.best_float
     if opt is None:
         return "no plan lands this string: see the reasons"
@@ -41,7 +41,7 @@ def next_action(landing) -> str:
     words = [f"{closure_name(opt.closure)}: fill each joint to the top through joint "
              f"{sch.fill_to_top_through}, then stop filling"]
     for t in sch.top_ups:
-        words.append(f"top up {t.volume * 1000:.0f} L at joint {t.joint}")
+        words.append(f"top up {U.format(t.volume, 'volume', system, 0)} at joint {t.joint}")
     return "; ".join(words)
 
 
@@ -151,9 +151,10 @@ def plan_dict(landing, plan=None, warnings=(), rig_name: str = "") -> dict:
         out["float_options"].append({
             "closure": closure_name(o.closure), "valve_joint": o.closure.valve_joint,
             "fill_density": _f(o.fill_density), "lands": o.lands,
-            "top_ups": len(o.schedule.top_ups),
-            "fill_to_top_through": o.schedule.fill_to_top_through,
-            "least_margin": _f(o.schedule.least_margin) if o.schedule.feasible else None,
+            "top_ups": len(o.schedule.top_ups) if o.schedule else None,
+            "fill_to_top_through": o.schedule.fill_to_top_through if o.schedule else None,
+            "least_margin": _f(o.schedule.least_margin)
+            if o.schedule and o.schedule.feasible else None,
             "reason": o.reason})
     st = landing.stages
     if st is not None:
@@ -228,7 +229,7 @@ def text_renderables(landing, plan=None, system: str = "us", warnings=(), rig_na
     head.append(f"\nRig: {rig_name}, path '{cap.path}': hook limit "
                 f"{_q(cap.hook_limit, 'force', system, 0)} (string {_q(cap.string_limit, 'force', system, 0)}"
                 f" after {_q(landing.dead_load, 'force', system, 0)} dead load), governed by {cap.governing}")
-    head.append(f"\nNext action: {next_action(landing)}")
+    head.append(f"\nNext action: {next_action(landing, system)}")
     if landing.switch_joint:
         head.append(f"\nOpen-ended the string load passes the limit at joint "
                     f"{landing.switch_joint}: floating must begin before it")
@@ -265,8 +266,10 @@ def text_renderables(landing, plan=None, system: str = "us", warnings=(), rig_na
                 ft.add_column(c)
             for o in landing.float_options:
                 ft.add_row(closure_name(o.closure), _q(o.fill_density, "density", system, 2),
-                           "yes" if o.lands else "no", str(len(o.schedule.top_ups)),
-                           _pct(o.schedule.least_margin) if o.schedule.feasible else "-",
+                           "yes" if o.lands else "no",
+                           str(len(o.schedule.top_ups)) if o.schedule else "-",
+                           _pct(o.schedule.least_margin) if o.schedule and o.schedule.feasible
+                           else "-",
                            o.reason)
             out.append(ft)
     st = landing.stages

@@ -157,3 +157,42 @@ def test_engine_imports_without_textual_or_rich():
              "print([m for m in ('pint','textual','rich') if m in sys.modules])")
     out2 = subprocess.run([sys.executable, "-c", code2], capture_output=True, text=True, check=True)
     assert out2.stdout.strip() == "[]"
+
+
+def test_screen_above_a_float_shoe_cannot_float(tmp_path, capsys):
+    # Common practice, no source: slotted or wire-wrap screen lets hole fluid
+    # into the bore, so a check valve below it floats nothing; the float
+    # collar must sit on the top screen joint or above.
+    plan = tmp_path / "scr.toml"
+    plan.write_text('''units = "us"
+name = "screens"
+well = "S-1"
+[hole]
+fluid_density = "9.4 ppg"
+[[section]]
+kind = "screen"
+material = "ss304"
+od = "16 in"
+wall = "0.375 in"
+joint_length = "20 ft"
+count = 3
+weld_efficiency = 0.85
+tensile_rating = "90000 lbf"
+collapse_rating = "200 psi"
+weight_per_length = "38 lb/ft"
+[[section]]
+kind = "blank"
+material = "a53b"
+od = "16 in"
+wall = "0.375 in"
+joint_length = "20 ft"
+count = 60
+weld_efficiency = 0.85
+[float_equipment]
+type = "float_shoe"
+''')
+    code, doc = run_json(capsys, str(plan), "--rig", "th30")
+    shoe = [o for o in doc["float_options"] if o["closure"] == "float shoe"]
+    assert shoe and not shoe[0]["lands"] and "screen above the check valve" in shoe[0]["reason"]
+    # the planner offers a float collar on the top screen joint instead
+    assert any(o["valve_joint"] == 3 for o in doc["float_options"])
