@@ -200,8 +200,13 @@ OPEN_WALL_KINDS = ("screen",)
 
 def top_open_wall_joint(joints: JointArrays) -> int:
     """1-based number of the highest screen joint (0: none)."""
-    idx = [i for i, k in enumerate(joints.kind) if k in OPEN_WALL_KINDS]
-    return idx[-1] + 1 if idx else 0
+    # searched from the top by the tuple's own (C) search, not joint by joint
+    kinds = tuple(joints.kind)[::-1]
+    top = 0
+    for kind in OPEN_WALL_KINDS:
+        if kind in kinds:
+            top = max(top, len(kinds) - kinds.index(kind))
+    return top
 
 
 def _float_closures(n: int, planned: Closure, settings: Settings, top_screen: int = 0):
@@ -268,7 +273,8 @@ def float_notes(opt: FloatOption, n: int) -> list:
         return notes
     if e.collapse_step:
         notes.append(f"{name}: left empty the pipe would collapse by joint {e.collapse_step}"
-                     + (f"; never leave more than {e.longest_empty:.1f} m empty above the valve"
+                     + (f"; never leave more than {e.longest_empty:.1f} m "
+                        f"({e.longest_empty / 0.3048:.0f} ft) empty above the valve"
                         if np.isfinite(e.longest_empty) else ""))
     if e.negative_step:
         notes.append(f"{name}: left empty the string floats (negative hook load) from joint "
@@ -404,7 +410,8 @@ def plan_landing(joints: JointArrays, hole: Hole, rig: Rig, settings: Settings,
                 verdict = CANNOT_LAND
 
     notes = []
-    for o in ([best] if best is not None else []) + [o for o in options if o is not best][:1]:
+    shown = [best] if best is not None else [o for o in options if o.empty is not None][:1]
+    for o in shown:
         notes += float_notes(o, joints.n)
     unrated = tuple(chosen.unrated)
     if verdict in (LANDS_OPEN, LANDS_FLOATED) and unrated:

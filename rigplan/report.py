@@ -45,6 +45,35 @@ def next_action(landing, system: str = "si") -> str:
     return "; ".join(words)
 
 
+def step_actions(landing, system: str = "si") -> list:
+    """What the crew does at each running step, in words (from the plan)."""
+    n = landing.joints.n
+    acts = [""] * n
+    if landing.verdict == LANDS_STAGED and landing.stages is not None:
+        p = landing.stages.split
+        acts[p - 1] = "make up the landing string, lower and release stage 1"
+        if p < n:
+            acts[p] = "stage 2: first joint"
+        return acts
+    opt = landing.best_float
+    if opt is None or landing.chosen.closure.is_open:
+        return acts
+    m = opt.closure.valve_joint or 0
+    sch = opt.schedule
+    for k in range(n):
+        if k < m:
+            acts[k] = "shoe track: fills from the hole"
+        elif k < sch.fill_to_top_through:
+            acts[k] = "fill to the top"
+        elif k == sch.fill_to_top_through:
+            acts[k] = "stop filling"
+    if m == 0 or m < n:
+        acts[m] = ("float collar on this joint's bottom; " if m else "") + acts[m]
+    for t in sch.top_ups:
+        acts[t.joint - 1] = f"top up {U.format(t.volume, 'volume', system, 0)}"
+    return acts
+
+
 def plan_dict(landing, plan=None, warnings=(), rig_name: str = "") -> dict:
     """One JSON object for a plan, all values SI (see README, JSON keys)."""
     j = landing.joints
@@ -290,6 +319,8 @@ def text_renderables(landing, plan=None, system: str = "us", warnings=(), rig_na
     st_t = Table(title=f"Running steps ({closure_name(chk.closure)})")
     for c in ("joint", "shoe depth", "fill level", "hook load", "capacity", "margin"):
         st_t.add_column(c, justify="right")
+    actions = step_actions(landing, system)
+    st_t.add_column("crew action")
     hook = loads.string_load + landing.dead_load
     rows = range(n) if all_steps or n <= 40 else list(range(10)) + list(range(n - 10, n))
     for k in rows:
@@ -298,7 +329,7 @@ def text_renderables(landing, plan=None, system: str = "us", warnings=(), rig_na
         m = chk.capacity_margin[k]
         st_t.add_row(f"{k + 1} {j.label[k]}", _q(loads.shoe_depth[k], "length", system, 1), fl,
                      _q(hook[k], "force", system, 0), _q(cap.hook_limit, "force", system, 0),
-                     Text(_pct(m), "red" if m < 0 else ""))
+                     Text(_pct(m), "red" if m < 0 else ""), actions[k])
     out.append(st_t)
 
     tu = chk.tension_utilization
