@@ -36,7 +36,10 @@ change, the check valve) carry a pressure force.  Between two such
 between, so the true force at every connection at every step needs
 ``O(N x I)`` work, ``N`` joints and ``I`` active interfaces, not
 ``O(N^2)``.  It is quadratic only when every joint changes cross-section.
-Memory is bounded by processing the steps in blocks.
+The collapse envelope evaluates every joint above the valve at the ends of
+each run of steps with a constant fill level or height: ``O(N x E)`` for
+``E`` runs, quadratic only when the fill changes at every joint (a top-up
+with each joint).  Memory is bounded by processing the steps in blocks.
 """
 
 from __future__ import annotations
@@ -95,7 +98,7 @@ def string_geometry(joints: JointArrays, closure: Closure) -> StringGeometry:
     inputs = (joints.length, joints.od, joints.bore, joints.weight)
     for entry in tuple(_GEOMETRY_CACHE):
         if entry[0] is joints and entry[1] == valve and all(
-                np.array_equal(a, b) for a, b in zip(entry[2], inputs)):
+                a.shape == np.shape(b) and bool((a == b).all()) for a, b in zip(entry[2], inputs)):
             return entry[3]
     geo = _build_geometry(joints, closure)
     for name in ("bottom", "top", "outside_area", "bore_area", "fill_side", "cum_weight",
@@ -399,10 +402,20 @@ def _loads_at(geo, hole, fill_density, level, k, j):
         points.append(np.clip(zs - h_o, x0, x1))
     worst = best = None
     for p in points:
+        # d = go (z - h_o)+ - gf (z - lv)+, worked in place
         z = zs - p
-        d = go * np.maximum(0.0, z - h_o) - gf * np.maximum(0.0, z - lv)
-        worst = d if worst is None else np.maximum(worst, d)
-        best = d if best is None else np.minimum(best, d)
+        d = z - h_o
+        np.maximum(0.0, d, out=d)
+        d *= go
+        z -= lv
+        np.maximum(0.0, z, out=z)
+        z *= gf
+        d -= z
+        if worst is None:
+            worst, best = d, d.copy()
+        else:
+            np.maximum(worst, d, out=worst)
+            np.minimum(best, d, out=best)
     return worst, best
 
 
@@ -452,8 +465,10 @@ def collapse_envelope(geo: StringGeometry, hole: Hole, fill_density: float,
         k = ends[i0:i0 + block][:, None]
         jj = fill_j[None, :]
         worst, best = _loads_at(geo, hole, fill_density, level, k, jj)
-        inside = jj <= k
-        take(k, np.where(inside, worst, -np.inf), np.where(inside, best, np.inf))
+        outside = jj > k                      # joints not yet in the hole
+        worst[outside] = -np.inf
+        best[outside] = np.inf
+        take(k, worst, best)
     # Each joint's entry step (it is then the top joint).
     k = fill_j[None, :]
     worst, best = _loads_at(geo, hole, fill_density, level, k, fill_j[None, :])

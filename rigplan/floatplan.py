@@ -27,6 +27,15 @@ pipe's faces, so the pressure-area sum over those faces equals its weight
 Sources: the mechanics reference (floating and fill-up conventions);
 Bourgoyne et al., *Applied Drilling Engineering* (1986), ch. 7 (casing
 design loads).  The schedule search is this project's own method.
+
+Cost: the window and the collapse checks take ``O(N x S)`` for ``N`` joints
+and ``S`` governing collapse sections (with the hole fluid at least as
+heavy as the fill, the runs of equal rating weaker than everything below
+them, usually one or two; otherwise every run of equal rating), so they
+are quadratic only when nearly every joint above the valve is a section
+of its own.
+The schedule search steps from top-up to top-up (``O(T log N)`` for ``T``
+top-ups) and evaluates its candidates together.
 """
 
 from __future__ import annotations
@@ -43,12 +52,52 @@ _EMPTY = 1e12  # a fill level deeper than any string [m]: empty above the valve
 _BLOCK_ELEMENTS = 1 << 20  # largest (steps x sections) array built at once
 
 
+#: Values derived from a string geometry, kept with it: ``id(geo) ->
+#: (geo, {key: value})``.  Geometries are read-only (rigplan.axial), so what
+#: is derived from one alone stays valid; keys carry any other input.
+_DERIVED: dict = {}
+_DERIVED_SIZE = 16
+
+
+def _derived(geo: StringGeometry, key, make):
+    """``make()`` for this geometry and key, computed once."""
+    entry = _DERIVED.get(id(geo))
+    if entry is None or entry[0] is not geo:
+        if len(_DERIVED) >= _DERIVED_SIZE:
+            _DERIVED.clear()
+        entry = (geo, {})
+        _DERIVED[id(geo)] = entry
+    values = entry[1]
+    if key not in values:
+        values[key] = make()
+    return values[key]
+
+
+def _read_only(*arrays):
+    for a in arrays:
+        a.flags.writeable = False
+    return arrays
+
+
 def _bore_volume_table(geo: StringGeometry):
     """Knots of the bore volume curve: heights of the joint tops above the
     shoe [m] (0 first) and the bore volume below each [m^3]."""
-    knots = np.concatenate(([0.0], geo.top))
-    vols = np.concatenate(([0.0], np.cumsum(geo.bore_area * np.diff(knots))))
-    return knots, vols
+    def make():
+        knots = np.concatenate(([0.0], geo.top))
+        vols = np.concatenate(([0.0], np.cumsum(geo.bore_area * np.diff(knots))))
+        return _read_only(knots, vols)
+
+    return _derived(geo, "bore volume", make)
+
+
+def _sections(geo: StringGeometry, allowable: np.ndarray, hole: Hole, fill_density: float):
+    """:func:`_governing_sections` of :func:`collapse_sections` (first,
+    last, allowable), computed once per geometry and allowable loads."""
+    allowable = np.ascontiguousarray(allowable, dtype=float)
+    heavier_outside = bool(hole.fluid_density >= fill_density)
+    key = ("sections", allowable.tobytes(), heavier_outside)
+    return _derived(geo, key, lambda: _read_only(*_governing_sections(
+        collapse_sections(geo, allowable), hole, fill_density)))
 
 
 def bore_volume_below(geo: StringGeometry, height):
@@ -75,7 +124,7 @@ def collapse_sections(geo: StringGeometry, allowable: np.ndarray):
     if len(idx) == 0:
         return np.zeros(0, int), np.zeros(0, int), np.zeros(0)
     a = allowable[idx]
-    brk = np.flatnonzero((np.diff(idx) != 1) | (np.diff(a) != 0)) + 1
+    brk = np.flatnonzero((idx[1:] - idx[:-1] != 1) | (a[1:] != a[:-1])) + 1
     first = idx[np.concatenate(([0], brk))]
     last = idx[np.concatenate((brk - 1, [len(idx) - 1]))]
     return first, last, allowable[first]
@@ -119,13 +168,24 @@ def collapse_required_height(geo: StringGeometry, hole: Hole, fill_density: floa
     step: "collapse", "check valve" or "").  ``-inf`` means no requirement;
     ``+inf`` means none is possible (e.g. an air-filled string).
     """
+    need, code = _collapse_required_height(geo, hole, fill_density, allowable, valve_allowable)
+    return need, _LIMIT_NAMES[code]
+
+
+#: Names of the limits that bound the fill from below, by code.
+_LIMIT_NAMES = np.array(["", "collapse", "check valve", "running weight"], dtype=object)
+
+
+def _collapse_required_height(geo, hole, fill_density, allowable, valve_allowable):
+    """:func:`collapse_required_height` with the limit as a code into
+    :data:`_LIMIT_NAMES` (int8 per step)."""
     n = len(geo.top)
     shoe = geo.top
-    first, last, r = _governing_sections(collapse_sections(geo, allowable), hole, fill_density)
+    first, last, r = _sections(geo, allowable, hole, fill_density)
     rho_o, h_o = hole.fluid_density, hole.fluid_level
     grad_f = fill_density * G
     need = np.full(n, -np.inf)
-    limit = np.full(n, "", dtype=object)
+    limit = np.zeros(n, dtype=np.int8)
 
     def from_face(p_face, x_face, allow):
         excess = p_face - allow
@@ -154,7 +214,7 @@ def collapse_required_height(geo: StringGeometry, hole: Hole, fill_density: floa
         s_c = np.where(x_star <= x_b, -np.inf, np.where(x_star <= x_t, x_star, s_top))
         s_req = np.where(in_hole, np.maximum(s_a, s_c), -np.inf)
         need = s_req.max(axis=0)
-        limit[np.isfinite(need) | (need == np.inf)] = "collapse"
+        limit[np.isfinite(need) | (need == np.inf)] = 1        # collapse
     if np.isfinite(valve_allowable) and np.isfinite(geo.valve_height):
         xv = geo.valve_height
         p_v = rho_o * G * np.maximum(0.0, shoe - h_o - xv)
@@ -162,7 +222,7 @@ def collapse_required_height(geo: StringGeometry, hole: Hole, fill_density: floa
         s_v = np.where(shoe > xv, s_v, -np.inf)
         use = s_v > need
         need = np.where(use, s_v, need)
-        limit[use] = "check valve"
+        limit[use] = 2                                          # check valve
     return need, limit
 
 
@@ -224,7 +284,10 @@ def fill_window(joints: JointArrays, hole: Hole, closure: Closure, fill_density:
     xv = geo.valve_height
     m = closure.valve_joint
     valve_in = np.arange(n) >= m
-    empty = string_load_by_step(geo, hole, fill_density, np.full(n, _EMPTY))
+    # empty above the valve, the load does not depend on the fill fluid
+    empty = _derived(geo, ("empty string load", hole.fluid_density, hole.fluid_level),
+                     lambda: _read_only(string_load_by_step(geo, hole, 0.0, np.full(n, _EMPTY)))
+                     )[0].copy()
     knots, vols = _bore_volume_table(geo)
     v_valve = float(np.interp(xv, knots, vols))
     full_vol = np.interp(shoe, knots, vols) - v_valve
@@ -236,48 +299,36 @@ def fill_window(joints: JointArrays, hole: Hole, closure: Closure, fill_density:
                          np.where(empty >= min_running_weight, -np.inf, np.inf))
     s_cap = np.where(vol_cap >= full_vol, shoe,
                      np.where(vol_cap < 0, -np.inf,
-                              np.interp(v_valve + np.clip(vol_cap, 0, None), vols, knots)))
+                              np.interp(v_valve + np.maximum(vol_cap, 0), vols, knots)))
     # A string lighter than the minimum running weight even when full must
     # be kept full; it is impossible only when it would float full.
     full_load = empty + grad * full_vol
     vol_w = np.where((vol_w > full_vol) & (full_load > 0), full_vol, vol_w)
     s_w = np.where(vol_w <= 0, -np.inf,
                    np.where(vol_w > full_vol, np.inf,
-                            np.interp(v_valve + np.clip(vol_w, 0, None), vols, knots)))
+                            np.interp(v_valve + np.maximum(vol_w, 0), vols, knots)))
     allowable = np.asarray(joints.collapse_rating, dtype=float) / collapse_factor
-    s_col, col_name = collapse_required_height(geo, hole, fill_density, allowable,
-                                               closure.valve_rating)
+    s_col, col_code = _collapse_required_height(geo, hole, fill_density, allowable,
+                                                closure.valve_rating)
+    # limits as codes: empty side into _LIMIT_NAMES, full side 1 = hoisting
     lo = np.full(n, xv)
-    empty_limit = np.full(n, "", dtype=object)
     use = s_col > lo
     lo = np.where(use, s_col, lo)
-    empty_limit = np.where(use, col_name, empty_limit)
+    empty_code = np.where(use, col_code, 0)
     use = s_w > lo
     lo = np.where(use, s_w, lo)
-    empty_limit = np.where(use, "running weight", empty_limit)
+    empty_code = np.where(use, 3, empty_code)                  # running weight
     hi = np.minimum(shoe, s_cap)
-    full_limit = np.where(s_cap < shoe, "hoisting capacity", "")
+    full_code = (s_cap < shoe).astype(np.int8)
     tol = 1e-9 * max(1.0, float(shoe[-1]))
     feasible = (lo <= hi + tol) | ~valve_in
-    # Where the window is empty, name the limits that close it; the names
-    # take a handful of values, so the messages are set per pair of names.
-    closing = np.array(empty_limit, dtype=object)
-    bad = ~feasible
-    for low_name in set(empty_limit[bad]):
-        for high_name in ("", "hoisting capacity"):
-            sel = bad & (empty_limit == low_name) & (full_limit == high_name)
-            if not np.any(sel):
-                continue
-            if high_name:
-                closing[sel] = f"{low_name} vs {high_name}"
-            elif low_name == "running weight":
-                closing[sel] = "the string is too light (floats) even with the pipe full"
-            else:
-                closing[sel] = f"{low_name} even with the pipe full"
+    # Where the window is empty, the limits that close it (message per pair).
+    closing_code = np.where(feasible, empty_code, 4 + 2 * empty_code + full_code)
+    in_hole = np.where(valve_in, 1, 0)
     with np.errstate(invalid="ignore"):
         ok = feasible & valve_in
         min_level = np.where(ok, shoe - hi, np.nan)
-        max_level = np.where(ok, shoe - np.clip(lo, xv, None), np.nan)
+        max_level = np.where(ok, shoe - np.maximum(lo, xv), np.nan)
         vmin = np.where(ok, np.interp(np.clip(lo, xv, shoe), knots, vols) - v_valve, np.nan)
         vmax = np.where(ok, np.interp(np.clip(hi, xv, shoe), knots, vols) - v_valve, np.nan)
     return FillWindow(
@@ -287,11 +338,25 @@ def fill_window(joints: JointArrays, hole: Hole, closure: Closure, fill_density:
         min_volume=vmin, max_volume=vmax, full_volume=np.where(valve_in, full_vol, 0.0),
         empty_string_load=empty,
         weight_floor=np.minimum(min_running_weight, np.maximum(full_load, 0.0)),
-        empty_limit=tuple(np.where(valve_in, empty_limit, "")),
-        full_limit=tuple(np.where(valve_in, full_limit, "").tolist()),
-        closing_limit=tuple(np.where(valve_in, closing, "")),
+        empty_limit=tuple(_LIMIT_NAMES[empty_code * in_hole]),
+        full_limit=tuple(_FULL_NAMES[full_code * in_hole]),
+        closing_limit=tuple(_CLOSING_NAMES[closing_code * in_hole]),
         feasible=feasible,
     )
+
+
+#: Name of the limit that bounds the fill from above, by code.
+_FULL_NAMES = np.array(["", "hoisting capacity"], dtype=object)
+
+#: What closes a step's window, by code: the empty-side name when the window
+#: is open (0-3), else ``4 + 2 x empty-side code + full-side code``.
+_CLOSING_NAMES = np.array(
+    list(_LIMIT_NAMES)
+    + [msg for low in _LIMIT_NAMES for msg in (
+        "the string is too light (floats) even with the pipe full"
+        if low == "running weight" else f"{low} even with the pipe full",
+        f"{low} vs hoisting capacity")],
+    dtype=object)
 
 
 @dataclass(frozen=True)
@@ -351,7 +416,7 @@ def collapse_utilization_by_step(joints: JointArrays, hole: Hole, closure: Closu
     if closure.is_open:
         return np.zeros(n)
     allowable = np.asarray(joints.collapse_rating, dtype=float) / collapse_factor
-    sections = _governing_sections(collapse_sections(geo, allowable), hole, fill_density)
+    sections = _sections(geo, allowable, hole, fill_density)
     if len(sections[0]) == 0:
         return np.zeros(n)
     level = np.broadcast_to(np.asarray(fill_level, dtype=float), (n,))
@@ -359,7 +424,8 @@ def collapse_utilization_by_step(joints: JointArrays, hole: Hole, closure: Closu
 
 
 def _collapse_utilization(geo: StringGeometry, sections, hole: Hole, fill_density: float,
-                          rows: np.ndarray, level: np.ndarray) -> np.ndarray:
+                          rows: np.ndarray, level: np.ndarray,
+                          empty: bool = False) -> np.ndarray:
     """:func:`collapse_utilization_by_step` at the 0-based steps ``rows``.
 
     ``sections`` are the governing sections (:func:`_governing_sections`
@@ -372,6 +438,11 @@ def _collapse_utilization(geo: StringGeometry, sections, hole: Hole, fill_densit
     order, so this equals the largest of the three ratios); sections not
     yet in the hole count 0.  ``O(len(rows) x S)`` for ``S`` governing
     sections, in blocks of rows to bound memory.
+
+    ``empty=True`` says the pipe is empty above the valve at every row
+    (level below the shoe): then ``dP = rho_o g (z - h_o)+`` does not grow
+    upward, so each section's bottom carries its largest load, exactly (the
+    operations are monotone in depth), and only that point is evaluated.
     """
     first, last, r = sections
     out = np.zeros(len(rows))
@@ -387,9 +458,13 @@ def _collapse_utilization(geo: StringGeometry, sections, hole: Hole, fill_densit
         k = rows[i0:i0 + block][None, :]
         shoe = geo.top[k]
         lv = level[i0:i0 + block][None, :]
-        x_t = geo.top[np.minimum(last[:, None], k)]
+        if empty:
+            points = (x_b,)
+        else:
+            x_t = geo.top[np.minimum(last[:, None], k)]
+            points = (x_b, x_t, np.clip(shoe - lv, x_b, x_t))
         worst = np.zeros((len(first), k.shape[1]))
-        for x in (x_b, x_t, np.clip(shoe - lv, x_b, x_t)):
+        for x in points:
             z = shoe - x
             p_out = z - h_o
             np.maximum(0.0, p_out, out=p_out)
@@ -433,7 +508,7 @@ def _evaluate(geo, table, sections, hole, fill_density, heights, throughs, full_
     n = len(shoe)
     knots, vols = table
     v_valve = float(np.interp(geo.valve_height, knots, vols))
-    vol = np.clip(np.interp(heights, knots, vols) - v_valve, 0.0, None)
+    vol = np.maximum(np.interp(heights, knots, vols) - v_valve, 0.0)
     load = empty_load + fill_density * G * vol
     level = shoe - heights
     rows = np.concatenate([np.arange(t, n) for t in throughs])
@@ -496,24 +571,21 @@ def fill_schedule(joints: JointArrays, hole: Hole, closure: Closure, fill_densit
     # sections and the collapse utilization with the pipe full.
     table = _bore_volume_table(geo)
     allowable = np.asarray(joints.collapse_rating, dtype=float) / collapse_factor
-    sections = _governing_sections(collapse_sections(geo, allowable), hole, fill_density)
-    throughs = []
-    for share in shares:
-        # Stop filling once the carried fill would reach this share of the
-        # longest full length (share 1: fill to the top as long as possible).
-        if longest >= n or longest <= m:
-            throughs.append(longest)
-        else:
-            target = xv + share * (shoe[longest - 1] - xv)
-            throughs.append(max(m + 1, min(longest, int(np.searchsorted(shoe, target + tol,
-                                                                         side="right")))))
+    sections = _sections(geo, allowable, hole, fill_density)
+    # Stop filling once the carried fill would reach each share of the
+    # longest full length (share 1: fill to the top as long as possible).
+    if longest >= n or longest <= m:
+        throughs = [longest] * len(shares)
+    else:
+        target = xv + np.asarray(shares, dtype=float) * (shoe[longest - 1] - xv)
+        throughs = [max(m + 1, min(longest, int(i)))
+                    for i in np.searchsorted(shoe, target + tol, side="right")]
     most = max(throughs, default=0)
     full_col = _collapse_utilization(geo, sections, hole, fill_density, np.arange(most),
                                      (shoe - shoe)[:most])
     # The top-up search below steps from one top-up to the next (a few per
-    # schedule, not one per joint); it reads single values, kept as floats.
-    lo_at, ceiling_at = lo.tolist(), np.minimum(hi_ahead, shoe).tolist()
-    lo_so_far, hi_from = lo_so_far.tolist(), hi_from.tolist()
+    # schedule, not one per joint) and reads single values.
+    lo_at, ceiling_at = lo, np.minimum(hi_ahead, shoe)
     candidates = []      # (heights, top-ups, failure step, failure) per share tried
     for share, through in zip(shares, throughs):
         heights = np.empty(n)
@@ -634,9 +706,9 @@ def empty_run(joints: JointArrays, hole: Hole, closure: Closure, fill_density: f
         util = np.zeros(n)
     else:
         allowable = np.asarray(joints.collapse_rating, dtype=float) / collapse_factor
-        sections = _governing_sections(collapse_sections(geo, allowable), hole, fill_density)
+        sections = _sections(geo, allowable, hole, fill_density)
         util = _collapse_utilization(geo, sections, hole, fill_density, np.arange(n),
-                                     np.full(n, _EMPTY))
+                                     np.full(n, _EMPTY), empty=True)
     load = window.empty_string_load
     valve_in = window.valve_in_hole
 

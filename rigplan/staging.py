@@ -23,7 +23,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from rigplan.axial import running_loads, step_profile
+from rigplan.axial import running_loads, step_profile, string_geometry, string_load_by_step
 from rigplan.stringmodel import G, Closure, Hole, JointArrays
 
 
@@ -116,10 +116,13 @@ def plan_two_stages(joints: JointArrays, hole: Hole, string_limit: float,
     cache = {}
 
     def stage2(p):
+        # the search needs only the peak string load of stage 2 (the same
+        # numbers as running_loads gives); the full run is made for the best
         if p not in cache:
-            loads = running_loads(joints.subset(p, n), hole, Closure())
-            peak = float(np.max(loads.string_load))
-            cache[p] = (peak, loads)
+            upper = joints.subset(p, n)
+            geo = string_geometry(upper, Closure())
+            peak = float(np.max(string_load_by_step(geo, hole, 0.0, np.zeros(n - p))))
+            cache[p] = (peak, upper)
         return cache[p]
 
     def margin(p):
@@ -139,7 +142,8 @@ def plan_two_stages(joints: JointArrays, hole: Hole, string_limit: float,
             hi = mid
     cands = sorted({max(1, min(n - 1, p)) for p in range(lo - 2, hi + 3)})
     best = max(cands, key=margin)
-    peak2, loads2 = stage2(best)
+    peak2, upper = stage2(best)
+    loads2 = running_loads(upper, hole, Closure())
     m_s1 = (string_limit - stage1[best - 1]) / string_limit
     m_ls = (ls_allow - lowered[best - 1]) / ls_allow
     m_s2 = (string_limit - peak2) / string_limit
