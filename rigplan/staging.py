@@ -95,9 +95,9 @@ def plan_two_stages(joints: JointArrays, hole: Hole, string_limit: float,
 
     Margins: ``(limit - peak) / limit`` for the hoisting limit on each
     stage, and ``(rating / DF - load) / (rating / DF)`` for the landing
-    string.  Stage 1's peak rises and stage 2's falls as the split moves
-    up, so the best split lies where they cross: found by bisection on
-    stage 2 (``O(N I log N)``) and then checked on its neighbours.
+    string.  Stage 2's margin rises as the split moves up; stage 1's need
+    not fall monotonically, so the search bisects on its suffix maximum
+    (``O(N I log N)``; exact while each joint adds weight to stage 2).
     """
     n = joints.n
     if n < 2:
@@ -129,18 +129,31 @@ def plan_two_stages(joints: JointArrays, hole: Hole, string_limit: float,
         peak2, _ = stage2(p)
         return min(float(m1[p - 1]), (string_limit - peak2) / string_limit)
 
+    # The stage-2 margin m2(p) rises with p (a shorter upper stage is
+    # lighter); the stage-1 margin m1(p) need not be monotone (the landing
+    # string gets shorter as the stage gets heavier).  With S1(q) the best
+    # m1 over splits p >= q, max_p min(m1, m2) = max_q min(S1(q), m2(q)),
+    # and S1 falls while m2 rises: bisection on q finds the crossing, and the
+    # split is the p >= q where m1 is largest.
+    s1 = np.maximum.accumulate(m1[::-1])[::-1]           # S1 at q = index + 1
+    idx = np.arange(len(m1))
+    # first p >= q where m1 equals its suffix maximum (a suffix argmax)
+    first_best = np.minimum.accumulate(np.where(m1 >= s1, idx, len(m1))[::-1])[::-1]
+
+    def m2(q):
+        peak2, _ = stage2(q)
+        return (string_limit - peak2) / string_limit
+
     lo, hi = 1, n - 1
-    # Bisection for the crossing of the stage-1 margin (falls with p) and the
-    # stage-2 margin (rises with p).
-    while hi - lo > 2:
+    while hi - lo > 1:
         mid = (lo + hi) // 2
-        peak2, _ = stage2(mid)
-        m2 = (string_limit - peak2) / string_limit
-        if m2 < m1[mid - 1]:
+        if m2(mid) < s1[mid - 1]:
             lo = mid
         else:
             hi = mid
-    cands = sorted({max(1, min(n - 1, p)) for p in range(lo - 2, hi + 3)})
+    qs = sorted({max(1, min(n - 1, q)) for q in (lo - 1, lo, hi, hi + 1)})
+    q_best = max(qs, key=lambda q: min(float(s1[q - 1]), m2(q)))
+    cands = sorted({int(first_best[q_best - 1]) + 1, q_best})
     best = max(cands, key=margin)
     peak2, upper = stage2(best)
     loads2 = running_loads(upper, hole, Closure())

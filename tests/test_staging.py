@@ -61,3 +61,25 @@ def test_unrated_landing_string_is_refused():
     # Rule of the project: an unrated part is never assumed.
     plan = plan_two_stages(uniform(20), Hole(1100.0), 1e6, 200.0, float("nan"))
     assert not plan.feasible and "no tensile rating" in plan.reason
+
+
+def test_split_search_with_a_weak_landing_string_matches_brute_force():
+    # Derived as above, with the landing string's own tensile margin
+    # (rating / DF - load) / (rating / DF) also in the minimum: the stage-1
+    # margin is then not monotone in the split, and the search must still
+    # find the brute-force optimum.
+    n = 120
+    j = uniform(n)
+    hole = Hole(1150.0)
+    wpl, rating, df = 300.0, 500e3, 1.6
+    limit = 0.7 * running_loads(j, hole, Closure()).string_load[-1]
+    plan = plan_two_stages(j, hole, limit, wpl, rating, STEEL, df)
+    b = j.weight[0] * (1 - 1150.0 / STEEL)
+    q = wpl * (1 - 1150.0 / STEEL)
+    p = np.arange(1, n)
+    lowered = b * p + q * (6.0 * n - 6.0 * p)
+    s1 = np.maximum(b * p, lowered)
+    allow = rating / df
+    m = np.minimum.reduce([(limit - s1) / limit, (allow - lowered) / allow,
+                           (limit - b * (n - p)) / limit])
+    assert_allclose(plan.least_margin, m.max(), rtol=1e-9)
