@@ -131,7 +131,7 @@ def apply_run_state(plan: StringPlan, state) -> StringPlan:
             changes["measured_length"] = float(measured[j.label])
         if j.label in rejected:
             changes["rejected"] = True
-        joints.append(dataclasses.replace(j, **changes) if changes else j)
+        joints.append(_changed(j, **changes) if changes else j)
     out = dataclasses.replace(plan, joints=tuple(joints))
     if collar is not None:
         labels = [j.label for j in out.running_joints()]
@@ -140,6 +140,27 @@ def apply_run_state(plan: StringPlan, state) -> StringPlan:
                                                 "log: move the collar in the plan first")
         out = dataclasses.replace(out, closure=dataclasses.replace(
             plan.closure, valve_joint=labels.index(collar) + 1))
+    return out
+
+
+_CHANGED: dict = {}
+
+
+def _changed(spec: JointSpec, measured_length=None, rejected=None) -> JointSpec:
+    """``spec`` with a run-log length or rejection, remembered so that
+    re-planning after each tally entry does not rebuild every joint."""
+    key = (spec, measured_length, rejected)
+    out = _CHANGED.get(key)
+    if out is None:
+        kw = {}
+        if measured_length is not None:
+            kw["measured_length"] = measured_length
+        if rejected is not None:
+            kw["rejected"] = rejected
+        out = dataclasses.replace(spec, **kw)
+        if len(_CHANGED) > 50000:
+            _CHANGED.clear()
+        _CHANGED[key] = out
     return out
 
 

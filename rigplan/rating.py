@@ -18,7 +18,9 @@ Rules applied (rigplan rules; string-mechanics reference):
 
 from __future__ import annotations
 
+import dataclasses
 import math
+import operator
 from collections.abc import Mapping, Sequence
 
 import numpy as np
@@ -200,9 +202,22 @@ def joint_ellipticity(spec: JointSpec, default_ellipticity=DEFAULT_ELLIPTICITY):
     return float(default_ellipticity)
 
 
+#: JointSpec fields a rating depends on (all but the label, the lengths, the
+#: tally note and the rejection flag).
+_RATING_FIELDS = tuple(f.name for f in dataclasses.fields(JointSpec)
+                       if f.name not in ("label", "length", "measured_length", "note", "rejected"))
+_rating_key = operator.attrgetter(*_RATING_FIELDS)
+
+
 def rate_joints(specs: Sequence[JointSpec], materials: Mapping[str, Material] | None = None,
                 default_ellipticity: float = DEFAULT_ELLIPTICITY) -> JointArrays:
     """Per-joint weights, pressure areas and ratings for a string.
+
+    A string usually holds a few kinds of joint in many lengths, so each
+    distinct joint (all but its label, length and tally note) is rated once
+    and its weight scaled by length; the result is identical to rating every
+    joint on its own (:func:`rate_each_joint`, which also gives the error
+    messages).
 
     Parameters
     ----------
@@ -268,6 +283,45 @@ def rate_joints(specs: Sequence[JointSpec], materials: Mapping[str, Material] | 
     >>> round(float(arrays.connection_rating[0] / arrays.body_rating[0]), 2)
     0.85
     """
+    specs = tuple(specs)
+    if len(specs) < 8:
+        return rate_each_joint(specs, materials, default_ellipticity)
+    lengths = [s.run_length for s in specs]
+    if not all(isinstance(x, (int, float)) and math.isfinite(x) and x > 0 for x in lengths):
+        return rate_each_joint(specs, materials, default_ellipticity)   # raises, naming the joint
+    index = {}
+    which = []
+    first = []
+    for i, s in enumerate(specs):
+        key = _rating_key(s)
+        k = index.setdefault(key, len(index))
+        if k == len(first):
+            first.append(i)
+        which.append(k)
+    if len(index) * 2 > len(specs):
+        return rate_each_joint(specs, materials, default_ellipticity)
+    uniq = [dataclasses.replace(specs[i], label=specs[i].label, length=1.0, measured_length=None)
+            for i in first]
+    try:
+        base = rate_each_joint(uniq, materials, default_ellipticity)
+    except (InputError, ValueError):
+        return rate_each_joint(specs, materials, default_ellipticity)   # the message names the joint
+    w = np.asarray(which)
+    length = np.asarray(lengths, dtype=float)
+    fixed = np.array([u.weight is not None for u in uniq], dtype=bool)[w]
+    weight = np.where(fixed, base.weight[w], base.weight[w] * length)
+    return JointArrays(
+        label=tuple(s.label for s in specs), kind=tuple(s.kind for s in specs),
+        length=length, od=base.od[w], bore=base.bore[w], weight=weight,
+        collapse_rating=base.collapse_rating[w], burst_rating=base.burst_rating[w],
+        body_rating=base.body_rating[w], connection_rating=base.connection_rating[w],
+        collapse_method=tuple(base.collapse_method[i] for i in which),
+    )
+
+
+def rate_each_joint(specs: Sequence[JointSpec], materials: Mapping[str, Material] | None = None,
+                    default_ellipticity: float = DEFAULT_ELLIPTICITY) -> JointArrays:
+    """:func:`rate_joints`, one joint at a time (the reference behaviour)."""
     table = LIBRARY if materials is None else materials
     specs = tuple(specs)
 

@@ -270,3 +270,28 @@ def test_api_method_outside_yield_range_is_refused():
     weak = {"weak": dataclasses.replace(LIBRARY["j55"], key="weak", yield_strength=10 * ksi)}
     with pytest.raises(InputError, match="API TR 5C3"):
         rate_joints([joint(material="weak")], materials=weak)
+
+
+def test_grouped_rating_equals_rating_each_joint():
+    # Identity of the implementation: rating each distinct joint once and
+    # scaling its weight by length gives the same arrays as rating every
+    # joint on its own (common practice, no source: weight is linear in length).
+    import dataclasses
+    import numpy as np
+    from rigplan.rating import rate_each_joint, rate_joints
+    from rigplan.stringmodel import JointSpec
+    rng = np.random.default_rng(3)
+    base = [JointSpec("x", "blank", "a53b", od=0.4064, wall=0.009525, length=6.0,
+                      weld_efficiency=0.85),
+            JointSpec("x", "screen", "ss304", od=0.4064, wall=0.009525, length=6.0,
+                      tensile_rating=4e5, collapse_rating=1.5e6, weight_per_length=560.0),
+            JointSpec("x", "blank", "j55", od=0.3397, wall=0.00965, length=12.0,
+                      connection="threaded_coupled", connection_rating=2e6, weight=6000.0)]
+    specs = [dataclasses.replace(base[i % 3], label=f"J{i}",
+                                 measured_length=float(rng.uniform(5.5, 12.5)))
+             for i in range(60)]
+    a, b = rate_joints(specs), rate_each_joint(specs)
+    for name in ("length", "od", "bore", "weight", "collapse_rating", "burst_rating",
+                 "body_rating", "connection_rating"):
+        np.testing.assert_allclose(getattr(a, name), getattr(b, name), rtol=1e-14)
+    assert a.collapse_method == b.collapse_method and a.label == b.label

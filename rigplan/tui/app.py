@@ -11,6 +11,8 @@ textual-plot is imported only when the Charts tab is first shown.
 
 from __future__ import annotations
 
+import gc
+
 from pathlib import Path
 
 from textual.app import App, ComposeResult
@@ -95,6 +97,14 @@ class RigplanApp(App):
         self._caution = self.query_one("#caution", Static)
         self._panes = {tab: self.query_one(f"#{tab}-pane") for tab in TABS}
         self.refresh_views()
+        # The widgets and the plan built so far live for the whole session:
+        # move them out of the collector's sight so a full collection does not
+        # stall a keystroke on site.
+        gc.collect()
+        gc.freeze()
+        # Fewer, cheaper young collections while recording joints (each
+        # re-plan allocates many small arrays that die at once).
+        gc.set_threshold(50_000, 50, 1000)
 
     def on_unmount(self) -> None:
         self.session.close()
