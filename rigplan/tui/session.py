@@ -272,15 +272,12 @@ class JobSession:
         return event_id
 
     def step_hook_loads(self):
-        """The engine's planned hook load per running step [N], or None.
-
-        None without a plan and for a staged setting: the landing plan's
-        per-step hook load is that of a one-piece run, not of the stages
-        (the planner gives only each stage's peak).
-        """
-        from rigplan.planner import LANDS_STAGED
+        """The engine's planned hook load per running step [N], or None
+        without a plan.  For a staged setting steps 1..split are stage 1 at
+        the floor (lowering it on the landing string then peaks at the
+        stage's own figure) and the rest are stage 2 run from the floor."""
         lp = self.landing
-        if lp is None or lp.verdict == LANDS_STAGED:
+        if lp is None:
             return None
         return lp.hook_load
 
