@@ -258,6 +258,15 @@ def try_float(joints: JointArrays, hole: Hole, closure: Closure, fill_density: f
     loads = running_loads(joints, hole, closure, fill_density,
                           np.nan_to_num(schedule.fill_level, nan=0.0))
     check = check_run(joints, loads, closure, limit, settings)
+    wm = np.asarray(schedule.weight_margin, dtype=float)
+    if settings.min_running_weight > 0 and np.any(np.isfinite(wm)):
+        # the string must still go down wherever the pipe is not kept full
+        k = int(np.argmin(np.where(np.isfinite(wm), wm, np.inf)))
+        weight = Limit("running weight", f"step {k + 1} ({joints.label[k]} at the floor)",
+                       float(loads.string_load[k]), float(settings.min_running_weight),
+                       float(wm[k]))
+        check = dataclasses.replace(check, limits=check.limits + (weight,),
+                                    ok=check.ok and weight.margin >= -1e-12)
     return FloatOption(closure, fill_density, window, schedule, check, check.ok,
                        "" if check.ok else
                        f"{_governing(check).name} over its limit at {_governing(check).where}",

@@ -121,7 +121,8 @@ def plan_dict(landing, plan=None, warnings=(), rig_name: str = "") -> dict:
         "lands": landing.lands,
         "governing": None if gov is None else {
             "name": gov.name, "where": gov.where, "load": _f(gov.load),
-            "capacity": _f(gov.capacity), "margin": _f(gov.margin)},
+            "capacity": _f(gov.capacity), "margin": _f(gov.margin),
+            "kind": getattr(gov, "kind", "force")},
         "units": JSON_UNITS,
         "plan": None if plan is None else {
             "name": plan.name, "well": plan.well, "site": plan.site,
