@@ -8,7 +8,7 @@ the application imports it.
 
 Method: the free body of the string below a cut, fluid pressure acting only
 on its horizontal faces (pressure-area method, with the sign conventions of
-the project's mechanics reference, "Axial force by the pressure-area
+standard string mechanics (Bourgoyne et al., *Applied Drilling Engineering*, 1986), "Axial force by the pressure-area
 method"):
 
 * depth ``z`` downward from the rig floor [m], force positive in tension [N],
@@ -51,7 +51,7 @@ def _circle_area(d):
 def _hydrostatic(rho, level, z):
     """Gauge pressure [Pa] at depth ``z`` [m] under a column of density
     ``rho`` [kg/m^3] whose top is at depth ``level`` [m]:
-    ``rho g max(0, z - level)`` (mechanics reference, "Hydrostatics")."""
+    ``rho g max(0, z - level)`` (string mechanics (ADE 1986), "Hydrostatics")."""
     head = z - level
     if head <= 0.0:
         return 0.0
@@ -204,7 +204,7 @@ def reference_true_force(joints, hole, closure, fill_density, fill_level):
     -----
     Valid for a string hanging straight in a vertical hole with static fluids
     (no surge, drag or wall friction); the fill surface is flat.  Source:
-    pressure-area method as stated in the project's mechanics reference
+    pressure-area method as stated in standard string mechanics (Bourgoyne et al., *Applied Drilling Engineering*, 1986)
     (free body of the string below the cut, fluid acting only on horizontal
     faces); its reductions (buoyancy factor for an open string, ``W - P A_o``
     for a closed empty one) are checked in tests/test_reference_agreement.py.
@@ -219,7 +219,7 @@ def reference_effective_tension(joints, hole, closure, fill_density, fill_level)
     ``T[k-1][j-1] = F[k-1][j-1] + P_o(z) A_o,j - P_in,j(z) A_i,j`` [N] at the
     depth ``z`` [m] of the top of joint ``j`` at step ``k`` (same parameters
     and validity as :func:`reference_true_force`).  For an open string in one
-    fluid it is the buoyed weight of joints ``1..j`` (mechanics reference,
+    fluid it is the buoyed weight of joints ``1..j`` (string mechanics (ADE 1986),
     "Effective tension").
     """
     return [eff for _, _, eff, _ in
@@ -244,7 +244,7 @@ def reference_running_loads(joints, hole, closure, fill_density, fill_level):
         first occurs.
         ``envelope_min[j]`` [N]: smallest true force there (most compressive).
         ``collapse_max[j]`` [Pa]: largest ``P_o - P_in`` over the steps and
-        over the joint's length (mechanics reference, collapse check
+        over the joint's length (string mechanics (ADE 1986), collapse check
         ``max_z dP(z)``): at its bottom, its top and, for a joint holding fill
         fluid whose fill surface lies within it, at the fill surface (inside
         empty above it).  Not clipped at 0: a negative value means the inside

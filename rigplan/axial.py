@@ -26,7 +26,7 @@ Sources: Lubinski, "Influence of tension and compression on straightness
 and buckling of tubular goods in oil wells", API Drilling and Production
 Practice (1951) (effective force); Bourgoyne et al., *Applied Drilling
 Engineering* (1986), ch. 7 (pressure-area method, buoyancy); the project's
-mechanics reference for the sign conventions (depth down, tension positive).
+string mechanics (ADE 1986) for the sign conventions (depth down, tension positive).
 
 Cost
 ----

@@ -122,7 +122,7 @@ def connection_capacity(connection_kind, body_yield, weld_efficiency=None, enter
     Notes
     -----
     An unrated connection is reported as unrated, never silently taken as
-    strong as the pipe (rigplan rule; see the string-mechanics reference,
+    strong as the pipe (rigplan rule; see the string mechanics (ADE 1986),
     tension capacity).  Weld efficiencies: ASME BPVC Section VIII Div. 1,
     UW-12 as a reference point only.
 

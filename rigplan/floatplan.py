@@ -24,7 +24,7 @@ fill inside, ``rho_f g V(s)``: the fluid above the valve rests only on the
 pipe's faces, so the pressure-area sum over those faces equals its weight
 (the tests check this against ``rigplan.axial``).
 
-Sources: the mechanics reference (floating and fill-up conventions);
+Sources: string mechanics (ADE 1986) (floating and fill-up conventions);
 Bourgoyne et al., *Applied Drilling Engineering* (1986), ch. 7 (casing
 design loads).  The schedule search is this project's own method.
 

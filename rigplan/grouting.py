@@ -13,7 +13,7 @@ Grout (or cement) of density ``rho_g`` fills the annulus from a base height
 ``b`` up to a top height ``t``; its top lies at depth ``T = Z - t``.  Above
 it the annulus holds the hole fluid (``rho_o``, level ``h_o``) to the
 surface.  Inside the casing is a fluid ``rho_i`` with its level ``h_i``.
-Static fluid columns (general hydrostatics, mechanics reference
+Static fluid columns (general hydrostatics, string mechanics (ADE 1986)
 "Hydrostatics")::
 
     P_ann(z) = rho_o g max(0, z - h_o)                       z <= T
@@ -21,7 +21,7 @@ Static fluid columns (general hydrostatics, mechanics reference
     P_in(z)  = rho_i g max(0, z - h_i)
     dP(z)    = P_ann(z) - P_in(z)                            (collapse load)
 
-(mechanics reference, "Grouting": ``dP = P_grout - P_inside``, largest at
+(string mechanics (ADE 1986), "Grouting": ``dP = P_grout - P_inside``, largest at
 the bottom of the grout column, checked against the collapse ratings.)
 
 Lifts
@@ -55,7 +55,7 @@ pumping), grout treated as a fluid until it sets (no gel strength), one
 fluid inside, incompressible fluids.  Heat of hydration (which weakens
 thermoplastic casing) is not modelled.
 
-Sources: the mechanics reference ("Hydrostatics", "Collapse",
+Sources: string mechanics (ADE 1986) ("Hydrostatics", "Collapse",
 "Grouting"); Bourgoyne et al., *Applied Drilling Engineering* (1986), ch. 7,
 collapse design load from the annulus column less the inside column (from
 memory).  Placing in lifts so each sets before the next is common practice,
@@ -358,7 +358,7 @@ def lift_collapse_loads(joints: JointArrays, hole: Hole, grout_density, inside_d
 
     Notes
     -----
-    Source: mechanics reference ("Grouting", "Hydrostatics"); lifts on set
+    Source: string mechanics (ADE 1986) ("Grouting", "Hydrostatics"); lifts on set
     grout, common practice, no source.
     """
     bottom, top, z_shoe = _string_heights(joints)
@@ -409,7 +409,7 @@ def grout_collapse_loads(joints: JointArrays, hole: Hole, grout: GroutSpec) -> n
 
     Notes
     -----
-    Source: mechanics reference, "Grouting" (largest at the bottom of the
+    Source: string mechanics (ADE 1986), "Grouting" (largest at the bottom of the
     grout column); general hydrostatics.
     """
     return lift_collapse_loads(joints, hole, grout.density, grout.inside_density,
@@ -441,7 +441,7 @@ def grout_utilization(joints: JointArrays, hole: Hole, grout: GroutSpec,
 
     Notes
     -----
-    Load times design factor against rating as in the mechanics reference
+    Load times design factor against rating as in string mechanics (ADE 1986)
     ("Floating and fill-up", criterion 1; "Collapse").
     """
     df = _check_number("design_factors.collapse", collapse_factor, "a collapse design factor", "[-]",
@@ -541,7 +541,7 @@ def max_single_lift(joints: JointArrays, hole: Hole, grout_density, inside_densi
     Notes
     -----
     Exact for the static model (module docstring), to rounding.  Source:
-    mechanics reference ("Grouting", "Hydrostatics"); lifts on set grout,
+    string mechanics (ADE 1986) ("Grouting", "Hydrostatics"); lifts on set grout,
     common practice, no source; the interval search is the project's own.
     """
     bottom, top, z_shoe = _string_heights(joints)
@@ -679,7 +679,7 @@ def plan_grout_lifts(joints: JointArrays, hole: Hole, grout: GroutSpec,
 
     Notes
     -----
-    Static model of the module docstring.  Sources: mechanics reference
+    Static model of the module docstring.  Sources: string mechanics (ADE 1986)
     ("Grouting"); lifts on set grout, common practice, no source.
     """
     bottom, top, z_shoe = _string_heights(joints)

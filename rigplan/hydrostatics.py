@@ -61,7 +61,7 @@ def buoyancy_factor(fluid_density, pipe_density):
     Valid for a string open at the bottom with the same fluid inside and
     out, fully submerged.  The pressure-area engine (``rigplan.axial``)
     reduces to this case; see its tests.  Source: Bourgoyne et al.,
-    *Applied Drilling Engineering* (1986), ch. 7; mechanics reference
+    *Applied Drilling Engineering* (1986), ch. 7; string mechanics (ADE 1986)
     ``BF = 1 - MW/65.4`` with MW in lb/gal for steel.
 
     >>> ppg = 0.45359237 / 0.003785411784

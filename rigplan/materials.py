@@ -149,7 +149,7 @@ def _steel(key, name, yield_ksi, yield_source, family="steel", collapse_method="
            tolerance_source="ASTM A53/A53M: minimum wall not more than 12.5 % under the "
                             "specified wall, from memory",
            collapse_source="Timoshenko and Gere (1961) ch. 7, the usual method for water-well "
-                           "steel casing (string-mechanics reference)"):
+                           "steel casing (string mechanics (ADE 1986))"):
     sources = dict(_CARBON_STEEL_SOURCES)
     sources.update(yield_strength=yield_source, wall_under_tolerance=tolerance_source,
                    collapse_method=collapse_source)

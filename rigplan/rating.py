@@ -6,7 +6,7 @@ that the load engine uses.  It picks a formula per joint by its material and
 adds no physics of its own; the formulas live in :mod:`rigplan.tubulars`,
 :mod:`rigplan.collapse`, :mod:`rigplan.burst` and :mod:`rigplan.connections`.
 
-Rules applied (rigplan rules; string-mechanics reference):
+Rules applied (rigplan rules; string mechanics (ADE 1986)):
 
 * ratings use the minimum wall -- the measured wall when given, else the
   specified wall less the material's under-tolerance;

@@ -12,7 +12,7 @@ string's own tensile rating.
 Both stages are run open-ended here: a stage that would itself need floating
 is reported as not landing.
 
-Source: the mechanics reference (staged setting); the landing-string load is
+Source: string mechanics (ADE 1986) (staged setting); the landing-string load is
 the same pressure-area sum as the casing (``rigplan.axial``) for an open
 pipe, ``W_air - P_o(bottom) A_steel``.
 """

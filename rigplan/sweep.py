@@ -24,7 +24,7 @@ the shoe depth and the air weight).
 
 Sources: pressure-area method and buoyancy factor, Bourgoyne et al.,
 *Applied Drilling Engineering*, SPE Textbook vol. 2 (1986), ch. 7, with the
-sign conventions of the project's mechanics reference (depth down from the
+sign conventions of standard string mechanics (Bourgoyne et al., *Applied Drilling Engineering*, 1986) (depth down from the
 floor, tension positive, gauge pressure); Timoshenko and Gere, *Theory of
 Elastic Stability*, 2nd ed. (1961), ch. 7 (collapse of an oval tube); wall
 under-tolerance 12.5 % as in ASTM A53/A53M and API 5CT (from memory).

@@ -1,7 +1,7 @@
 """Running loads by the pressure-area method (rigplan.axial).
 
 Each check names its source.  "Identity" checks are exact consequences of
-the pressure-area method as stated in the project's mechanics reference
+the pressure-area method as stated in standard string mechanics (Bourgoyne et al., *Applied Drilling Engineering*, 1986)
 (open end one fluid -> buoyancy factor; closed empty -> W - P A_o; zero
 effective tension at an open shoe), which textbooks give as the definition
 of buoyancy (Bourgoyne et al., Applied Drilling Engineering, 1986, ch. 7).
@@ -38,7 +38,7 @@ def tube(n, od, wall, length, density=STEEL, bore=None):
 
 
 def test_open_end_one_fluid_reduces_to_buoyancy_factor():
-    # Identity (mechanics reference; ADE ch. 7): F(0) = W_air (1 - rho_f/rho_s).
+    # Identity (string mechanics (ADE 1986); ADE ch. 7): F(0) = W_air (1 - rho_f/rho_s).
     j = tube(30, 10.75 * INCH, 0.25 * INCH, 6.1)
     hole = Hole(fluid_density=1150.0)
     r = running_loads(j, hole, Closure())
@@ -48,7 +48,7 @@ def test_open_end_one_fluid_reduces_to_buoyancy_factor():
 
 def test_open_shoe_effective_tension_zero_and_true_force_compressive():
     # Identity: effective tension is zero at an open shoe; the true force there
-    # is -P_shoe x steel area (mechanics reference, effective tension).
+    # is -P_shoe x steel area (string mechanics (ADE 1986), effective tension).
     j = tube(20, 16 * INCH, 0.375 * INCH, 6.0)
     hole = Hole(fluid_density=1200.0)
     p = step_profile(j, hole, Closure(), 20)
@@ -59,7 +59,7 @@ def test_open_shoe_effective_tension_zero_and_true_force_compressive():
 
 
 def test_closed_empty_is_air_weight_less_shoe_pressure_on_outside_area():
-    # Identity: closed and empty, F(0) = W_air - P_shoe A_o (mechanics reference).
+    # Identity: closed and empty, F(0) = W_air - P_shoe A_o (string mechanics (ADE 1986)).
     j = tube(25, 13.375 * INCH, 0.33 * INCH, 6.0)
     hole = Hole(fluid_density=1100.0)
     r = running_loads(j, hole, Closure(0), fill_density=998.2, fill_level=1e9)
@@ -97,7 +97,7 @@ def test_buoyancy_check_values_7in_1000ft():
 
 def test_hook_load_falls_as_fill_level_drops():
     # Identity: less fluid above the valve -> less weight on the hook
-    # (mechanics reference, floating and fill-up).
+    # (string mechanics (ADE 1986), floating and fill-up).
     j = tube(40, 16 * INCH, 0.375 * INCH, 6.0)
     hole = Hole(fluid_density=1150.0)
     loads = [running_loads(j, hole, Closure(0), 998.2, h).string_load[-1]
@@ -107,7 +107,7 @@ def test_hook_load_falls_as_fill_level_drops():
 
 def test_fill_adds_exactly_the_weight_of_the_fluid_inside():
     # Identity: a fluid column resting on the valve and shoulders weighs on the
-    # pipe by its own weight (hydrostatics; mechanics reference).
+    # pipe by its own weight (hydrostatics; string mechanics (ADE 1986)).
     j = tube(30, 12.75 * INCH, 0.375 * INCH, 6.0)
     hole = Hole(fluid_density=1100.0)
     empty = running_loads(j, hole, Closure(0), 998.2, 1e9).string_load
@@ -120,7 +120,7 @@ def test_fill_adds_exactly_the_weight_of_the_fluid_inside():
 def test_float_collar_shoe_track_holds_hole_fluid():
     # Identity: below a float collar the shoe track is open to the hole, so
     # with hole fluid also above the valve to the same level the string
-    # loads equal the open string's (mechanics reference).
+    # loads equal the open string's (string mechanics (ADE 1986)).
     j = tube(20, 10.75 * INCH, 0.3 * INCH, 6.0)
     hole = Hole(fluid_density=1150.0, fluid_level=12.0)
     open_ = running_loads(j, hole, Closure())
@@ -148,7 +148,7 @@ def test_tapered_string_open_end_equals_sum_of_buoyed_weights():
 
 
 def test_hook_load_peaks_before_landing_when_filling_stops():
-    # Mechanics reference: with a floated string the largest tension can come
+    # String mechanics (ADE 1986): with a floated string the largest tension can come
     # before the last joint.  Fill 16 in x 0.375 in pipe to the top for 20
     # joints in 1,200 kg/m^3 mud, then stop: each further 6 m joint weighs
     # less (about 5.5 kN) than the mud it displaces (1,200 g A_o 6 m, about

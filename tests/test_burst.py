@@ -12,7 +12,7 @@ from rigplan.tubulars import minimum_wall
 
 # API casing tables (API 5C2 / API 5CT), internal yield pressure by API TR 5C3,
 # 0.875 * 2 Y t / D on the specified wall, rounded to 10 psi (from memory,
-# recomputed; api-5c3 reference).
+# recomputed; API TR 5C3 tables).
 API_BURST = [
     # OD in, wall in, yield psi, burst psi
     (7.0, 0.317, 55000, 4360),     # 7 in 23 lb/ft J-55

@@ -66,7 +66,7 @@ def test_ellipticity_from_diameters_definition():
 # --- API TR 5C3 --------------------------------------------------------------------
 
 # API casing tables (API 5C2 / API 5CT), collapse by API TR 5C3 on the specified
-# wall; figures from memory, recomputed (api-5c3 reference); tables round to
+# wall; figures from memory, recomputed (API 5C2/5CT tables, recomputed by API TR 5C3); tables round to
 # 10 psi and the tabulated constants move a rating by one step, so +-10 psi.
 API_COLLAPSE = [
     # OD in, wall in, yield psi, regime, collapse psi
@@ -95,8 +95,8 @@ def test_api_5c3_vectorized():
     assert list(cl.api_5c3_regime(od * inch, wall * inch, y * psi)) == list(regimes)
 
 
-# API TR 5C3 per-grade table of collapse constants and regime breaks (api-5c3
-# reference): A, B, C [psi], F, G, (D/t)yp, (D/t)pt, (D/t)te.  The exact formulas
+# API TR 5C3 per-grade table of collapse constants and regime breaks (API TR 5C3
+# tables): A, B, C [psi], F, G, (D/t)yp, (D/t)pt, (D/t)te.  The exact formulas
 # and the rounded table differ in the fourth digit.
 API_CONSTANTS = [
     (40000, 2.950, 0.0465, 754, 2.063, 0.0325, 16.40, 27.01, 42.64),   # H-40

@@ -38,7 +38,7 @@ def test_uw12_reference_efficiencies(inspection, efficiency):
 
 
 def test_butt_weld_needs_an_efficiency():
-    # string-mechanics reference, tension capacity: butt weld = efficiency x body
+    # string mechanics (ADE 1986), tension capacity: butt weld = efficiency x body
     # yield; no efficiency -> unrated, never assumed.
     assert np.isnan(connection_capacity("butt_weld", BODY_7IN_J55))
     assert_allclose(connection_capacity("butt_weld", BODY_7IN_J55, weld_efficiency=0.85),
@@ -47,7 +47,7 @@ def test_butt_weld_needs_an_efficiency():
 
 @pytest.mark.parametrize("kind", ENTERED_RATING_KINDS)
 def test_entered_kinds_are_unrated_without_a_rating(kind):
-    # string-mechanics reference: threaded and coupled, spline-lock and flush
+    # string mechanics (ADE 1986): threaded and coupled, spline-lock and flush
     # joints take the rated value entered; an unrated connection stays unrated.
     assert np.isnan(connection_capacity(kind, BODY_7IN_J55))
     assert np.isnan(connection_capacity(kind, BODY_7IN_J55, weld_efficiency=1.0))

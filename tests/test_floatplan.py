@@ -1,7 +1,7 @@
 """Fill window, fill schedule, switch point (rigplan.floatplan).
 
 The closed forms below are derived in each test from hydrostatics and the
-pressure-area method (mechanics reference, "Floating and fill-up"), for a
+pressure-area method (string mechanics (ADE 1986), "Floating and fill-up"), for a
 uniform string with a float shoe, water inside and mud outside.
 """
 
@@ -95,7 +95,7 @@ def test_capacity_bound_is_the_shallowest_level():
 
 
 def test_schedule_stays_in_window_and_never_removes_fluid():
-    # Mechanics reference: fluid cannot leave through the check valve, so the
+    # String mechanics (ADE 1986): fluid cannot leave through the check valve, so the
     # fill height above the shoe never falls; every step keeps its window.
     r = float(timoshenko(16 * INCH, 0.875 * 0.375 * INCH, 35000 * PSI, 0.01))
     j = uniform(100, collapse=r)
@@ -125,7 +125,7 @@ def test_schedule_stays_in_window_and_never_removes_fluid():
 
 
 def test_switch_point_is_first_joint_over_the_limit():
-    # Definition (mechanics reference): the first joint at which the
+    # Definition (string mechanics (ADE 1986)): the first joint at which the
     # open-ended load exceeds the capacity, where floating must begin.
     j = uniform(60)
     hole = Hole(RHO_MUD)

@@ -2,11 +2,11 @@
 
 Check values are derived by hand in each test from general hydrostatics
 (``P = rho g h`` summed over stacked static columns; the project's
-mechanics reference, "Hydrostatics" and "Grouting": ``dP = P_grout -
+string mechanics (ADE 1986), "Hydrostatics" and "Grouting": ``dP = P_grout -
 P_inside``, largest at the bottom of the grout column).  Collapse ratings
 come from ``rigplan.collapse.timoshenko`` (Timoshenko and Gere, *Theory of
 Elastic Stability*, 2nd ed., 1961, ch. 7) on the minimum wall (12.5 %
-under-tolerance, mechanics reference "Collapse"); the closed forms do not
+under-tolerance, string mechanics (ADE 1986) "Collapse"); the closed forms do not
 depend on where the rating comes from.  Placing grout in lifts on set grout
 (no hydrostatic from the set grout, casing below it supported) is common
 practice, no source.
@@ -108,7 +108,7 @@ def test_differential_pressure_at_shoe_closed_form():
 
 
 def test_full_column_load_on_shoe_joint_closed_form():
-    # Mechanics reference "Grouting" and hydrostatics: uniform string, water
+    # String mechanics (ADE 1986) "Grouting" and hydrostatics: uniform string, water
     # full inside, mud above the grout (level h_o); the largest load on the
     # shoe joint is at the shoe:
     #   dP = rho_o g (T - h_o) + rho_g g H - rho_i g Z.
@@ -152,7 +152,7 @@ def test_full_column_loads_match_dense_sampling(rho_o, h_o, rho_g, height, rho_i
 
 
 def test_unrated_joint_gives_nan_utilization():
-    # Mechanics reference "Collapse": a screen's rating is the maker's
+    # String mechanics (ADE 1986) "Collapse": a screen's rating is the maker's
     # figure; without it the joint is unrated (nan), never assumed.
     rating = np.full(10, R16)
     rating[3] = np.nan

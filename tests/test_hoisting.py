@@ -6,7 +6,7 @@ Published check values come from:
   SPE Textbook Series vol. 2, 1986 ("ADE"), ch. 1: the block-efficiency
   formula, Table 1.2 and Example 1.2;
 * API RP 9B worked example (10 lines, 400,000 lb on the hook), figures as
-  quoted in the project's hoisting reference notes.
+  quoted in API RP 9B and Bourgoyne et al. (1986), as recalled (from memory).
 
 Path-capacity tests use hand arithmetic written out beside each check; the
 deduction rules (dead load off hook components only, overpull reserve,

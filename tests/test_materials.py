@@ -81,7 +81,7 @@ def test_pvc_12454():
 
 
 def test_collapse_methods_by_family():
-    # string-mechanics reference: Timoshenko for water-well steel, API TR 5C3 for
+    # string mechanics (ADE 1986): Timoshenko for water-well steel, API TR 5C3 for
     # API grades, F480 SDR formula for thermoplastic, entered for user-rated.
     expected = {"steel": "timoshenko", "hsla": "timoshenko", "stainless": "timoshenko",
                 "api": "api_5c3", "pvc": "thermoplastic", "fiberglass": "entered"}

@@ -74,7 +74,7 @@ def test_weight_from_a53_formula_on_specified_wall():
 
 
 def test_entered_weights_win():
-    # string-mechanics reference, weight: a tally value wins over the formula.
+    # string mechanics (ADE 1986), weight: a tally value wins over the formula.
     shoe = joint(kind="float_shoe", length=2.0, weight=900.0)
     centralizer = joint(kind="centralizer", length=1.0, weight=150.0)
     per_length = joint(weight_per_length=1000.0, measured_length=41.0 * ft)
@@ -153,7 +153,7 @@ def test_pvc_by_sdr():
 
 
 def test_screen_without_entries_is_unrated():
-    # string-mechanics reference: screens, perforated and slotted pipe take the
+    # string mechanics (ADE 1986): screens, perforated and slotted pipe take the
     # maker's rating; never blank-pipe strength.
     arrays = rate_joints([joint(kind="screen", weld_efficiency=1.0)])
     assert math.isnan(arrays.collapse_rating[0])
@@ -184,7 +184,7 @@ def test_entered_ratings_win_on_blank_pipe():
 
 
 def test_connections_per_joint():
-    # stringmodel.CONNECTION_KINDS and string-mechanics reference: weld
+    # stringmodel.CONNECTION_KINDS and string mechanics (ADE 1986): weld
     # efficiency x body yield on the minimum wall; no efficiency -> unrated;
     # integral -> body; none -> inf.
     specs = [joint("J1", connection="butt_weld", weld_efficiency=0.85),

@@ -49,7 +49,7 @@ def make_joints(length, od, bore, weight):
 
 def steel_string(length, od, bore, rho_steel=7850.0):
     """Joints whose air weight is rho_s g (A_o - A_i) L (plain-end weight,
-    mechanics reference "Weight", ASTM A53/A53M plain-end formula)."""
+    string mechanics (ADE 1986) "Weight", ASTM A53/A53M plain-end formula)."""
     length = np.asarray(length, dtype=float)
     od = np.broadcast_to(np.asarray(od, dtype=float), length.shape)
     bore = np.broadcast_to(np.asarray(bore, dtype=float), length.shape)
@@ -73,12 +73,12 @@ def mixed_steel_string(seed=1, n=12):
 
 
 # ---------------------------------------------------------------------------
-# Identities of the pressure-area method (mechanics reference)
+# Identities of the pressure-area method (string mechanics (ADE 1986))
 # ---------------------------------------------------------------------------
 
 @pytest.mark.parametrize("rho_fluid", [998.2, 1078.4, 1200.0])
 def test_open_string_load_is_air_weight_times_buoyancy_factor(rho_fluid):
-    # identity of the pressure-area method, mechanics.md: open-ended string,
+    # identity of the pressure-area method, string mechanics (ADE 1986): open-ended string,
     # one fluid inside and out, full to the floor: F(0) = W_air (1 - rho_f/rho_s),
     # for any mix of OD and bore of one steel density (Archimedes).
     joints = mixed_steel_string()
@@ -93,7 +93,7 @@ def test_open_string_load_is_air_weight_times_buoyancy_factor(rho_fluid):
 
 
 def test_open_string_effective_tension_is_buoyed_weight_below():
-    # identity of the pressure-area method, mechanics.md: effective tension is
+    # identity of the pressure-area method, string mechanics (ADE 1986): effective tension is
     # zero at the bottom of an open-ended string and its gradient is the buoyed
     # weight per length, so T_eff(top of joint j) - buoyed weight of joints
     # 1..j = T_eff(shoe) = 0 at every step.
@@ -119,7 +119,7 @@ def test_open_string_effective_tension_is_buoyed_weight_below():
 
 @pytest.mark.parametrize("hole_level", [0.0, 14.0])
 def test_closed_empty_string_load_is_air_weight_less_shoe_pressure_on_od(hole_level):
-    # identity of the pressure-area method, mechanics.md: closed-ended, empty
+    # identity of the pressure-area method, string mechanics (ADE 1986): closed-ended, empty
     # string: F(0) = W_air - P_o(Z) A_o.  Bore changes carry no load when the
     # inside is empty, so the bore varies here; the OD is uniform.
     rng = np.random.default_rng(7)
@@ -140,7 +140,7 @@ def test_closed_empty_string_load_is_air_weight_less_shoe_pressure_on_od(hole_le
 
 
 def test_fill_column_adds_its_weight_and_load_falls_as_level_drops():
-    # identity of the pressure-area method, mechanics.md: on a float shoe the
+    # identity of the pressure-area method, string mechanics (ADE 1986): on a float shoe the
     # inside fluid acts on the bore area at the bottom end, P_i(Z) A_i, so the
     # string load rises by rho_fill g (Z - h) A_i over the empty string (the
     # weight of the fill column), and falls as the fill surface h goes deeper.
@@ -163,7 +163,7 @@ def test_fill_column_adds_its_weight_and_load_falls_as_level_drops():
 
 
 def test_valve_with_equal_pressures_both_sides_carries_nothing():
-    # identity of the pressure-area method, mechanics.md: a check valve with
+    # identity of the pressure-area method, string mechanics (ADE 1986): a check valve with
     # the same fluid at the same level on both sides sees equal pressures, so
     # a float shoe or float collar filled with hole fluid to the hole level
     # gives the open-shoe forces at every joint and every step.
@@ -179,7 +179,7 @@ def test_valve_with_equal_pressures_both_sides_carries_nothing():
 
 
 def test_float_collar_shoe_track_is_open_to_the_hole():
-    # identity of the pressure-area method, mechanics.md: below a float collar
+    # identity of the pressure-area method, string mechanics (ADE 1986): below a float collar
     # the shoe track holds hole fluid; with the bore above the collar empty,
     # F(0) = W_air - P_o(Z) (A_o - A_i) - P_o(Z_c) A_i for a uniform string
     # (open bottom end, plus the empty bore's area closed at the collar depth).
@@ -203,7 +203,7 @@ def test_float_collar_shoe_track_is_open_to_the_hole():
 
 
 def test_collapse_load_at_the_fill_surface_inside_a_joint():
-    # identity of the pressure-area method, mechanics.md: dP = P_o - P_i; with a
+    # identity of the pressure-area method, string mechanics (ADE 1986): dP = P_o - P_i; with a
     # fill fluid heavier than the hole fluid dP falls below the fill surface,
     # so inside a part-filled joint the largest dP is at the surface,
     # P_o(h) with the inside empty there.
@@ -218,7 +218,7 @@ def test_collapse_load_at_the_fill_surface_inside_a_joint():
 
 
 def test_collapse_load_of_a_joint_filled_heavier_than_the_hole_is_at_its_top():
-    # identity of the pressure-area method, mechanics.md: dP = P_o - P_i, the
+    # identity of the pressure-area method, string mechanics (ADE 1986): dP = P_o - P_i, the
     # collapse check takes max_z dP(z) over each joint.  Filled to the floor
     # with a fluid heavier than the hole fluid, dP = (rho_o - rho_f) g z < 0
     # below the floor, so each joint's largest dP is at its top: 0 at the step
@@ -236,7 +236,7 @@ def test_collapse_load_of_a_joint_filled_heavier_than_the_hole_is_at_its_top():
 
 
 def test_envelope_is_max_and_min_over_steps_and_first_step():
-    # identity of the pressure-area method, mechanics.md: the envelope of a
+    # identity of the pressure-area method, string mechanics (ADE 1986): the envelope of a
     # connection is the largest true tension at any running step.  Empty
     # floated string: the top joint's force falls as more pipe displaces fluid
     # (W_air - P_o A_o), so the largest force at joint 1 is at step 1.
@@ -265,7 +265,7 @@ def test_bad_fill_schedule_is_refused():
 
 
 # ---------------------------------------------------------------------------
-# api-5c3.md buoyancy check: 1,000 ft of 7 in x 0.317 in, 22.65 lb/ft, 9.0 lb/gal
+# first-principles buoyancy check (ADE 1986, ch. 7): 1,000 ft of 7 in x 0.317 in, 22.65 lb/ft, 9.0 lb/gal
 # ---------------------------------------------------------------------------
 
 def api_check_string(n_joints):
@@ -275,7 +275,7 @@ def api_check_string(n_joints):
 
 
 # The published figures of the check use the oilfield shortcut 0.052 psi/ft
-# per lb/gal (mechanics.md, "Hydrostatics"): 9.0 lb/gal -> 0.468 psi/ft.  The
+# per lb/gal (string mechanics (ADE 1986), "Hydrostatics"): 9.0 lb/gal -> 0.468 psi/ft.  The
 # fluid density below gives exactly that gradient; with it the figures are
 # reproduced to their rounding (1 lbf).
 RHO_SHORTCUT = 0.052 * 9.0 * PSI / FT / G            # [kg/m^3]
@@ -283,9 +283,9 @@ RHO_SHORTCUT = 0.052 * 9.0 * PSI / FT / G            # [kg/m^3]
 
 @pytest.mark.parametrize("n_joints", [1, 25])
 def test_api_5c3_buoyancy_check_open_end(n_joints):
-    # api-5c3.md, "Buoyancy check": open end, hook load about 19,535 lbf,
+    # buoyancy check from first principles (ADE 1986, ch. 7): open end, hook load about 19,535 lbf,
     # true force at the shoe about -3,115 lbf; W_air * BF (1 - MW/65.4,
-    # mechanics.md) agrees at the top.
+    # string mechanics (ADE 1986)) agrees at the top.
     joints = api_check_string(n_joints)
     hole = Hole(fluid_density=RHO_SHORTCUT)
     out = ref.reference_running_loads(joints, hole, Closure(None), RHO_SHORTCUT, None)
@@ -299,7 +299,7 @@ def test_api_5c3_buoyancy_check_open_end(n_joints):
 
 @pytest.mark.parametrize("n_joints", [1, 25])
 def test_api_5c3_buoyancy_check_closed_empty(n_joints):
-    # api-5c3.md, "Buoyancy check": closed end, empty: hook load about
+    # buoyancy check from first principles (ADE 1986, ch. 7): closed end, empty: hook load about
     # 4,639 lbf, force at the shoe about -18,011 lbf.
     joints = api_check_string(n_joints)
     hole = Hole(fluid_density=RHO_SHORTCUT)
@@ -313,7 +313,7 @@ def test_api_5c3_buoyancy_check_closed_empty(n_joints):
 
 
 def test_api_5c3_buoyancy_check_exact_density():
-    # api-5c3.md, "Buoyancy check", with 9.0 lb/gal converted exactly
+    # buoyancy check from first principles (ADE 1986, ch. 7), with 9.0 lb/gal converted exactly
     # (0.051948 psi/ft per lb/gal, as that section states): the pressures are
     # 0.1 % lower than with the 0.052 shortcut, so the figures move by up to
     # 0.1 % of the pressure force (18,011 lbf -> about 18 lbf).
@@ -364,7 +364,7 @@ def _engine():
 @pytest.mark.parametrize("seed", range(40))
 def test_engine_agrees_with_reference(seed):
     # The reference is checked above against the identities of the
-    # pressure-area method (mechanics.md) and the api-5c3.md buoyancy check.
+    # pressure-area method (string mechanics (ADE 1986)) and the first-principles buoyancy check (ADE 1986, ch. 7).
     # rtol 1e-9 as the engine's stated accuracy.  atol: each force is a sum of
     # terms as large as the total weight and P_shoe * A_o; where they nearly
     # cancel (near the neutral point, a string close to floating) a different

@@ -56,7 +56,7 @@ def test_landed_load_is_air_weight_times_buoyancy_factor():
     # Identity of the pressure-area method for a uniform open-ended string,
     # one fluid inside and out, hole full: F(0) = W_air (1 - rho_m / rho_s)
     # (Bourgoyne et al., Applied Drilling Engineering, 1986, ch. 7, buoyancy
-    # factor; mechanics reference, "Axial force by the pressure-area method").
+    # factor; string mechanics (ADE 1986), "Axial force by the pressure-area method").
     s = a53b_string()
     f, rho, e = scenarios()
     r = sweep_landing(s, f, rho, e, string_limit=1e9)
@@ -84,7 +84,7 @@ def test_handbook_buoyancy_example_7in_23lb():
 def test_landed_load_matches_scalar_engine_with_lost_returns():
     # The sweep against rigplan.axial.running_loads on the same string, one
     # scenario at a time, with the annulus fluid top 30 m below the floor
-    # (pressure-area method, mechanics reference conventions).
+    # (pressure-area method, string mechanics (ADE 1986) conventions).
     s = a53b_string(n=120)
     f, rho, e = scenarios(n=4)
     r = sweep_landing(s, f, rho, e, string_limit=1e9, fluid_level=30.0)
@@ -124,7 +124,7 @@ def test_collapse_rating_is_timoshenko_at_the_actual_wall():
 def test_longest_empty_column_matches_fill_window(df):
     # Float shoe, water inside below the fill surface, mud outside: the
     # longest empty column from the closed form
-    # rho_m g Z - rho_w g (Z - h) = R / DF (mechanics reference, "Floating and
+    # rho_m g Z - rho_w g (Z - h) = R / DF (string mechanics (ADE 1986), "Floating and
     # fill-up", collapse bound) against the deepest allowed fill level of
     # rigplan.floatplan.fill_window at the landed step, same string, same
     # rating, no hoisting or running-weight limit.

@@ -328,7 +328,7 @@ def test_registry_built_once():
 
 def test_hydrostatic_gradient_from_parsed_units():
     """Fresh water 8.33 lb/gal gives about 0.433 psi/ft (oilfield rule
-    0.052 psi/ft per lb/gal; string-mechanics reference, Hydrostatics)."""
+    0.052 psi/ft per lb/gal; string mechanics (ADE 1986), Hydrostatics)."""
     rho = units.parse("8.33 ppg", "density", None, "w")
     grad = rho * G_N * units.parse("1 ft", "length", None, "w") / units.parse("1 psi", "pressure", None, "w")
     assert_allclose(grad, 0.433, atol=5e-4)
