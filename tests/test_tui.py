@@ -411,3 +411,44 @@ def test_weight_band_compares_both_ways():
     assert high.outside and high.tolerance == 20.0
     assert any("fill not as planned" in c for c in high.causes)
     assert np.isclose(low.difference, -15.0)
+
+
+async def test_job_settings_change_mud_and_float_equipment(job):
+    # Office use before mobilizing: change the hole fluid and the float
+    # equipment and see the plan follow.  The check compares the app with
+    # the engine run on the same settings (no number is computed here).
+    from textual.widgets import OptionList
+    plan, rig = job
+    app = make_app(plan, rig)
+    async with app.run_test(size=SIZE) as pilot:
+        await pilot.press("g")
+        await pilot.pause()
+        opts = app.screen.query_one(OptionList)
+        keys = [opts.get_option_at_index(i).id for i in range(opts.option_count)]
+        opts.highlighted = keys.index("hole_fluid_density")
+        await pilot.press("enter")
+        await pilot.pause()
+        await answer(pilot, "10.4 ppg")
+        s = app.session
+        # 10.4 lb/gal in kg/m^3 from the exact definitions (NIST SP 811)
+        assert_allclose(s.base_plan.hole.fluid_density, 10.4 * 0.45359237 / 0.003785411784,
+                        rtol=1e-12)
+        assert s.dirty and s.landing is not None
+        import dataclasses
+        expected = plan_job(dataclasses.replace(load_job(plan, rig).plan,
+                                                hole=s.base_plan.hole), load_job(plan, rig).rig)
+        assert s.landing.verdict == expected.verdict
+        assert_allclose(s.landing.hook_load, expected.hook_load, rtol=1e-12)
+        # a bad value is refused in the prompt and changes nothing
+        with pytest.raises(Exception):
+            s.edited_setting("tension_factor", "0.5")
+        # float equipment: a collar on joint 3
+        await pilot.press("g")
+        await pilot.pause()
+        opts = app.screen.query_one(OptionList)
+        opts.highlighted = keys.index("float_equipment")
+        await pilot.press("enter")
+        await pilot.pause()
+        await answer(pilot, "collar 3")
+        assert s.base_plan.closure.valve_joint == 3
+        await pilot.press("escape")

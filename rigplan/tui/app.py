@@ -199,6 +199,41 @@ class RigplanApp(App):
         self.refresh_views()
         self.notify(f"Planning with hoisting path {name!r}", timeout=3)
 
+    def action_job_settings(self) -> None:
+        """Change a job setting (fluids, float equipment, design factors,
+        weights, rig profile); the plan is recomputed at once."""
+        from rigplan.tui.dialogs import ChoiceScreen
+        from rigplan.tui.session import JOB_SETTINGS
+        s = self.session
+        choices = [(key, f"{title}: {s.setting_text(key)}")
+                   for key, (title, _, _) in JOB_SETTINGS.items()]
+
+        def picked(key) -> None:
+            if key is None:
+                return
+            title, kind, hint = JOB_SETTINGS[key]
+            if kind not in (None, "dimensionless"):
+                hint = (hint + "; " if hint else "") + (
+                    f"a bare number is in {U.unit_label(kind, s.units)} ({U.describe(kind)})")
+            if key == "rig":
+                self.push_screen(PromptScreen(title, value=s.setting_text(key), hint=hint,
+                                              parse=s.change_rig, prompt_id="prompt-setting"),
+                                 lambda name: name is not None and self._committed(
+                                     f"Planning with rig {name}"))
+                return
+
+            def done(plan) -> None:
+                if plan is None:
+                    return
+                s.apply_plan(plan)
+                self._committed(f"{title} changed (not saved yet: s on the String tab saves)")
+
+            self.push_screen(PromptScreen(title, value=s.setting_text(key), hint=hint,
+                                          parse=lambda t: s.edited_setting(key, t),
+                                          prompt_id="prompt-setting"), done)
+
+        self.push_screen(ChoiceScreen("Job settings", choices, choice_id="settings"), picked)
+
     def action_help(self) -> None:
         self.push_screen(HelpScreen(help_sections()))
 

@@ -87,6 +87,10 @@ ACTIONS = (
                "Switch the display between US field units and SI", short="Units"),
     ActionSpec("next_path", "p", "p", "Next hoisting path",
                "Plan with the rig's next hoisting path", short="Path"),
+    ActionSpec("job_settings", "g", "g", "Job settings",
+               "Change the hole fluid, fill fluid, float equipment, design factors, running "
+               "and set-down weights or the rig profile; the plan updates at once",
+               short="Settings"),
     ActionSpec("help", "question_mark,f1", "? F1", "Keys", "List every key"),
     ActionSpec("quit", "q", "q", "Quit", "Leave the app (the run log is already saved)"),
 )

@@ -136,3 +136,34 @@ class HelpScreen(ModalScreen):
 
     def action_close(self) -> None:
         self.dismiss(None)
+
+
+class ChoiceScreen(ModalScreen):
+    """Pick one of a list: arrows and Enter, or Escape to cancel."""
+
+    BINDINGS = [Binding("escape", "cancel", "Cancel", id="choice.cancel")]
+
+    def __init__(self, title: str, choices, choice_id: str = "choice"):
+        """``choices``: ``[(key, text)]``; dismisses with the key (None: cancelled)."""
+        super().__init__(id=choice_id)
+        self._title = title
+        self._choices = list(choices)
+
+    def compose(self) -> ComposeResult:
+        from textual.widgets import OptionList
+        from textual.widgets.option_list import Option
+        with Vertical(classes="dialog"):
+            yield Label(self._title, classes="dialog-title", markup=False)
+            yield OptionList(*[Option(text, id=key) for key, text in self._choices],
+                             id="choice-list")
+            yield Static("Enter: change   Esc: close", classes="dialog-keys", markup=False)
+
+    def on_mount(self) -> None:
+        self.query_one("#choice-list").focus()
+
+    def on_option_list_option_selected(self, event) -> None:
+        event.stop()
+        self.dismiss(event.option.id)
+
+    def action_cancel(self) -> None:
+        self.dismiss(None)

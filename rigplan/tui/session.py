@@ -429,6 +429,109 @@ class JobSession:
             collar = changed.label
         return self._check_plan(self._with_joints(joints, collar))
 
+    # -- job settings ---------------------------------------------------------
+
+    def setting_text(self, key: str) -> str:
+        """The current value of a job setting as editable text."""
+        p = self.base_plan
+        sys_ = self.units
+        d = p.settings.design
+        values = {
+            "hole_fluid_density": ("density", p.hole.fluid_density),
+            "hole_fluid_level": ("length", p.hole.fluid_level),
+            "fill_density": ("density", p.settings.fill_density),
+            "valve_rating": ("pressure", p.closure.valve_rating),
+            "min_running_weight": ("force", p.settings.min_running_weight),
+            "set_down_weight": ("force", p.settings.set_down_weight),
+        }
+        if key in values:
+            kind, v = values[key]
+            return "unrated" if v != v else U.format(v, kind, sys_)
+        if key.endswith("_factor"):
+            return f"{getattr(d, key[:-len('_factor')]):g}"
+        if key == "float_equipment":
+            m = p.closure.valve_joint
+            if m is None:
+                return "none"
+            if m == 0:
+                return "float shoe"
+            return f"collar {p.running_joints()[m - 1].label}"
+        if key == "rig":
+            return str(self.rig_path)
+        raise InputError(key, "no such job setting")
+
+
+    def edited_setting(self, key: str, text: str) -> StringPlan:
+        """The base plan with one job setting changed (raises InputError)."""
+        if key not in JOB_SETTINGS:
+            raise InputError(key, "no such job setting")
+        title, kind, _ = JOB_SETTINGS[key]
+        where = f"job setting {title.lower()}"
+        p = self.base_plan
+        t = text.strip()
+        if key == "float_equipment":
+            if self.state.run:
+                raise InputError(where, "joints are in the hole: the float equipment installed "
+                                        "cannot change (undo the runs first)")
+            low = t.lower()
+            running = p.running_joints()
+            if low in ("none", "open", "open shoe"):
+                closure = dataclasses.replace(p.closure, valve_joint=None)
+            elif low in ("shoe", "float shoe", "float_shoe"):
+                closure = dataclasses.replace(p.closure, valve_joint=0)
+            else:
+                ref = low.removeprefix("float collar").removeprefix("collar").strip()
+                labels = [j.label for j in running]
+                if ref.isdigit():
+                    m = int(ref)
+                elif ref.upper() in [x.upper() for x in labels]:
+                    m = [x.upper() for x in labels].index(ref.upper()) + 1
+                else:
+                    raise InputError(where, f"expected none, float shoe or collar N, got {text!r}")
+                if not 1 <= m < len(running):
+                    raise InputError(where, "float collar placed below the shoe or above the top: "
+                                            f"expected a joint 1..{len(running) - 1}, got {m}")
+                closure = dataclasses.replace(p.closure, valve_joint=m)
+            return self._check_plan(dataclasses.replace(p, closure=closure))
+        if key == "valve_rating":
+            if t.lower() == "unrated":
+                value = float("nan")
+            else:
+                value = U.parse(t, "pressure", U.unit_label("pressure", self.units), where)
+                if not value > 0:
+                    raise InputError(where, f"expected a pressure > 0, got {text!r}")
+            return dataclasses.replace(p, closure=dataclasses.replace(p.closure, valve_rating=value))
+        if key.endswith("_factor"):
+            value = U.parse(t, "dimensionless", "", where)
+            if not value >= 1.0:
+                raise InputError(where, f"expected a design factor >= 1 [-], got {text!r}")
+            design = dataclasses.replace(p.settings.design, **{key[:-len("_factor")]: value})
+            return dataclasses.replace(p, settings=dataclasses.replace(p.settings, design=design))
+        value = U.parse(t, kind, U.unit_label(kind, self.units), where)
+        if kind == "density" and not _DENSITY_RANGE[0] <= value <= _DENSITY_RANGE[1]:
+            raise InputError(where, f"expected a fluid density between "
+                                    f"{U.format(_DENSITY_RANGE[0], 'density', self.units)} and "
+                                    f"{U.format(_DENSITY_RANGE[1], 'density', self.units)}, "
+                                    f"got {text!r}")
+        if kind in ("length", "force") and value < 0:
+            raise InputError(where, f"expected {U.describe(kind)} >= 0, got {text!r}")
+        if key == "hole_fluid_density":
+            return dataclasses.replace(p, hole=dataclasses.replace(p.hole, fluid_density=value))
+        if key == "hole_fluid_level":
+            return dataclasses.replace(p, hole=dataclasses.replace(p.hole, fluid_level=value))
+        return dataclasses.replace(p, settings=dataclasses.replace(p.settings, **{key: value}))
+
+
+    def change_rig(self, text: str) -> str:
+        """Plan with another rig profile (read first: a bad file changes nothing)."""
+        from rigplan.formats.rigfile import read_rig
+        from rigplan.job import resolve_rig
+        path = resolve_rig(text.strip(), self.plan_path)
+        rig = read_rig(path)
+        self.rig, self.rig_path, self.path_name = rig, Path(path), None
+        self.recompute()
+        return rig.name
+
     def apply_plan(self, plan: StringPlan) -> None:
         """Use an edited base plan (from :meth:`edited_plan` or the joint edits)."""
         self.base_plan = plan
@@ -541,3 +644,26 @@ def finite(value) -> bool:
         return math.isfinite(float(value))
     except (TypeError, ValueError):
         return False
+
+
+# -- job settings ------------------------------------------------------------------
+
+#: Settings of the job the app lets the user change, in order:
+#: key -> (title, quantity kind for the prompt or None, hint)
+JOB_SETTINGS = {
+    "hole_fluid_density": ("Hole fluid density", "density", ""),
+    "hole_fluid_level": ("Hole fluid level (depth to its top)", "length", ""),
+    "fill_density": ("Fill fluid density", "density", ""),
+    "float_equipment": ("Float equipment", None,
+                        "none, float shoe, or collar N (N = joint number or label)"),
+    "valve_rating": ("Check valve rating", "pressure", "a pressure, or unrated"),
+    "min_running_weight": ("Minimum running weight", "force", ""),
+    "set_down_weight": ("Set-down weight when landed", "force", ""),
+    "tension_factor": ("Design factor, tension", "dimensionless", "a number >= 1"),
+    "collapse_factor": ("Design factor, collapse", "dimensionless", "a number >= 1"),
+    "burst_factor": ("Design factor, burst", "dimensionless", "a number >= 1"),
+    "rig": ("Rig profile", None, "a rigs/*.toml path or a bundled rig's name"),
+}
+
+#: Fluid densities accepted [kg/m^3] (as in the plan file reader).
+_DENSITY_RANGE = (600.0, 3000.0)
