@@ -36,6 +36,11 @@ def _parser() -> argparse.ArgumentParser:
                         help="display units: US field or SI (default us)")
         sp.add_argument("--materials", default=None,
                         help="extra materials file (TOML) to add to the library")
+        sp.add_argument("--tally", default=None,
+                        help="tally CSV whose measured lengths and rejections override the plan")
+        sp.add_argument("--as-run", action="store_true",
+                        help="apply the site run log beside the plan (joints run, measured "
+                             "lengths, rejections): the plan as run so far")
 
     c = sub.add_parser("check", help="check whether the rig can land the string")
     job_args(c)
@@ -55,9 +60,22 @@ def _parser() -> argparse.ArgumentParser:
 
 
 def _load(args):
-    from rigplan.job import load_job, plan_job
+    import dataclasses
+    from rigplan.job import apply_run_state, apply_tally_file, load_job, plan_job, read_run_state
     job = load_job(args.plan, args.rig, args.path, args.materials)
-    landing = plan_job(job.plan, job.rig, job.path_name)
+    plan = job.plan
+    if getattr(args, "tally", None):
+        plan = apply_tally_file(plan, args.tally)
+    fixed = False
+    if getattr(args, "as_run", False):
+        state = read_run_state(job.plan_path)
+        if state is None:
+            raise InputError(f"{job.plan_path}: --as-run", "no run log beside the plan: the "
+                                                           "job has not been run in the app")
+        plan = apply_run_state(plan, state)
+        fixed = bool(state.run)
+    job = dataclasses.replace(job, plan=plan)
+    landing = plan_job(plan, job.rig, job.path_name, fixed_closure=fixed)
     return job, landing
 
 

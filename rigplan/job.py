@@ -108,6 +108,47 @@ def load_job(plan_path, rig_path, path_name: str | None = None,
                warnings=tuple(read.warnings), path_name=path_name)
 
 
+def _collar_label(plan: StringPlan):
+    m = plan.closure.valve_joint
+    if not m:
+        return None
+    running = plan.running_joints()
+    return running[m - 1].label if m <= len(running) else None
+
+
+def _keep_collar(before: StringPlan, after: StringPlan, collar) -> StringPlan:
+    """``after`` with the float collar on the same joint (by label) as in
+    ``before``; refused when that joint has been set aside."""
+    if collar is None:
+        return after
+    labels = [j.label for j in after.running_joints()]
+    if collar not in labels:
+        raise InputError(f"joint {collar}", "the float collar joint is set aside: move the "
+                                            "collar in the plan first")
+    return dataclasses.replace(after, closure=dataclasses.replace(
+        before.closure, valve_joint=labels.index(collar) + 1))
+
+
+def apply_tally_file(plan: StringPlan, path) -> StringPlan:
+    """The plan with a tally CSV's measured lengths, walls and rejections."""
+    from rigplan.formats.planfile import apply_tally
+    from rigplan.formats.tally import read_tally
+    rows = read_tally(path)
+    joints = apply_tally(list(plan.joints), rows, str(path))
+    return _keep_collar(plan, dataclasses.replace(plan, joints=tuple(joints)),
+                        _collar_label(plan))
+
+
+def read_run_state(plan_path):
+    """The run log beside a plan (None when the job has not been run)."""
+    from rigplan.runlog import RunLog, log_path_for
+    log = log_path_for(plan_path)
+    if not Path(log).exists():
+        return None
+    with RunLog(log) as rl:
+        return rl.state()
+
+
 def apply_run_state(plan: StringPlan, state) -> StringPlan:
     """The plan as run so far: measured lengths and rejections from a run log.
 
@@ -117,11 +158,7 @@ def apply_run_state(plan: StringPlan, state) -> StringPlan:
     """
     if state is None:
         return plan
-    collar = None
-    m = plan.closure.valve_joint
-    if m:
-        running = plan.running_joints()
-        collar = running[m - 1].label if m <= len(running) else None
+    collar = _collar_label(plan)
     measured = {label: length for label, length in state.run}
     rejected = dict(state.rejected)
     joints = []
@@ -132,15 +169,7 @@ def apply_run_state(plan: StringPlan, state) -> StringPlan:
         if j.label in rejected:
             changes["rejected"] = True
         joints.append(_changed(j, **changes) if changes else j)
-    out = dataclasses.replace(plan, joints=tuple(joints))
-    if collar is not None:
-        labels = [j.label for j in out.running_joints()]
-        if collar not in labels:
-            raise InputError(f"joint {collar}", "the float collar joint is set aside in the run "
-                                                "log: move the collar in the plan first")
-        out = dataclasses.replace(out, closure=dataclasses.replace(
-            plan.closure, valve_joint=labels.index(collar) + 1))
-    return out
+    return _keep_collar(plan, dataclasses.replace(plan, joints=tuple(joints)), collar)
 
 
 _CHANGED: dict = {}

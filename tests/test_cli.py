@@ -196,3 +196,27 @@ type = "float_shoe"
     assert shoe and not shoe[0]["lands"] and "screen above the check valve" in shoe[0]["reason"]
     # the planner offers a float collar on the top screen joint instead
     assert any(o["valve_joint"] == 3 for o in doc["float_options"])
+
+
+def test_tally_and_as_run_override_planned_lengths(tmp_path, capsys):
+    # Rule of the trade (common practice, no source): a measured tally
+    # length beats the nominal one.  Lengths are compared in metres after
+    # the exact foot (NIST SP 811: 1 ft = 0.3048 m).
+    import shutil
+    from rigplan.runlog import RunLog, log_path_for
+    plan = tmp_path / "cv7.toml"
+    shutil.copy(STRINGS / "cv7-16in-floated.toml", plan)
+    tally = tmp_path / "t.csv"
+    tally.write_text("label,measured_length [ft],status\nJ1,21.5,run\nJ7,19.25,run\n")
+    _, doc = run_json(capsys, str(plan), "--rig", "mw80", "--tally", str(tally))
+    lengths = {j["label"]: j["length"] for j in doc["joints"]}
+    assert abs(lengths["J1"] - 21.5 * 0.3048) < 1e-9
+    assert abs(lengths["J7"] - 19.25 * 0.3048) < 1e-9
+    with RunLog(log_path_for(plan)) as log:
+        log.record_run("J1", 6.2)
+        log.reject("J2", "dented")
+    _, doc = run_json(capsys, str(plan), "--rig", "mw80", "--as-run")
+    labels = [j["label"] for j in doc["joints"]]
+    assert "J2" not in labels and abs(doc["joints"][0]["length"] - 6.2) < 1e-12
+    # the float collar stays on its joint (J5) with J2 set aside
+    assert doc["fill_schedule"]["valve_joint"] == labels.index("J5") + 1
