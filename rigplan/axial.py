@@ -175,6 +175,28 @@ def _interface_terms(geo: StringGeometry, rows: np.ndarray, hole: Hole,
     return terms
 
 
+def true_force_at(joints: JointArrays, hole: Hole, closure: Closure, fill_density: float,
+                  fill_level, joint, step) -> np.ndarray:
+    """True axial force at the top of joint ``joint`` at running step ``step`` [N].
+
+    ``joint`` and ``step`` are arrays of 0-based indices of equal length
+    with ``joint <= step``.  The pressure-area sum of the module docstring
+    over the interfaces below each joint's top, ``O(I x distinct steps)``.
+    """
+    geo = string_geometry(joints, closure)
+    level = _fill_levels(geo, closure, fill_level)
+    j = np.asarray(joint, dtype=int)
+    k = np.asarray(step, dtype=int)
+    if np.any(j > k):
+        raise ValueError("a joint's top is loaded only from the step it enters the hole")
+    # Many joints share a step (the last, or the step before a top-up):
+    # sum the interface forces once per distinct step, then pick each
+    # joint's section (the last active interface at or below its top).
+    steps, where = np.unique(k, return_inverse=True)
+    q = np.cumsum(_interface_terms(geo, steps, hole, fill_density, level), axis=0)
+    return geo.cum_weight[j] + q[geo.section[j], where]
+
+
 def _fill_levels(geo: StringGeometry, closure: Closure, fill_level) -> np.ndarray:
     n = len(geo.top)
     if closure.is_open or fill_level is None:

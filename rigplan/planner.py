@@ -72,6 +72,7 @@ class RunCheck:
     limits: tuple
     unrated: tuple
     ok: bool
+    collapse_rating: np.ndarray | None = None   # ratings used, axial load included [Pa]
 
 
 @dataclass(frozen=True)
@@ -147,9 +148,61 @@ def _ratio(load, capacity):
         return np.where(np.isfinite(capacity), load / capacity, np.nan)
 
 
+def collapse_rating_under_tension(joints: JointArrays, loads: RunningLoads, hole: Hole,
+                                  closure: Closure, fill_density: float) -> np.ndarray:
+    """Collapse ratings of API-grade joints reduced for the axial tension
+    they carry when their collapse load peaks [Pa] (other joints unchanged).
+
+    API TR 5C3 (ISO/TR 10400): the collapse formulas are used with the
+    yield of the axial-stress equivalent grade
+    ``Ypa = Y [sqrt(1 - 0.75 (Sa/Y)^2) - 0.5 Sa/Y]``, ``Sa`` the axial
+    tension over the rating wall's steel area (no credit is taken for
+    compression).  Where ``Ypa`` falls below the range of the 5C3
+    constants, the lesser of the yield-collapse and elastic-collapse
+    formulas is used (the regimes that govern there).
+    """
+    from rigplan.axial import true_force_at
+    from rigplan.collapse import API_5C3_YIELD_RANGE, api_5c3, axial_reduced_yield
+    rating = np.asarray(joints.collapse_rating, dtype=float).copy()
+    if joints.yield_strength is None or joints.rating_wall is None or not joints.collapse_method:
+        return rating
+    use = np.array([m == "api_5c3" for m in joints.collapse_method]) & (loads.collapse_max > 0)
+    use &= np.isfinite(joints.yield_strength) & np.isfinite(joints.rating_wall)
+    if not np.any(use):
+        return rating
+    j = np.flatnonzero(use)
+    force = true_force_at(joints, hole, closure, fill_density,
+                          None if closure.is_open else loads.fill_level,
+                          j, loads.collapse_step[j] - 1)
+    od, t, y = joints.od[j], joints.rating_wall[j], joints.yield_strength[j]
+    steel = 0.25 * np.pi * (od ** 2 - (od - 2 * t) ** 2)
+    sa = np.clip(force / steel, 0.0, y)
+    ypa = axial_reduced_yield(y, sa)
+    lo = API_5C3_YIELD_RANGE[0]
+    dt = od / t
+    in_range = ypa >= lo
+    reduced = np.empty(len(j))
+    if np.any(in_range):
+        reduced[in_range] = api_5c3(od[in_range], t[in_range], ypa[in_range])
+    out = ~in_range
+    if np.any(out):
+        d_t = dt[out]
+        yield_collapse = 2.0 * ypa[out] * (d_t - 1.0) / d_t ** 2
+        elastic = 46.95e6 * 6894.757293168361 / (d_t * (d_t - 1.0) ** 2)
+        reduced[out] = np.minimum(yield_collapse, elastic)
+    rating[j] = np.minimum(rating[j], reduced)
+    return rating
+
+
 def check_run(joints: JointArrays, loads: RunningLoads, closure: Closure,
-              string_limit: float, settings: Settings) -> RunCheck:
-    """Check one run against hoisting, tension, collapse and burst limits."""
+              string_limit: float, settings: Settings, hole: Hole | None = None,
+              fill_density: float = 0.0) -> RunCheck:
+    """Check one run against hoisting, tension, collapse and burst limits.
+
+    With ``hole`` given, API-grade collapse ratings are reduced for the
+    axial tension at the step of the largest collapse load
+    (:func:`collapse_rating_under_tension`).
+    """
     d = settings.design
     cap_margin = (string_limit - loads.string_load) / string_limit
     tension_cap = np.fmin(joints.connection_rating, joints.body_rating)
@@ -158,7 +211,9 @@ def check_run(joints: JointArrays, loads: RunningLoads, closure: Closure,
                            np.nan, tension_cap)
     t_load = d.tension * np.maximum(loads.envelope_max, 0.0)
     t_util = _ratio(t_load, tension_cap)
-    c_util = _ratio(d.collapse * np.maximum(loads.collapse_max, 0.0), joints.collapse_rating)
+    c_rating = (joints.collapse_rating if hole is None else
+                collapse_rating_under_tension(joints, loads, hole, closure, fill_density))
+    c_util = _ratio(d.collapse * np.maximum(loads.collapse_max, 0.0), c_rating)
     b_util = _ratio(d.burst * np.maximum(loads.burst_max, 0.0), joints.burst_rating)
     label = joints.label
     limits = []
@@ -167,7 +222,7 @@ def check_run(joints: JointArrays, loads: RunningLoads, closure: Closure,
                         float(loads.string_load[k]), string_limit, float(cap_margin[k])))
     for name, util, load, cap in (
             ("connection tension", t_util, t_load, tension_cap),
-            ("collapse", c_util, d.collapse * loads.collapse_max, joints.collapse_rating),
+            ("collapse", c_util, d.collapse * loads.collapse_max, c_rating),
             ("burst", b_util, d.burst * loads.burst_max, joints.burst_rating)):
         if np.any(np.isfinite(util)):
             j = int(np.nanargmax(util))
@@ -186,7 +241,7 @@ def check_run(joints: JointArrays, loads: RunningLoads, closure: Closure,
     return RunCheck(closure=closure, loads=loads, capacity_margin=cap_margin,
                     tension_utilization=t_util, collapse_utilization=c_util,
                     burst_utilization=b_util, limits=tuple(limits),
-                    unrated=tuple(unrated), ok=ok)
+                    unrated=tuple(unrated), ok=ok, collapse_rating=c_rating)
 
 
 def _governing(check: RunCheck) -> Limit:
@@ -246,18 +301,32 @@ def try_float(joints: JointArrays, hole: Hole, closure: Closure, fill_density: f
             f"joint {top_screen} ({joints.label[top_screen - 1]}) is a screen above the check "
             f"valve: hole fluid enters through it, so the pipe cannot be floated; put the float "
             f"collar on joint {top_screen} or higher")
-    window = fill_window(joints, hole, closure, fill_density, limit,
-                         settings.min_running_weight, d.collapse)
-    schedule = fill_schedule(joints, hole, closure, fill_density, limit,
-                             settings.min_running_weight, d.collapse, window=window)
-    empty = empty_run(joints, hole, closure, fill_density, settings.min_running_weight,
-                      d.collapse, window=window)
-    if not schedule.feasible:
-        return FloatOption(closure, fill_density, window, schedule, None, False,
-                           schedule.failure, empty)
-    loads = running_loads(joints, hole, closure, fill_density,
-                          np.nan_to_num(schedule.fill_level, nan=0.0))
-    check = check_run(joints, loads, closure, limit, settings)
+    for _ in range(5):
+        window = fill_window(joints, hole, closure, fill_density, limit,
+                             settings.min_running_weight, d.collapse)
+        schedule = fill_schedule(joints, hole, closure, fill_density, limit,
+                                 settings.min_running_weight, d.collapse, window=window)
+        empty = empty_run(joints, hole, closure, fill_density, settings.min_running_weight,
+                          d.collapse, window=window)
+        if not schedule.feasible:
+            return FloatOption(closure, fill_density, window, schedule, None, False,
+                               schedule.failure, empty)
+        loads = running_loads(joints, hole, closure, fill_density,
+                              np.nan_to_num(schedule.fill_level, nan=0.0))
+        check = check_run(joints, loads, closure, string_limit, settings, hole, fill_density)
+        # A connection over its limit: the fill above the valve loads every
+        # connection above it by at most the fluid's weight, so lowering the
+        # hoisting side of the window by the excess and planning again keeps
+        # that connection within its rating (or shows the window closes).
+        over = [lim for lim in check.limits
+                if lim.name == "connection tension" and lim.margin < -1e-12]
+        if not over:
+            break
+        excess = over[0].load * (1.0 - 1.0 / (1.0 - over[0].margin)) / d.tension
+        new_limit = min(limit, float(np.max(schedule.string_load))) - max(excess, 1.0)
+        if not new_limit > 0:
+            break
+        limit = new_limit
     wm = np.asarray(schedule.weight_margin, dtype=float)
     if settings.min_running_weight > 0 and np.any(np.isfinite(wm)):
         # the string must still go down wherever the pipe is not kept full
@@ -340,7 +409,7 @@ def plan_landing(joints: JointArrays, hole: Hole, rig: Rig, settings: Settings,
                          "string (check its ratings, dead load and overpull reserve)")
 
     open_loads = running_loads(joints, hole, Closure())
-    open_check = check_run(joints, open_loads, Closure(), limit, settings)
+    open_check = check_run(joints, open_loads, Closure(), limit, settings, hole)
     switch = switch_point(open_loads.string_load, limit)
     reasons = []
     options = []

@@ -109,6 +109,8 @@ def plan_dict(landing, plan=None, warnings=(), rig_name: str = "") -> dict:
         "length": _f(j.length[i]), "od": _f(j.od[i]), "bore": _f(j.bore[i]),
         "weight": _f(j.weight[i]),
         "collapse_rating": _f(j.collapse_rating[i]),
+        "collapse_rating_under_load": _f(chk.collapse_rating[i])
+        if chk.collapse_rating is not None else _f(j.collapse_rating[i]),
         "collapse_method": j.collapse_method[i] if j.collapse_method else "",
         "max_collapse_load": _f(loads.collapse_max[i]),
         "collapse_utilization": _f(chk.collapse_utilization[i]),

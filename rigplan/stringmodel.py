@@ -105,6 +105,9 @@ class JointArrays:
         joint's top [N] (nan = unrated; inf = no connection above, e.g. the
         top joint held in the elevator is checked against ``body_rating``)
     collapse_method : tuple of str  how each collapse rating was obtained
+    yield_strength : ndarray  minimum yield of each joint's material [Pa]
+        (optional; used for collapse under axial load)
+    rating_wall : ndarray  the wall the ratings use [m] (minimum or measured)
     """
 
     label: tuple
@@ -118,6 +121,8 @@ class JointArrays:
     body_rating: np.ndarray
     connection_rating: np.ndarray
     collapse_method: tuple = ()
+    yield_strength: np.ndarray | None = None   # minimum yield [Pa] (nan: unknown)
+    rating_wall: np.ndarray | None = None      # wall the ratings use [m]
 
     def __post_init__(self):
         n = len(self.length)
@@ -141,6 +146,8 @@ class JointArrays:
             burst_rating=self.burst_rating[sl], body_rating=self.body_rating[sl],
             connection_rating=self.connection_rating[sl],
             collapse_method=tuple(self.collapse_method[sl]) if self.collapse_method else (),
+            yield_strength=None if self.yield_strength is None else self.yield_strength[sl],
+            rating_wall=None if self.rating_wall is None else self.rating_wall[sl],
         )
 
 
