@@ -74,7 +74,9 @@ def _load(args):
                                                            "job has not been run in the app")
         plan = apply_run_state(plan, state)
         fixed = bool(state.run)
-    job = dataclasses.replace(job, plan=plan)
+    from rigplan.job import length_warnings
+    extra = [w for w in length_warnings(plan) if w not in job.warnings]
+    job = dataclasses.replace(job, plan=plan, warnings=tuple(job.warnings) + tuple(extra))
     landing = plan_job(plan, job.rig, job.path_name, fixed_closure=fixed)
     return job, landing
 

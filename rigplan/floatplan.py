@@ -238,7 +238,9 @@ class FillWindow:
     low_height / high_height : the window as fill heights above the shoe [m]
     empty_limit : what stops the pipe being left emptier ("collapse",
         "check valve", "running weight", or "" when it may run empty)
-    full_limit : what stops it being fuller ("hoisting capacity" or "")
+    full_limit : what stops it being fuller ("hoisting capacity", "valve
+        balance" -- fill whose head at the valve exceeds the hole's drains
+        out through it -- or "")
     closing_limit : for an empty window, the limits that overlap
     feasible : the window is not empty
     """
@@ -318,12 +320,20 @@ def fill_window(joints: JointArrays, hole: Hole, closure: Closure, fill_density:
     use = s_w > lo
     lo = np.where(use, s_w, lo)
     empty_code = np.where(use, 3, empty_code)                  # running weight
-    hi = np.minimum(shoe, s_cap)
-    full_code = (s_cap < shoe).astype(np.int8)
+    # A check valve holds pressure from below only: fill whose head at the
+    # valve exceeds the hole's there drains out through it until the two
+    # balance (U-tube), so the fill can stand no higher than that.
+    p_valve = hole.fluid_density * G * np.maximum(0.0, shoe - xv - hole.fluid_level)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        s_drain = np.where(grad > 0, xv + p_valve / (grad if grad > 0 else 1.0), np.inf)
+    tol_h = 1e-9 * max(1.0, float(shoe[-1]))
+    hi = np.minimum(np.minimum(shoe, s_cap), s_drain)
+    full_code = np.where(s_drain < np.minimum(shoe, s_cap) - tol_h, 2,
+                         (s_cap < shoe).astype(np.int8)).astype(np.int8)
     tol = 1e-9 * max(1.0, float(shoe[-1]))
     feasible = (lo <= hi + tol) | ~valve_in
     # Where the window is empty, the limits that close it (message per pair).
-    closing_code = np.where(feasible, empty_code, 4 + 2 * empty_code + full_code)
+    closing_code = np.where(feasible, empty_code, 4 + 3 * empty_code + full_code)
     in_hole = np.where(valve_in, 1, 0)
     with np.errstate(invalid="ignore"):
         ok = feasible & valve_in
@@ -346,16 +356,19 @@ def fill_window(joints: JointArrays, hole: Hole, closure: Closure, fill_density:
 
 
 #: Name of the limit that bounds the fill from above, by code.
-_FULL_NAMES = np.array(["", "hoisting capacity"], dtype=object)
+_FULL_NAMES = np.array(["", "hoisting capacity", "valve balance"], dtype=object)
 
 #: What closes a step's window, by code: the empty-side name when the window
-#: is open (0-3), else ``4 + 2 x empty-side code + full-side code``.
+#: is open (0-3), else ``4 + 3 x empty-side code + full-side code``.
 _CLOSING_NAMES = np.array(
     list(_LIMIT_NAMES)
     + [msg for low in _LIMIT_NAMES for msg in (
         "the string is too light (floats) even with the pipe full"
         if low == "running weight" else f"{low} even with the pipe full",
-        f"{low} vs hoisting capacity")],
+        f"{low} vs hoisting capacity",
+        "the string is too light (floats) even with the fill at its balance level"
+        if low == "running weight" else
+        f"{low} vs valve balance (heavier fill drains out through the check valve)")],
     dtype=object)
 
 

@@ -539,6 +539,7 @@ class PathCapacity:
     hook_limit: float
     governing: str
     unrated: tuple
+    unrated_on_path: tuple = ()
 
 
 @dataclass(frozen=True)
@@ -680,7 +681,30 @@ def path_capacity(path: HoistPath) -> PathCapacity:
         governing = ""
         string_limit = hook_limit = _NAN
     return PathCapacity(path=path.name, components=tuple(rows), string_limit=string_limit,
-                        hook_limit=hook_limit, governing=governing, unrated=tuple(unrated))
+                        hook_limit=hook_limit, governing=governing, unrated=tuple(unrated),
+                        unrated_on_path=unrated_parts_in_use(path))
+
+
+def unrated_parts_in_use(path: HoistPath) -> tuple:
+    """Names of parts that carry the string on this path but have no rating.
+
+    A handling tool listed on the path always carries it.  A path hoisting
+    on the winch (line pull or wire rope given) also carries it through the
+    other of the two and the mast.  A part left out of a path that does not
+    use it (a top-head path's winch) is not in use.  Such parts make the
+    capacity unknown, never assumed (common practice, no source).
+    """
+    missing = [name for name, _kind, rating in path.tools if math.isnan(rating)]
+    winch = not math.isnan(path.winch_line_pull)
+    rope = not math.isnan(path.rope_breaking_force)
+    if winch or rope:
+        if not winch:
+            missing.append("winch line pull")
+        if not rope:
+            missing.append("wire rope")
+        if math.isnan(path.mast_rating):
+            missing.append("mast")
+    return tuple(missing)
 
 
 def rig_capacity(rig: Rig) -> tuple:

@@ -193,6 +193,29 @@ def _changed(spec: JointSpec, measured_length=None, rejected=None) -> JointSpec:
     return out
 
 
+#: Measured lengths outside this share of the planned length are flagged.
+LENGTH_WARNING = (0.75, 1.25)
+
+
+def length_warnings(plan: StringPlan) -> list:
+    """One-line warnings on measured lengths far from the planned ones (a
+    typing slip such as 2006 for 20.06) and on a string longer than the hole."""
+    out = []
+    src = plan.source or plan.name
+    for j in plan.running_joints():
+        if j.measured_length is not None and not (
+                LENGTH_WARNING[0] * j.length <= j.measured_length <= LENGTH_WARNING[1] * j.length):
+            out.append(f"{src}: {j.label}: measured {j.measured_length:.3f} m "
+                       f"({j.measured_length / 0.3048:.2f} ft) against {j.length:.3f} m "
+                       f"({j.length / 0.3048:.2f} ft) planned: check the tally")
+    total = sum(j.run_length for j in plan.running_joints())
+    depth = plan.hole.depth
+    if depth == depth and total > depth:
+        out.append(f"{src}: the string as measured ({total:.2f} m, {total / 0.3048:.1f} ft) is "
+                   f"longer than the hole ({depth:.2f} m, {depth / 0.3048:.1f} ft)")
+    return out
+
+
 def rated_joints(plan: StringPlan):
     """The running joints of a plan, rated (``JointArrays``)."""
     from rigplan.rating import rate_joints

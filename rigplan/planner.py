@@ -487,16 +487,26 @@ def plan_landing(joints: JointArrays, hole: Hole, rig: Rig, settings: Settings,
             if verdict is None:
                 verdict = CANNOT_LAND
 
+    total = float(np.sum(joints.length))
+    hole_limit = None
+    if np.isfinite(hole.depth) and total > hole.depth * (1 + 1e-9):
+        reasons.insert(0, f"the string ({total:.2f} m, {total / 0.3048:.1f} ft) is longer than "
+                          f"the hole ({hole.depth:.2f} m, {hole.depth / 0.3048:.1f} ft): it "
+                          "cannot be landed; check the tally and the plan")
+        verdict = CANNOT_LAND
+        hole_limit = Limit("hole depth", "the shoe when landed", total, float(hole.depth),
+                           float((hole.depth - total) / hole.depth), "length")
     notes = []
     shown = [best] if best is not None else [o for o in options if o.empty is not None][:1]
     for o in shown:
         notes += float_notes(o, joints.n)
-    unrated = tuple(chosen.unrated)
-    if verdict in (LANDS_OPEN, LANDS_FLOATED) and unrated:
+    unrated = tuple(f"{part} on hoisting path {cap.path!r}" for part in cap.unrated_on_path) \
+        + tuple(chosen.unrated)
+    if verdict in (LANDS_OPEN, LANDS_FLOATED, LANDS_STAGED) and unrated:
         reasons.append("lands on the rated parts, but some loaded parts are unrated: "
                        + "; ".join(unrated[:5]) + (" ..." if len(unrated) > 5 else ""))
         verdict = CANNOT_CONFIRM
-    governing = _governing(chosen)
+    governing = _governing(chosen) if hole_limit is None else hole_limit
     if verdict == LANDS_STAGED and stages is not None:
         governing = Limit(stages.governing, f"split above joint {stages.split}",
                           0.0, 0.0, stages.least_margin)

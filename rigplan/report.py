@@ -136,7 +136,9 @@ def plan_dict(landing, plan=None, warnings=(), rig_name: str = "") -> dict:
             "dead_load": _f(landing.dead_load), "governing_component": landing.path.governing,
             "components": [{"name": c[0], "kind": c[1], "rating_at_hook": _f(c[2]),
                             "allowed_string_load": _f(c[3])} for c in landing.path.components],
-            "unrated_components": list(landing.path.unrated)},
+            "unrated_components": list(landing.path.unrated_on_path),
+            "parts_not_on_path": [c for c in landing.path.unrated
+                                  if c not in landing.path.unrated_on_path]},
         "closure": closure_name(chk.closure),
         "switch_joint": landing.switch_joint,
         "next_action": next_action(landing),

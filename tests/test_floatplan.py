@@ -190,3 +190,21 @@ def test_schedule_result_matches_pressure_area_engine(limit, mud):
     s = fill_schedule(j, hole, Closure(2), RHO_W, limit, 0.0, 1.0)
     loads = running_loads(j, hole, Closure(2), RHO_W, np.nan_to_num(s.fill_level))
     assert_allclose(loads.string_load, s.string_load, rtol=1e-9, atol=1e-6)
+
+
+def test_fill_cannot_stand_above_its_balance_with_the_hole():
+    # Derived (hydrostatics, U-tube through the check valve): a float valve
+    # holds pressure from below only, so the fill's head at the valve can be
+    # at most the hole's there:  rho_f g (Z - h - x_v... ) <= P_o(valve), i.e.
+    #   shallowest level h_min = Z - p_valve / (rho_f g)   (float shoe, x_v = 0).
+    # (a) lost returns: hole fluid to 40 m below the floor, the same fluid
+    #     inside: h_min = 40 m at every step below 40 m;
+    # (b) fill heavier than the hole fluid, hole full: h_min = Z (1 - rho_o/rho_f).
+    j = uniform(60)
+    z = np.cumsum(j.length)
+    w = fill_window(j, Hole(1150.0, fluid_level=40.0), Closure(0), 1150.0, 1e9, -1e12)
+    deep = z > 40.0
+    assert_allclose(w.min_fill_level[deep], 40.0, rtol=1e-12)
+    assert all(w.full_limit[k] == "valve balance" for k in np.flatnonzero(deep))
+    w2 = fill_window(j, Hole(1100.0), Closure(0), 1300.0, 1e9, -1e12)
+    assert_allclose(w2.min_fill_level, z * (1 - 1100.0 / 1300.0), rtol=1e-12)

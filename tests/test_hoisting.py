@@ -439,3 +439,16 @@ def test_engine_module_imports_no_units_or_ui_library():
     r = subprocess.run([sys.executable, "-c", code], env=env, cwd=str(root),
                        capture_output=True, text=True)
     assert r.returncode == 0, r.stdout + r.stderr
+
+
+def test_unrated_parts_in_use_on_a_path():
+    # Project rule (an unknown rating is never assumed) and common practice,
+    # no source: a listed tool always carries the string; a winch path also
+    # carries it through its rope and mast; a top-head path does not use them.
+    from rigplan.hoisting import HoistPath, path_capacity
+    winch = HoistPath("w", lines=4, winch_line_pull=100e3, mast_rating=float("nan"),
+                      tools=(("spider", "spider", float("nan")),), dead_load=1e3)
+    cap = path_capacity(winch)
+    assert set(cap.unrated_on_path) == {"spider", "wire rope", "mast"}
+    head = HoistPath("t", top_head_pullup=200e3, dead_load=1e3)
+    assert path_capacity(head).unrated_on_path == ()

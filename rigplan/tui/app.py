@@ -285,9 +285,14 @@ class RigplanApp(App):
                 return (nxt.length, "planned length accepted")
             if t == "":
                 return (None, "not measured")
-            v = U.parse(t, "length", unit, f"{nxt.label} measured length")
+            force = t.endswith("!")
+            v = U.parse(t.rstrip("!").strip(), "length", unit, f"{nxt.label} measured length")
             if not v > 0:
                 raise InputError(f"{nxt.label} measured length", f"expected a length > 0, got {t!r}")
+            if not force and not LENGTH_CHECK[0] * nxt.length <= v <= LENGTH_CHECK[1] * nxt.length:
+                raise InputError(f"{nxt.label} measured length",
+                                 f"{P.fmt(v, 'length', s.units, 2)} is far from the planned "
+                                 f"{default}: check the tape (end the entry with ! to keep it)")
             return (v, "")
 
         def done(result) -> None:
@@ -516,6 +521,11 @@ class RigplanApp(App):
             return
         self.refresh_views()
         self.notify(f"Plan saved to {path}", timeout=6)
+
+
+#: A measured length outside this share of the planned one is asked again
+#: (a slip of the tape or of the keyboard, such as 2006 for 20.06).
+LENGTH_CHECK = (0.75, 1.25)
 
 
 def build_app(plan_path, rig_path, path_name: str | None = None, units: str = "us",

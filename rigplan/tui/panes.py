@@ -53,7 +53,8 @@ class OverviewPane(VerticalScroll):
             self.query_one("#fill-plan", Static).update(P.fill_plan_text(lp, sys_))
             self.query_one("#float-line", Static).update(P.float_text(lp, sys_))
             self.query_one("#switch-line", Static).update(P.switch_text(lp))
-            notes = list(lp.reasons) + [f"unrated: {u}" for u in lp.unrated[:8]]
+            notes = (list(lp.reasons) + [f"note: {x}" for x in lp.notes]
+                     + [f"unrated: {u}" for u in lp.unrated[:8]])
             if len(lp.unrated) > 8:
                 notes.append(f"... and {len(lp.unrated) - 8} more unrated parts")
             self.query_one("#reasons", Static).update(
@@ -66,8 +67,10 @@ class OverviewPane(VerticalScroll):
             f"{len(session.state.observations)} weight readings; next joint: "
             f"{nxt.label if nxt is not None else 'none (all in)'}"
             + ("   [plan edited, not saved: s on the String tab]" if session.dirty else ""))
+        warnings = list(session.warnings) + [w for w in session.length_warnings
+                                             if w not in session.warnings]
         self.query_one("#warnings", Static).update(
-            Text("\n".join(session.warnings)) if session.warnings else "")
+            Text("\n".join(warnings)) if warnings else "")
 
 
 class _Grid(DataTable):

@@ -25,7 +25,7 @@ from dataclasses import dataclass
 from pathlib import Path
 
 from rigplan.errors import InputError
-from rigplan.job import apply_run_state, load_job, plan_job, rated_joints
+from rigplan.job import apply_run_state, length_warnings, load_job, plan_job, rated_joints
 from rigplan.runlog import RunLog, log_path_for
 from rigplan.stringmodel import CONNECTION_KINDS, JOINT_KINDS, StringPlan
 from rigplan import units as U
@@ -161,6 +161,7 @@ class JobSession:
         self.plan: StringPlan = self.base_plan
         self.landing = None
         self.error = ""
+        self.length_warnings = []
         self.recompute()
         obs = self.state.observations
         if obs:
@@ -175,6 +176,7 @@ class JobSession:
         """Apply the run state to the plan and ask the engine for the landing plan."""
         try:
             self.plan = apply_run_state(self.base_plan, self.state)
+            self.length_warnings = length_warnings(self.plan)
             # Once a joint is in the hole the planned float equipment is
             # installed: the planner must not move it.
             self.landing = plan_job(self.plan, self.rig, self.path_name,
