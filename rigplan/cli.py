@@ -96,9 +96,14 @@ def cmd_check(args) -> int:
     else:
         from rich.console import Console
         console = Console(highlight=False, width=None if sys.stdout.isatty() else 120)
-        for r in text_renderables(landing, job.plan, args.units, job.warnings, job.rig.name,
-                                  all_steps=not args.brief):
-            console.print(r)
+        try:
+            for r in text_renderables(landing, job.plan, args.units, job.warnings, job.rig.name,
+                                      all_steps=not args.brief):
+                console.print(r)
+        except SystemExit:
+            # rich ends the process this way when the reader of a pipe (such
+            # as `| head`) has gone: the verdict still decides the exit code
+            pass
     return _exit_for(landing)
 
 
@@ -114,9 +119,15 @@ def cmd_report(args) -> int:
         console.print(r)
     if out.suffix.lower() in (".html", ".htm"):
         text = console.export_html(inline_styles=True)
+        title = f"<title>rigplan: {job.plan.name} - {landing.verdict}</title>"
+        text = text.replace("<head>", "<head>\n" + title, 1)
     else:
         text = console.export_text()
-    atomic_write_text(out, text)
+    try:
+        atomic_write_text(out, text)
+    except OSError as err:
+        raise InputError(f"{out}", f"cannot write the report ({err.strerror or err}): expected "
+                                   "a writable file path") from None
     print(f"wrote {out} ({landing.verdict})")
     return _exit_for(landing)
 
@@ -170,8 +181,15 @@ def main(argv=None) -> int:
                 "demo": cmd_demo, "rigs": cmd_rigs}[args.command](args)
     except InputError as err:
         print(f"rigplan: {err}", file=sys.stderr)
+        if getattr(args, "format", None) == "json":
+            json.dump({"error": str(err), "exit_code": EXIT_INPUT}, sys.stdout)
+            sys.stdout.write("\n")
         return EXIT_INPUT
     except BrokenPipeError:
+        # the reader (e.g. `| head`) went away: not an error of ours
+        import os
+        devnull = os.open(os.devnull, os.O_WRONLY)
+        os.dup2(devnull, sys.stdout.fileno())
         return EXIT_LANDS
 
 

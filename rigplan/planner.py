@@ -196,7 +196,7 @@ def collapse_rating_under_tension(joints: JointArrays, loads: RunningLoads, hole
 
 def check_run(joints: JointArrays, loads: RunningLoads, closure: Closure,
               string_limit: float, settings: Settings, hole: Hole | None = None,
-              fill_density: float = 0.0) -> RunCheck:
+              fill_density: float = 0.0, dead_load: float = 0.0) -> RunCheck:
     """Check one run against hoisting, tension, collapse and burst limits.
 
     With ``hole`` given, API-grade collapse ratings are reduced for the
@@ -204,7 +204,8 @@ def check_run(joints: JointArrays, loads: RunningLoads, closure: Closure,
     (:func:`collapse_rating_under_tension`).
     """
     d = settings.design
-    cap_margin = (string_limit - loads.string_load) / string_limit
+    # margin on the hook: (hook limit - hook load) / hook limit, dead load in both
+    cap_margin = (string_limit - loads.string_load) / (string_limit + dead_load)
     tension_cap = np.fmin(joints.connection_rating, joints.body_rating)
     # Where either rating is missing the joint is unrated, never the other.
     tension_cap = np.where(np.isnan(joints.connection_rating) | np.isnan(joints.body_rating),
@@ -219,7 +220,8 @@ def check_run(joints: JointArrays, loads: RunningLoads, closure: Closure,
     limits = []
     k = int(np.argmin(cap_margin))
     limits.append(Limit("hoisting capacity", f"step {k + 1} ({label[k]} at the floor)",
-                        float(loads.string_load[k]), string_limit, float(cap_margin[k])))
+                        float(loads.string_load[k] + dead_load), string_limit + dead_load,
+                        float(cap_margin[k])))
     for name, util, load, cap in (
             ("connection tension", t_util, t_load, tension_cap),
             ("collapse", c_util, d.collapse * loads.collapse_max, c_rating),
@@ -283,7 +285,7 @@ def _float_closures(n: int, planned: Closure, settings: Settings, top_screen: in
 
 
 def try_float(joints: JointArrays, hole: Hole, closure: Closure, fill_density: float,
-              string_limit: float, settings: Settings) -> FloatOption:
+              string_limit: float, settings: Settings, dead_load: float = 0.0) -> FloatOption:
     """Fill window, schedule and full check for one valve position and fluid.
 
     The schedule keeps the hook side in its window by construction; the
@@ -313,7 +315,8 @@ def try_float(joints: JointArrays, hole: Hole, closure: Closure, fill_density: f
                                schedule.failure, empty)
         loads = running_loads(joints, hole, closure, fill_density,
                               np.nan_to_num(schedule.fill_level, nan=0.0))
-        check = check_run(joints, loads, closure, string_limit, settings, hole, fill_density)
+        check = check_run(joints, loads, closure, string_limit, settings, hole, fill_density,
+                          dead_load)
         # A connection over its limit: the fill above the valve loads every
         # connection above it by at most the fluid's weight, so lowering the
         # hoisting side of the window by the excess and planning again keeps
@@ -346,7 +349,7 @@ def float_notes(opt: FloatOption, n: int) -> list:
     """Plain warnings about running a closed string (empty collapse, floating)."""
     notes = []
     e = opt.empty
-    name = f"{_closure_name(opt.closure)} with fill {opt.fill_density:.0f} kg/m3"
+    name = f"{_closure_name(opt.closure)} with fill {_density_words(opt.fill_density)}"
     if e is None:
         return notes
     if e.collapse_step:
@@ -409,7 +412,8 @@ def plan_landing(joints: JointArrays, hole: Hole, rig: Rig, settings: Settings,
                          "string (check its ratings, dead load and overpull reserve)")
 
     open_loads = running_loads(joints, hole, Closure())
-    open_check = check_run(joints, open_loads, Closure(), limit, settings, hole)
+    dead = hoist.dead_load
+    open_check = check_run(joints, open_loads, Closure(), limit, settings, hole, dead_load=dead)
     switch = switch_point(open_loads.string_load, limit)
     reasons = []
     options = []
@@ -423,9 +427,9 @@ def plan_landing(joints: JointArrays, hole: Hole, rig: Rig, settings: Settings,
         why = {}
         for o in opts:
             why.setdefault((_closure_name(o.closure), o.reason), []).append(
-                f"{o.fill_density:.0f}")
+                _density_words(o.fill_density))
         for (name, reason), rhos in why.items():
-            reasons.append(f"{prefix}{name} (fill {', '.join(rhos)} kg/m3): {reason}")
+            reasons.append(f"{prefix}{name} (fill {', '.join(rhos)}): {reason}")
 
     def best_tried(opts):
         tried = [o for o in opts if o.check is not None]
@@ -437,7 +441,7 @@ def plan_landing(joints: JointArrays, hole: Hole, rig: Rig, settings: Settings,
     if not closure.is_open:
         # The float equipment planned (or already in the hole) comes first:
         # the loads shown must be those of the run the crew will make.
-        planned = [try_float(joints, hole, closure, rho, limit, settings) for rho in fluids]
+        planned = [try_float(joints, hole, closure, rho, limit, settings, dead) for rho in fluids]
         options += planned
         landing = [o for o in planned if o.lands]
         if landing:
@@ -461,7 +465,8 @@ def plan_landing(joints: JointArrays, hole: Hole, rig: Rig, settings: Settings,
         others = [c for c in _float_closures(joints.n, Closure(), settings,
                                              top_open_wall_joint(joints))
                   if c.valve_joint != closure.valve_joint]
-        tried = [try_float(joints, hole, c, rho, limit, settings) for c in others for rho in fluids]
+        tried = [try_float(joints, hole, c, rho, limit, settings, dead) for c in others
+                 for rho in fluids]
         options += tried
         landing = [o for o in tried if o.lands]
         if landing:
@@ -481,7 +486,7 @@ def plan_landing(joints: JointArrays, hole: Hole, rig: Rig, settings: Settings,
                 if stages.feasible:
                     verdict = LANDS_STAGED
                     chosen = check_run(joints, _staged_loads(open_loads, stages), Closure(),
-                                       limit, settings)
+                                       limit, settings, dead_load=dead)
                 else:
                     reasons.append(f"staged setting: {stages.reason}")
             if verdict is None:
@@ -551,6 +556,12 @@ def _staged_loads(open_loads: RunningLoads, stages: StagedPlan) -> RunningLoads:
         collapse_step=cat(open_loads.collapse_step, s2.collapse_step + p),
         burst_max=cat(open_loads.burst_max, s2.burst_max),
     )
+
+
+def _density_words(rho: float) -> str:
+    """A fluid density in both unit systems, e.g. ``999 kg/m3 (8.33 ppg)``
+    (1 lb/US gal = 119.826 kg/m^3, NIST SP 811)."""
+    return f"{rho:.0f} kg/m3 ({rho * 0.003785411784 / 0.45359237:.2f} ppg)"
 
 
 def _closure_name(c: Closure) -> str:

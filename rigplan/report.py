@@ -34,6 +34,9 @@ def next_action(landing, system: str = "si") -> str:
         s = landing.stages
         return (f"run joints 1-{s.split} on the landing string, release with its top at "
                 f"{U.format(s.release_depth, 'length', system, 1)}, then run the rest")
+    if landing.verdict == "cannot confirm":
+        parts = "; ".join(landing.unrated[:3]) + (" ..." if len(landing.unrated) > 3 else "")
+        return f"enter the maker's ratings ({parts}), then check again"
     opt = landing.best_float
     if opt is None:
         return "no plan lands this string: see the reasons"
@@ -235,6 +238,8 @@ def _pct(x) -> str:
 def _q(value, kind, system, digits=None, unrated="unrated"):
     if value is None or (isinstance(value, float) and math.isnan(value)):
         return unrated
+    if kind == "force" and system == "si" and digits == 0 and abs(value) < 100e3:
+        digits = 1          # small loads in kN would round to nothing
     return U.format(value, kind, system, digits)
 
 
@@ -253,7 +258,8 @@ def text_renderables(landing, plan=None, system: str = "us", warnings=(), rig_na
     colour = "green" if landing.lands else "red"
     head = Text()
     if plan is not None:
-        head.append(f"{plan.name}  ({plan.well}{', ' + plan.site if plan.site else ''})\n", "bold")
+        where = ", ".join(x for x in (plan.well, plan.site) if x)
+        head.append(f"{plan.name}" + (f"  ({where})" if where else "") + "\n", "bold")
     head.append("Verdict: ", "bold")
     head.append(landing.verdict.upper(), f"bold {colour}")
     gov = landing.governing
@@ -292,7 +298,11 @@ def text_renderables(landing, plan=None, system: str = "us", warnings=(), rig_na
         for tu in s.top_ups:
             t.add_row("top up", str(tu.joint), _q(tu.volume, "volume", system, 0),
                       _q(tu.level_after, "length", system, 1))
-        t.caption = f"least margin kept {_pct(s.least_margin)} at step {s.least_margin_step}"
+        if opt.check is not None:
+            g = min(opt.check.limits, key=lambda lim: lim.margin)
+            t.caption = f"least margin kept {_pct(g.margin)}: {g.name} at {g.where}"
+        else:
+            t.caption = f"least margin kept {_pct(s.least_margin)} at step {s.least_margin_step}"
         out.append(t)
         if len(landing.float_options) > 1:
             ft = Table(title="Float positions and fill fluids compared")
@@ -344,7 +354,10 @@ def text_renderables(landing, plan=None, system: str = "us", warnings=(), rig_na
                         f"{_q(loads.envelope_max[i], 'force', system, 0)} at step "
                         f"{loads.envelope_step[i]}, utilization {_pct(tu[i])} "
                         f"(design factor {landing.settings.design.tension})"))
-    jt = Table(title="Per joint: tension, collapse and burst utilization (design factors applied)")
+    jt = Table(title="Per joint: tension, collapse and burst utilization (design factors applied)",
+               caption="Ratings are on the minimum wall (the specified wall less the standard's "
+                       "under-tolerance) unless a measured wall is given, so API-grade figures "
+                       "sit below the API tables, which use the specified wall.")
     for c in ("joint", "kind", "max tension", "tension", "collapse load", "collapse rating",
               "collapse", "burst"):
         jt.add_column(c, justify="right")
