@@ -108,8 +108,12 @@ def float_text(lp, system: str) -> str:
         if lp.chosen.closure.is_open:
             return "Float equipment: none needed (open shoe)"
         return f"Float equipment: {closure_name(lp.chosen.closure)}, no fill plan that lands"
-    return (f"Float equipment: {closure_name(bf.closure)}; fill with "
-            f"{fmt(bf.fill_density, 'density', system)}")
+    chosen = fmt(bf.fill_density, 'density', system)
+    extra = ""
+    if abs(bf.fill_density - lp.settings.fill_density) > 1e-9:
+        extra = (f" (the best of the fill fluids offered; the job's own fill fluid, "
+                 f"{fmt(lp.settings.fill_density, 'density', system)}, gives a poorer plan)")
+    return f"Float equipment: {closure_name(bf.closure)}; fill with {chosen}{extra}"
 
 
 def fill_plan_text(lp, system: str) -> str:
