@@ -119,7 +119,9 @@ def cmd_report(args) -> int:
         console.print(r)
     if out.suffix.lower() in (".html", ".htm"):
         text = console.export_html(inline_styles=True)
-        title = f"<title>rigplan: {job.plan.name} - {landing.verdict}</title>"
+        title = (f"<title>rigplan: {job.plan.name} - {landing.verdict}</title>\n"
+                 "<style>@media print { pre { font-size: 7pt; white-space: pre; } "
+                 "body { margin: 1cm; } }</style>")
         text = text.replace("<head>", "<head>\n" + title, 1)
     else:
         text = console.export_text()
