@@ -305,6 +305,9 @@ def _replace(spec, **changes):
 
 
 def plan_from_data(data: dict, source: str, base_dir=Path("."), default_name: str = "") -> PlanRead:
+    if not data:
+        raise InputError(source, "the file is empty: expected a string plan (a [hole] table "
+                                 "and [[section]] or [[joint]] tables)")
     check_version(data, source)
     system = file_system(data, source)
     top = Table(data, source, "", system, TOP_KEYS)

@@ -77,6 +77,9 @@ def _rewhere(exc: InputError, where: str) -> InputError:
 def rig_from_data(data: dict, source: str):
     from rigplan.hoisting import HoistPath, LandingString, Rig, TOOL_KINDS
 
+    if not data:
+        raise InputError(source, "the file is empty: expected a rig profile (a name and at "
+                                 "least one [[path]] table)")
     check_version(data, source)
     system = file_system(data, source)
     top = Table(data, source, "", system, TOP_KEYS)
