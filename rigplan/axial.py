@@ -48,6 +48,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from rigplan.hydrostatics import collapse_load
 from rigplan.stringmodel import G, Closure, Hole, JointArrays
 
 _BLOCK_ELEMENTS = 1 << 20
@@ -366,20 +367,6 @@ def running_loads(joints: JointArrays, hole: Hole, closure: Closure,
     )
 
 
-def differential_pressure(geo: StringGeometry, hole: Hole, fill_density: float,
-                          shoe_depth, fill_level, height, joint):
-    """Collapse load ``P_o - P_in`` [Pa] at a height above the shoe.
-
-    ``shoe_depth``, ``fill_level``, ``height`` [m] and ``joint`` (0-based
-    joint index whose bore holds the point) broadcast together.  Below the
-    check valve the bore holds hole fluid and the load is zero.
-    """
-    z = np.asarray(shoe_depth) - np.asarray(height)
-    p_out = hole.fluid_density * G * np.maximum(0.0, z - hole.fluid_level)
-    p_in = fill_density * G * np.maximum(0.0, z - np.asarray(fill_level))
-    return np.where(geo.fill_side[joint], p_out - p_in, 0.0)
-
-
 def _step_segments(geo: StringGeometry, hole: Hole, level: np.ndarray):
     """Split the steps into runs with a constant fill level (level held by
     topping up) or a constant fill height above the shoe (fluid carried down
@@ -417,22 +404,13 @@ def _loads_at(geo, hole, fill_density, level, k, j):
     x0 = geo.bottom[j]
     x1 = geo.top[j]
     h_o = hole.fluid_level
-    go = hole.fluid_density * G
-    gf = fill_density * G
     points = [x0, x1, np.clip(zs - lv, x0, x1)]
     if h_o > 0:
         points.append(np.clip(zs - h_o, x0, x1))
     worst = best = None
     for p in points:
-        # d = go (z - h_o)+ - gf (z - lv)+, worked in place
-        z = zs - p
-        d = z - h_o
-        np.maximum(0.0, d, out=d)
-        d *= go
-        z -= lv
-        np.maximum(0.0, z, out=z)
-        z *= gf
-        d -= z
+        d = collapse_load(zs - p, hole.fluid_density, h_o, fill_density, lv,
+                          overwrite=True)
         if worst is None:
             worst, best = d, d.copy()
         else:

@@ -46,6 +46,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from rigplan.axial import StringGeometry, string_geometry, string_load_by_step
+from rigplan.hydrostatics import collapse_load
 from rigplan.stringmodel import G, Closure, Hole, JointArrays
 
 _EMPTY = 1e12  # a fill level deeper than any string [m]: empty above the valve
@@ -461,8 +462,6 @@ def _collapse_utilization(geo: StringGeometry, sections, hole: Hole, fill_densit
     out = np.zeros(len(rows))
     if len(first) == 0 or len(rows) == 0:
         return out
-    go = hole.fluid_density * G
-    gf = fill_density * G
     h_o = hole.fluid_level
     # sections along the first axis, steps along the last
     x_b = geo.bottom[first][:, None]
@@ -478,15 +477,9 @@ def _collapse_utilization(geo: StringGeometry, sections, hole: Hole, fill_densit
             points = (x_b, x_t, np.clip(shoe - lv, x_b, x_t))
         worst = np.zeros((len(first), k.shape[1]))
         for x in points:
-            z = shoe - x
-            p_out = z - h_o
-            np.maximum(0.0, p_out, out=p_out)
-            p_out *= go
-            z -= lv
-            np.maximum(0.0, z, out=z)
-            z *= gf
-            p_out -= z
-            np.maximum(worst, p_out, out=worst)
+            np.maximum(worst, collapse_load(shoe - x, hole.fluid_density, h_o, fill_density, lv,
+                                             overwrite=True),
+                       out=worst)
         worst /= r[:, None]
         worst[first[:, None] > k] = 0.0
         out[i0:i0 + block] = worst.max(axis=0)

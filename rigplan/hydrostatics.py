@@ -71,3 +71,57 @@ def buoyancy_factor(fluid_density, pipe_density):
     if np.any(np.asarray(pipe_density) <= 0):
         raise ValueError("pipe density must be positive [kg/m^3]")
     return 1.0 - np.asarray(fluid_density, dtype=float) / pipe_density
+
+
+def collapse_load(depth, hole_density, hole_level, fill_density, fill_level,
+                  overwrite: bool = False):
+    """Collapse load of hole fluid outside against fill inside at a depth.
+
+    ``dP = rho_o g max(0, z - h_o) - rho_f g max(0, z - h_f)``  [Pa]
+
+    Parameters
+    ----------
+    depth : float or array
+        Depth below the floor [m]; not changed unless ``overwrite``.
+    hole_density, hole_level : annulus fluid density [kg/m^3] and the
+        depth of its top [m].
+    fill_density, fill_level : inside fluid density [kg/m^3] and the depth
+        of its surface [m] (arrays broadcast with ``depth``).
+    overwrite : bool
+        ``depth`` is a float array of the full broadcast shape that the
+        caller no longer needs: work in it (saves a copy in hot loops).
+
+    Returns
+    -------
+    ndarray
+        ``P_o - P_in`` [Pa]; negative where the inside pressure is higher
+        (a burst load).
+
+    Notes
+    -----
+    Two static columns (:func:`hydrostatic_pressure`); the collapse load of
+    API TR 5C3 and the string-mechanics texts is this differential
+    (Bourgoyne et al., *Applied Drilling Engineering*, 1986, ch. 7).
+
+    Examples
+    --------
+    10 lb/gal mud outside, empty pipe, 1,000 ft: about 520 psi.
+
+    >>> ppg, ft, psi = 0.45359237 / 0.003785411784, 0.3048, 6894.757293168361
+    >>> round(float(collapse_load(1000 * ft, 10 * ppg, 0.0, 0.0, 0.0)) / psi)
+    519
+    """
+    if overwrite:
+        z = depth
+        shape = z.shape
+    else:
+        shape = np.broadcast_shapes(np.shape(depth), np.shape(fill_level))
+        z = np.array(np.broadcast_to(depth, shape), dtype=float, ndmin=1)
+    p_out = z - hole_level
+    np.maximum(0.0, p_out, out=p_out)
+    p_out *= hole_density * G
+    z -= fill_level
+    np.maximum(0.0, z, out=z)
+    z *= fill_density * G
+    p_out -= z
+    return p_out.reshape(shape)

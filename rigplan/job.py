@@ -251,8 +251,3 @@ def plan_job(plan: StringPlan, rig, path_name: str | None = None,
         raise
     except ValueError as err:
         raise InputError(plan.source or plan.name, str(err)) from None
-
-
-def joint_specs(plan: StringPlan) -> tuple[JointSpec, ...]:
-    """Every joint of the plan (rejected ones included), running order."""
-    return tuple(plan.joints)

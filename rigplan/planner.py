@@ -151,18 +151,12 @@ def _ratio(load, capacity):
 def collapse_rating_under_tension(joints: JointArrays, loads: RunningLoads, hole: Hole,
                                   closure: Closure, fill_density: float) -> np.ndarray:
     """Collapse ratings of API-grade joints reduced for the axial tension
-    they carry when their collapse load peaks [Pa] (other joints unchanged).
-
-    API TR 5C3 (ISO/TR 10400): the collapse formulas are used with the
-    yield of the axial-stress equivalent grade
-    ``Ypa = Y [sqrt(1 - 0.75 (Sa/Y)^2) - 0.5 Sa/Y]``, ``Sa`` the axial
-    tension over the rating wall's steel area (no credit is taken for
-    compression).  Where ``Ypa`` falls below the range of the 5C3
-    constants, the lesser of the yield-collapse and elastic-collapse
-    formulas is used (the regimes that govern there).
-    """
+    they carry when their collapse load peaks [Pa] (other joints unchanged):
+    :func:`rigplan.collapse.api_5c3_under_axial_stress` with the true force
+    at that step over the rating wall's steel area."""
     from rigplan.axial import true_force_at
-    from rigplan.collapse import API_5C3_YIELD_RANGE, api_5c3, axial_reduced_yield
+    from rigplan.collapse import api_5c3_under_axial_stress
+    from rigplan.tubulars import steel_area
     rating = np.asarray(joints.collapse_rating, dtype=float).copy()
     if joints.yield_strength is None or joints.rating_wall is None or not joints.collapse_method:
         return rating
@@ -174,22 +168,9 @@ def collapse_rating_under_tension(joints: JointArrays, loads: RunningLoads, hole
     force = true_force_at(joints, hole, closure, fill_density,
                           None if closure.is_open else loads.fill_level,
                           j, loads.collapse_step[j] - 1)
-    od, t, y = joints.od[j], joints.rating_wall[j], joints.yield_strength[j]
-    steel = 0.25 * np.pi * (od ** 2 - (od - 2 * t) ** 2)
-    sa = np.clip(force / steel, 0.0, y)
-    ypa = axial_reduced_yield(y, sa)
-    lo = API_5C3_YIELD_RANGE[0]
-    dt = od / t
-    in_range = ypa >= lo
-    reduced = np.empty(len(j))
-    if np.any(in_range):
-        reduced[in_range] = api_5c3(od[in_range], t[in_range], ypa[in_range])
-    out = ~in_range
-    if np.any(out):
-        d_t = dt[out]
-        yield_collapse = 2.0 * ypa[out] * (d_t - 1.0) / d_t ** 2
-        elastic = 46.95e6 * 6894.757293168361 / (d_t * (d_t - 1.0) ** 2)
-        reduced[out] = np.minimum(yield_collapse, elastic)
+    od, t = joints.od[j], joints.rating_wall[j]
+    reduced = api_5c3_under_axial_stress(od, t, joints.yield_strength[j],
+                                         force / steel_area(od, t))
     rating[j] = np.minimum(rating[j], reduced)
     return rating
 

@@ -84,7 +84,7 @@ def plan_dict(landing, plan=None, warnings=(), rig_name: str = "") -> dict:
     loads = chk.loads
     n = j.n
     hook_limit = landing.path.hook_limit
-    hook = loads.string_load + landing.dead_load
+    hook = landing.hook_load
     fill_level = loads.fill_level if not chk.closure.is_open else np.full(n, np.nan)
     steps = [{
         "joint": k + 1, "label": j.label[k], "shoe_depth": _f(loads.shoe_depth[k]),
@@ -336,7 +336,7 @@ def text_renderables(landing, plan=None, system: str = "us", warnings=(), rig_na
         st_t.add_column(c, justify="right")
     actions = step_actions(landing, system)
     st_t.add_column("crew action")
-    hook = loads.string_load + landing.dead_load
+    hook = landing.hook_load
     rows = range(n) if all_steps or n <= 40 else list(range(10)) + list(range(n - 10, n))
     for k in rows:
         fl = "-" if chk.closure.is_open or not np.isfinite(loads.fill_level[k]) else \
