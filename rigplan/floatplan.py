@@ -712,9 +712,16 @@ def empty_run(joints: JointArrays, hole: Hole, closure: Closure, fill_density: f
         util = np.zeros(n)
     else:
         allowable = np.asarray(joints.collapse_rating, dtype=float) / collapse_factor
-        sections = _sections(geo, allowable, hole, fill_density)
-        util = _collapse_utilization(geo, sections, hole, fill_density, np.arange(n),
-                                     np.full(n, _EMPTY), empty=True)
+
+        def empty_util():
+            # an empty pipe holds no fill: the result is the same for every
+            # fill fluid, so it is worked out once per string and hole
+            sections = _sections(geo, allowable, hole, 0.0)
+            return _read_only(_collapse_utilization(geo, sections, hole, 0.0, np.arange(n),
+                                                    np.full(n, _EMPTY), empty=True))[0]
+
+        util = _derived(geo, ("empty collapse", hole.fluid_density, hole.fluid_level,
+                              allowable.tobytes()), empty_util)
     load = window.empty_string_load
     valve_in = window.valve_in_hole
 
