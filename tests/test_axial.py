@@ -199,3 +199,29 @@ def test_collapse_load_never_exceeds_empty_pipe_load(n, rho, level, fill):
     part = running_loads(j, hole, Closure(0), 998.2, fill).collapse_max
     empty = running_loads(j, hole, Closure(0), 998.2, 1e9).collapse_max
     assert np.all(part <= empty + 1e-6)
+
+
+def test_true_force_at_chosen_steps_matches_the_step_profile():
+    # Identity of the pressure-area method (ADE 1986, ch. 7): the force at a
+    # joint's top at a step is the same whether summed for chosen (joint,
+    # step) pairs or along the whole string at that step.
+    from rigplan.axial import true_force_at
+    a = tube(12, 12.75 * INCH, 0.375 * INCH, 6.0)
+    b = tube(12, 16 * INCH, 0.375 * INCH, 6.0)
+    cat = lambda x, y: np.concatenate([x, y])
+    j = JointArrays(label=a.label + tuple(f"K{i}" for i in range(12)), kind=a.kind + b.kind,
+                    length=cat(a.length, b.length), od=cat(a.od, b.od), bore=cat(a.bore, b.bore),
+                    weight=cat(a.weight, b.weight),
+                    collapse_rating=cat(a.collapse_rating, b.collapse_rating),
+                    burst_rating=cat(a.burst_rating, b.burst_rating),
+                    body_rating=cat(a.body_rating, b.body_rating),
+                    connection_rating=cat(a.connection_rating, b.connection_rating))
+    hole = Hole(fluid_density=1180.0, fluid_level=9.0)
+    level = 30.0
+    rng = np.random.default_rng(5)
+    steps = rng.integers(0, 24, 40)
+    joints = np.array([rng.integers(0, k + 1) for k in steps])
+    got = true_force_at(j, hole, Closure(2), 998.2, level, joints, steps)
+    want = [step_profile(j, hole, Closure(2), int(k) + 1, 998.2, level).true_force_top[i]
+            for i, k in zip(joints, steps)]
+    assert_allclose(got, want, rtol=1e-12, atol=1e-9 * np.max(np.abs(want)))
