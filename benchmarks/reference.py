@@ -3,7 +3,7 @@
 This is the slow, obvious way to compute the loads: one running step at a
 time, one joint at a time, with Python floats, the way a spreadsheet or a
 first script does it (each row is the row below plus one joint).  It exists
-to check the vectorized engine (``rigplan.axial``) and to time it; nothing in
+to check the vectorized engine (``rigplan.engine.axial``) and to time it; nothing in
 the application imports it.
 
 Method: the free body of the string below a cut, fluid pressure acting only
@@ -38,7 +38,7 @@ from __future__ import annotations
 import math
 
 from rigplan.errors import InputError
-from rigplan.stringmodel import G
+from rigplan.engine.stringmodel import G
 
 _QUARTER_PI = math.pi / 4.0
 
@@ -180,12 +180,12 @@ def reference_true_force(joints, hole, closure, fill_density, fill_level):
 
     Parameters
     ----------
-    joints : rigplan.stringmodel.JointArrays
+    joints : rigplan.engine.stringmodel.JointArrays
         ``length`` [m], ``od`` and ``bore`` [m] (pressure-area diameters),
         ``weight`` [N] air weight per joint; index 0 = joint 1 (bottom).
-    hole : rigplan.stringmodel.Hole
+    hole : rigplan.engine.stringmodel.Hole
         ``fluid_density`` [kg/m^3], ``fluid_level`` [m] below the floor.
-    closure : rigplan.stringmodel.Closure
+    closure : rigplan.engine.stringmodel.Closure
         ``valve_joint``: None open shoe, 0 float shoe, m >= 1 float collar at
         the top of joint m.
     fill_density : float

@@ -10,7 +10,7 @@ recorded joints.  JSON keys (one per figure; ``null`` when a figure cannot
 be measured, with the reason under ``messages``):
 
 ``plan_ms_100``, ``plan_ms_1000``, ``plan_ms_10000``
-    :func:`rigplan.planner.plan_landing` on a rated synthetic string of that
+    :func:`rigplan.engine.planner.plan_landing` on a rated synthetic string of that
     many joints that must be floated: the open-ended run is over the
     hoisting limit, no float equipment is planned, so the planner tries
     float collars on the top screen joint and the three joints above it,
@@ -22,11 +22,11 @@ be measured, with the reason under ``messages``):
     fails and the staged search runs.
 ``loop_ratio_1000``
     Plain-Python per-joint, per-step reference (``benchmarks/reference.py``)
-    over ``rigplan.axial.running_loads`` on the same 1,000-joint case, timed
+    over ``rigplan.engine.axial.running_loads`` on the same 1,000-joint case, timed
     in the same run; ``engine_agreement`` checks both give the same numbers
     within 1e-9 relative.
 ``sweep_s_100k``
-    :func:`rigplan.sweep.sweep_landing`, 100,000 scenarios on a 200-joint
+    :func:`rigplan.engine.sweep.sweep_landing`, 100,000 scenarios on a 200-joint
     string.
 ``tui_start_s``
     Cold start of the terminal app to its first frame: a fresh
@@ -40,7 +40,7 @@ be measured, with the reason under ``messages``):
 
 Every string here is invented for timing: the section sizes are common
 casing and screen diameters, the materials are the library's (weights and
-ratings from ``rigplan.rating.rate_joints``), the tally lengths are random.
+ratings from ``rigplan.engine.rating.rate_joints``), the tally lengths are random.
 """
 
 from __future__ import annotations
@@ -66,7 +66,7 @@ for _p in (str(_HERE.parent), str(_HERE)):
 import numpy as np  # noqa: E402
 
 import reference  # noqa: E402  (benchmarks/reference.py)
-from rigplan.stringmodel import G, Closure, Hole, JointArrays  # noqa: E402
+from rigplan.engine.stringmodel import G, Closure, Hole, JointArrays  # noqa: E402
 
 #: Carbon steel density for the synthetic plain-end weights [kg/m^3].
 STEEL_DENSITY = 7850.0
@@ -192,15 +192,15 @@ def synthetic_case(n, seed=0):
 # ---------------------------------------------------------------------------
 
 def _engine_running_loads():
-    """``rigplan.axial.running_loads`` or ``None`` with a message when the
+    """``rigplan.engine.axial.running_loads`` or ``None`` with a message when the
     engine is not there yet (imported lazily)."""
     try:
-        from rigplan import axial
+        from rigplan.engine import axial
     except ImportError as err:
-        return None, f"rigplan.axial not importable ({err})"
+        return None, f"rigplan.engine.axial not importable ({err})"
     fn = getattr(axial, "running_loads", None)
     if fn is None:
-        return None, "rigplan.axial has no running_loads yet"
+        return None, "rigplan.engine.axial has no running_loads yet"
     return fn, ""
 
 
@@ -212,7 +212,7 @@ def reference_ms(n, repeat=5, seed=0):
 
 
 def engine_ms(n, repeat=5, seed=0):
-    """Median time [ms] of ``rigplan.axial.running_loads`` on ``n`` joints,
+    """Median time [ms] of ``rigplan.engine.axial.running_loads`` on ``n`` joints,
     or ``None`` when the engine is missing."""
     fn, _ = _engine_running_loads()
     if fn is None:
@@ -308,7 +308,7 @@ def planner_specs(n, seed=0):
     0.375 in, API N-80 and P-110 at 0.500 in), field butt welds.  Tally
     lengths 19.2 to 20.6 ft.  The screen's weight and ratings stand for a
     maker's data sheet (invented round figures)."""
-    from rigplan.stringmodel import JointSpec
+    from rigplan.engine.stringmodel import JointSpec
     rng = np.random.default_rng(seed)
     kinds = [("sump", "a53b", 0.375)]
     screens = max(4, min(n // 10, 40))
@@ -353,10 +353,10 @@ def planner_case(n, staged=False, seed=0):
     top screen joint and the three joints above it (a check valve below a
     screen cannot float the pipe).
     """
-    from rigplan.axial import running_loads
-    from rigplan.hoisting import HoistPath, LandingString, Rig
-    from rigplan.rating import rate_joints
-    from rigplan.stringmodel import Settings
+    from rigplan.engine.axial import running_loads
+    from rigplan.engine.hoisting import HoistPath, LandingString, Rig
+    from rigplan.engine.rating import rate_joints
+    from rigplan.engine.stringmodel import Settings
     joints = rate_joints(planner_specs(n, seed))
     hole = Hole(fluid_density=1150.0, fluid_level=0.0)
     peak = float(np.max(running_loads(joints, hole, Closure()).string_load))
@@ -375,7 +375,7 @@ def planner_case(n, staged=False, seed=0):
 
 def plan_figure(n, repeat=5, staged=False):
     """``(median ms, what the plan did)`` for :func:`planner_case`."""
-    from rigplan.planner import plan_landing
+    from rigplan.engine.planner import plan_landing
     case = planner_case(n, staged=staged)
     plan = plan_landing(*case)
     ms = 1e3 * median_seconds(lambda: plan_landing(*case), repeat=repeat, warmup=1)
@@ -390,13 +390,13 @@ def plan_figure(n, repeat=5, staged=False):
 # ---------------------------------------------------------------------------
 
 def sweep_figure(scenarios=100_000, joints=200, repeat=5, seed=0):
-    """``(median s, summary)`` of :func:`rigplan.sweep.sweep_landing`: a
+    """``(median s, summary)`` of :func:`rigplan.engine.sweep.sweep_landing`: a
     16 in x 0.375 in A53 B string of ``joints`` tally joints, scenarios
     drawn uniformly over the wall tolerance (0.875 to 1 of the specified
     wall), hole fluid 998 to 1,400 kg/m^3 and ellipticity 0 to 3 %, water
     fill, collapse design factor 1.125, 850 kN string limit."""
-    from rigplan.materials import get_material
-    from rigplan.sweep import UniformString, sweep_landing
+    from rigplan.engine.materials import get_material
+    from rigplan.engine.sweep import UniformString, sweep_landing
     rng = np.random.default_rng(seed)
     m = get_material("a53b")
     string = UniformString(16 * _INCH, 0.375 * _INCH, rng.uniform(5.8, 6.25, joints),
@@ -436,7 +436,7 @@ def _tui_missing():
 def _demo_copy(tmp: Path):
     """The demo job copied into ``tmp`` (opening it writes a run log beside
     the plan; the repository's copy stays untouched)."""
-    from rigplan.job import demo_paths
+    from rigplan.files.job import demo_paths
     plan, rig = demo_paths()
     shutil.copy(plan, tmp / plan.name)
     shutil.copy(rig, tmp / rig.name)
@@ -489,9 +489,9 @@ def tui_start_figure(repeat=5):
 def _record_plan(tmp: Path, joints=550, recorded=500):
     """A ``joints``-joint copy of the demo plan in ``tmp`` with the first
     ``recorded`` joints already in its run log."""
-    from rigplan.formats.planfile import read_plan
-    from rigplan.job import demo_dir
-    from rigplan.runlog import RunLog, log_path_for
+    from rigplan.files.formats.planfile import read_plan
+    from rigplan.files.job import demo_dir
+    from rigplan.files.runlog import RunLog, log_path_for
     src = (demo_dir("strings") / "cv7-16in-floated.toml").read_text()
     blank = joints - 5          # the demo: 1 sump, 4 screens, 75 blanks
     if "count = 75" not in src:
@@ -624,7 +624,7 @@ def collect(repeat=5, tui=True):
     ref_ms, eng_ms, ratio = loop_ratio(1000, repeat=repeat)
     figures["loop_ratio_1000"] = ratio
     if ratio is None:
-        messages["loop_ratio_1000"] = "rigplan.axial.running_loads is missing"
+        messages["loop_ratio_1000"] = "rigplan.engine.axial.running_loads is missing"
     figures["sweep_s_100k"], details["sweep_100k"] = sweep_figure(repeat=repeat)
     if tui:
         figures["tui_start_s"], why = tui_start_figure(repeat)

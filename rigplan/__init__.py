@@ -7,8 +7,8 @@ Layers (each may import only the ones listed before it):
    ``burst``, ``connections``, ``materials``, ``rating``, ``hydrostatics``,
    ``axial``, ``hoisting``, ``floatplan``, ``staging``, ``grouting``,
    ``planner``, ``stringmodel``, ``errors``).
-2. formats -- ``rigplan.units`` (pint) and ``rigplan.formats.*`` readers and
-   writers, ``rigplan.runlog`` (sqlite tally log).
+2. formats -- ``rigplan.files.units`` (pint) and ``rigplan.files.formats.*`` readers and
+   writers, ``rigplan.files.runlog`` (sqlite tally log).
 3. front ends -- ``rigplan.cli`` and ``rigplan.tui``.
 """
 

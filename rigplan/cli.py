@@ -61,7 +61,7 @@ def _parser() -> argparse.ArgumentParser:
 
 def _load(args):
     import dataclasses
-    from rigplan.job import apply_run_state, apply_tally_file, load_job, plan_job, read_run_state
+    from rigplan.files.job import apply_run_state, apply_tally_file, load_job, plan_job, read_run_state
     job = load_job(args.plan, args.rig, args.path, args.materials)
     plan = job.plan
     if getattr(args, "tally", None):
@@ -74,7 +74,7 @@ def _load(args):
                                                            "job has not been run in the app")
         plan = apply_run_state(plan, state)
         fixed = bool(state.run)
-    from rigplan.job import length_warnings
+    from rigplan.files.job import length_warnings
     extra = [w for w in length_warnings(plan) if w not in job.warnings]
     job = dataclasses.replace(job, plan=plan, warnings=tuple(job.warnings) + tuple(extra))
     landing = plan_job(plan, job.rig, job.path_name, fixed_closure=fixed)
@@ -86,7 +86,7 @@ def _exit_for(landing) -> int:
 
 
 def cmd_check(args) -> int:
-    from rigplan.report import plan_dict, text_renderables
+    from rigplan.present.report import plan_dict, text_renderables
     job, landing = _load(args)
     if args.format == "json":
         doc = plan_dict(landing, job.plan, job.warnings, job.rig.name)
@@ -109,8 +109,8 @@ def cmd_check(args) -> int:
 
 def cmd_report(args) -> int:
     from rich.console import Console
-    from rigplan.atomicio import atomic_write_text
-    from rigplan.report import text_renderables
+    from rigplan.files.atomicio import atomic_write_text
+    from rigplan.present.report import text_renderables
     job, landing = _load(args)
     out = Path(args.output)
     console = Console(record=True, width=110, file=open("/dev/null", "w") if sys.platform != "win32"
@@ -135,7 +135,7 @@ def cmd_report(args) -> int:
 
 
 def cmd_demo(args) -> int:
-    from rigplan.job import demo_jobs, load_job, plan_job
+    from rigplan.files.job import demo_jobs, load_job, plan_job
     worst = EXIT_LANDS
     for plan, rig in demo_jobs():
         job = load_job(plan, rig)
@@ -148,10 +148,10 @@ def cmd_demo(args) -> int:
 
 
 def cmd_rigs(args) -> int:
-    from rigplan.formats.rigfile import read_rig
-    from rigplan.hoisting import path_capacity
-    from rigplan.job import demo_dir
-    from rigplan import units as U
+    from rigplan.files.formats.rigfile import read_rig
+    from rigplan.engine.hoisting import path_capacity
+    from rigplan.files.job import demo_dir
+    from rigplan.files import units as U
     for f in sorted(demo_dir("rigs").glob("*.toml")):
         rig = read_rig(f)
         print(f"{f.name}: {rig.name}")
@@ -163,7 +163,7 @@ def cmd_rigs(args) -> int:
 
 
 def cmd_open(args) -> int:
-    from rigplan.job import load_job
+    from rigplan.files.job import load_job
     job = load_job(args.plan, args.rig, args.path, args.materials)   # fail fast, one line
     from rigplan.tui.app import run_app
     run_app(job.plan_path, job.rig_path, args.path, args.units)
@@ -174,7 +174,7 @@ def main(argv=None) -> int:
     args = _parser().parse_args(argv)
     try:
         if args.command is None:
-            from rigplan.job import demo_paths
+            from rigplan.files.job import demo_paths
             plan, rig = demo_paths()
             from rigplan.tui.app import run_app
             run_app(plan, rig, None, "us")

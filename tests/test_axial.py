@@ -1,4 +1,4 @@
-"""Running loads by the pressure-area method (rigplan.axial).
+"""Running loads by the pressure-area method (rigplan.engine.axial).
 
 Each check names its source.  "Identity" checks are exact consequences of
 the pressure-area method as stated in standard string mechanics (Bourgoyne et al., *Applied Drilling Engineering*, 1986)
@@ -12,10 +12,10 @@ import pytest
 from hypothesis import given, settings, strategies as st
 from numpy.testing import assert_allclose
 
-from rigplan.axial import (neutral_point_depth, running_loads, step_profile,
+from rigplan.engine.axial import (neutral_point_depth, running_loads, step_profile,
                            string_geometry)
-from rigplan.hydrostatics import buoyancy_factor, hydrostatic_pressure
-from rigplan.stringmodel import G, Closure, Hole, JointArrays
+from rigplan.engine.hydrostatics import buoyancy_factor, hydrostatic_pressure
+from rigplan.engine.stringmodel import G, Closure, Hole, JointArrays
 
 INCH = 0.0254          # NIST SP 811, exact
 FT = 0.3048            # NIST SP 811, exact
@@ -205,7 +205,7 @@ def test_true_force_at_chosen_steps_matches_the_step_profile():
     # Identity of the pressure-area method (ADE 1986, ch. 7): the force at a
     # joint's top at a step is the same whether summed for chosen (joint,
     # step) pairs or along the whole string at that step.
-    from rigplan.axial import true_force_at
+    from rigplan.engine.axial import true_force_at
     a = tube(12, 12.75 * INCH, 0.375 * INCH, 6.0)
     b = tube(12, 16 * INCH, 0.375 * INCH, 6.0)
     cat = lambda x, y: np.concatenate([x, y])

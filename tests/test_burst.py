@@ -1,4 +1,4 @@
-"""Burst (internal yield) ratings (rigplan.burst)."""
+"""Burst (internal yield) ratings (rigplan.engine.burst)."""
 
 import numpy as np
 import pytest
@@ -7,8 +7,8 @@ from hypothesis import strategies as st
 from numpy.testing import assert_allclose
 
 from _units import inch, ksi, psi
-from rigplan.burst import barlow
-from rigplan.tubulars import minimum_wall
+from rigplan.engine.burst import barlow
+from rigplan.engine.tubulars import minimum_wall
 
 # API casing tables (API 5C2 / API 5CT), internal yield pressure by API TR 5C3,
 # 0.875 * 2 Y t / D on the specified wall, rounded to 10 psi (from memory,

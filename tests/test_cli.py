@@ -146,14 +146,14 @@ def test_report_html(tmp_path, capsys):
 
 def test_engine_imports_without_textual_or_rich():
     # Layering rule: the engine and file layers import no textual and no rich.
-    code = ("import sys, rigplan.planner, rigplan.axial, rigplan.floatplan, rigplan.staging, "
-            "rigplan.grouting, rigplan.job, rigplan.formats.planfile, rigplan.formats.rigfile, "
-            "rigplan.runlog; "
+    code = ("import sys, rigplan.engine.planner, rigplan.engine.axial, rigplan.engine.floatplan, rigplan.engine.staging, "
+            "rigplan.engine.grouting, rigplan.files.job, rigplan.files.formats.planfile, rigplan.files.formats.rigfile, "
+            "rigplan.files.runlog; "
             "bad=[m for m in ('textual','rich') if m in sys.modules]; "
             "engine=[m for m in ('pint',) if m in sys.modules]; print(bad)")
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True)
     assert out.stdout.strip() == "[]"
-    code2 = ("import sys, rigplan.axial, rigplan.floatplan, rigplan.planner; "
+    code2 = ("import sys, rigplan.engine.axial, rigplan.engine.floatplan, rigplan.engine.planner; "
              "print([m for m in ('pint','textual','rich') if m in sys.modules])")
     out2 = subprocess.run([sys.executable, "-c", code2], capture_output=True, text=True, check=True)
     assert out2.stdout.strip() == "[]"
@@ -203,7 +203,7 @@ def test_tally_and_as_run_override_planned_lengths(tmp_path, capsys):
     # length beats the nominal one.  Lengths are compared in metres after
     # the exact foot (NIST SP 811: 1 ft = 0.3048 m).
     import shutil
-    from rigplan.runlog import RunLog, log_path_for
+    from rigplan.files.runlog import RunLog, log_path_for
     plan = tmp_path / "cv7.toml"
     shutil.copy(STRINGS / "cv7-16in-floated.toml", plan)
     tally = tmp_path / "t.csv"

@@ -1,4 +1,4 @@
-"""Collapse ratings (rigplan.collapse)."""
+"""Collapse ratings (rigplan.engine.collapse)."""
 
 import numpy as np
 import pytest
@@ -7,7 +7,7 @@ from hypothesis import strategies as st
 from numpy.testing import assert_allclose
 
 from _units import ft, inch, ksi, psi
-from rigplan import collapse as cl
+from rigplan.engine import collapse as cl
 
 E_STEEL = 30e6 * psi
 

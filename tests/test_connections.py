@@ -1,18 +1,18 @@
-"""Connection tension capacity (rigplan.connections)."""
+"""Connection tension capacity (rigplan.engine.connections)."""
 
 import numpy as np
 import pytest
 from numpy.testing import assert_allclose
 
 from _units import inch, lbf, psi
-from rigplan.connections import (
+from rigplan.engine.connections import (
     ENTERED_RATING_KINDS,
     UW12_BUTT_WELD_EFFICIENCY,
     butt_weld_capacity,
     connection_capacity,
 )
-from rigplan.stringmodel import CONNECTION_KINDS
-from rigplan.tubulars import body_yield
+from rigplan.engine.stringmodel import CONNECTION_KINDS
+from rigplan.engine.tubulars import body_yield
 
 # API casing tables: 7 in 23 lb/ft J-55 body yield 366,000 lbf (from memory,
 # recomputed with API TR 5C3 on the specified wall).

@@ -1,4 +1,4 @@
-"""Fill window, fill schedule, switch point (rigplan.floatplan).
+"""Fill window, fill schedule, switch point (rigplan.engine.floatplan).
 
 The closed forms below are derived in each test from hydrostatics and the
 pressure-area method (string mechanics (ADE 1986), "Floating and fill-up"), for a
@@ -10,12 +10,12 @@ import pytest
 from hypothesis import given, settings, strategies as st
 from numpy.testing import assert_allclose
 
-from rigplan.axial import running_loads
-from rigplan.collapse import timoshenko
-from rigplan.floatplan import (bore_volume_below, empty_run, fill_schedule, fill_window,
+from rigplan.engine.axial import running_loads
+from rigplan.engine.collapse import timoshenko
+from rigplan.engine.floatplan import (bore_volume_below, empty_run, fill_schedule, fill_window,
                                height_for_bore_volume, switch_point)
-from rigplan.axial import string_geometry
-from rigplan.stringmodel import G, Closure, Hole, JointArrays
+from rigplan.engine.axial import string_geometry
+from rigplan.engine.stringmodel import G, Closure, Hole, JointArrays
 
 INCH = 0.0254
 PSI = 6894.757293168361

@@ -19,13 +19,13 @@ from pathlib import Path
 import pytest
 from numpy.testing import assert_allclose
 
-from rigplan import formats
+from rigplan.files import formats
 from rigplan.errors import InputError
-from rigplan.formats import (dump_toml, parse_plan, read_materials, read_plan, read_rig,
+from rigplan.files.formats import (dump_toml, parse_plan, read_materials, read_plan, read_rig,
                              read_tally, write_plan, write_tally)
-from rigplan.formats.rigfile import parse_rig
-from rigplan.formats.tally import TallyRow, parse_tally, tally_from_plan
-from rigplan.stringmodel import StringPlan
+from rigplan.files.formats.rigfile import parse_rig
+from rigplan.files.formats.tally import TallyRow, parse_tally, tally_from_plan
+from rigplan.engine.stringmodel import StringPlan
 
 ROOT = Path(__file__).resolve().parents[1]
 RIGS = sorted((ROOT / "rigs").glob("*.toml"))
@@ -609,7 +609,7 @@ yield_strength = "mill certificate heat 1234"
 
 
 def test_materials_file_registers_and_is_usable(tmp_path):
-    from rigplan import materials
+    from rigplan.engine import materials
 
     path = tmp_path / "m.toml"
     path.write_text(MATERIALS)
@@ -640,7 +640,7 @@ def test_materials_file_registers_and_is_usable(tmp_path):
     (('density = "7870 kg/m3"\n', ""), "m.toml: material[1].density", "required"),
 ])
 def test_bad_materials(change, where, fragment):
-    from rigplan.formats.materialfile import parse_materials
+    from rigplan.files.formats.materialfile import parse_materials
 
     with pytest.raises(InputError) as err:
         parse_materials(MATERIALS.replace(*change, 1), "m.toml")
@@ -650,7 +650,7 @@ def test_bad_materials(change, where, fragment):
 
 
 def test_unknown_material_value():
-    from rigplan.formats.materialfile import parse_materials
+    from rigplan.files.formats.materialfile import parse_materials
 
     (m,) = parse_materials(MATERIALS.replace('"200000 MPa"', '"unknown"'), "m.toml")
     assert math.isnan(m.youngs_modulus)

@@ -1,10 +1,10 @@
-"""Tests for rigplan.grouting.
+"""Tests for rigplan.engine.grouting.
 
 Check values are derived by hand in each test from general hydrostatics
 (``P = rho g h`` summed over stacked static columns; the project's
 string mechanics (ADE 1986), "Hydrostatics" and "Grouting": ``dP = P_grout -
 P_inside``, largest at the bottom of the grout column).  Collapse ratings
-come from ``rigplan.collapse.timoshenko`` (Timoshenko and Gere, *Theory of
+come from ``rigplan.engine.collapse.timoshenko`` (Timoshenko and Gere, *Theory of
 Elastic Stability*, 2nd ed., 1961, ch. 7) on the minimum wall (12.5 %
 under-tolerance, string mechanics (ADE 1986) "Collapse"); the closed forms do not
 depend on where the rating comes from.  Placing grout in lifts on set grout
@@ -26,9 +26,9 @@ from hypothesis import HealthCheck, assume, given, settings
 from hypothesis import strategies as st
 from numpy.testing import assert_allclose
 
-from rigplan.collapse import timoshenko
+from rigplan.engine.collapse import timoshenko
 from rigplan.errors import InputError
-from rigplan.grouting import (
+from rigplan.engine.grouting import (
     annulus_pressure_with_grout,
     grout_collapse_loads,
     grout_differential_pressure,
@@ -37,7 +37,7 @@ from rigplan.grouting import (
     max_single_lift,
     plan_grout_lifts,
 )
-from rigplan.stringmodel import G, GroutSpec, Hole, JointArrays
+from rigplan.engine.stringmodel import G, GroutSpec, Hole, JointArrays
 
 # Exact unit definitions (NIST SP 811, appendix B).
 INCH = 0.0254                                   # [m]

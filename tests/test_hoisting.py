@@ -1,4 +1,4 @@
-"""Tests for rigplan.hoisting.
+"""Tests for rigplan.engine.hoisting.
 
 Published check values come from:
 
@@ -20,7 +20,7 @@ import pytest
 from numpy.testing import assert_allclose
 
 from rigplan.errors import InputError
-from rigplan.hoisting import (
+from rigplan.engine.hoisting import (
     Component,
     HoistPath,
     LandingString,
@@ -433,7 +433,7 @@ def test_engine_module_imports_no_units_or_ui_library():
 
     root = Path(__file__).resolve().parents[1]
     env = dict(os.environ, PYTHONPATH=str(root))
-    code = ("import sys, rigplan.hoisting; "
+    code = ("import sys, rigplan.engine.hoisting; "
             "bad = [m for m in ('pint', 'textual', 'rich') if m in sys.modules]; "
             "print(bad); sys.exit(1 if bad else 0)")
     r = subprocess.run([sys.executable, "-c", code], env=env, cwd=str(root),
@@ -445,7 +445,7 @@ def test_unrated_parts_in_use_on_a_path():
     # Project rule (an unknown rating is never assumed) and common practice,
     # no source: a listed tool always carries the string; a winch path also
     # carries it through its rope and mast; a top-head path does not use them.
-    from rigplan.hoisting import HoistPath, path_capacity
+    from rigplan.engine.hoisting import HoistPath, path_capacity
     winch = HoistPath("w", lines=4, winch_line_pull=100e3, mast_rating=float("nan"),
                       tools=(("spider", "spider", float("nan")),), dead_load=1e3)
     cap = path_capacity(winch)

@@ -1,4 +1,4 @@
-"""Material library (rigplan.materials)."""
+"""Material library (rigplan.engine.materials)."""
 
 import dataclasses
 import math
@@ -8,8 +8,8 @@ import pytest
 from numpy.testing import assert_allclose
 
 from _units import ksi, lb_per_in3, psi
-from rigplan import materials as mt
-from rigplan.materials import LIBRARY, Material, get_material, register_material
+from rigplan.engine import materials as mt
+from rigplan.engine.materials import LIBRARY, Material, get_material, register_material
 
 
 @pytest.fixture

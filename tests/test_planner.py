@@ -1,15 +1,15 @@
-"""Planner checks that combine loads (rigplan.planner)."""
+"""Planner checks that combine loads (rigplan.engine.planner)."""
 
 import numpy as np
 from numpy.testing import assert_allclose
 
-from rigplan.axial import step_profile
-from rigplan.collapse import api_5c3, axial_reduced_yield
-from rigplan.hoisting import HoistPath, Rig
-from rigplan.planner import check_run, collapse_rating_under_tension
-from rigplan.axial import running_loads
-from rigplan.rating import rate_joints
-from rigplan.stringmodel import Closure, Hole, JointSpec, Settings
+from rigplan.engine.axial import step_profile
+from rigplan.engine.collapse import api_5c3, axial_reduced_yield
+from rigplan.engine.hoisting import HoistPath, Rig
+from rigplan.engine.planner import check_run, collapse_rating_under_tension
+from rigplan.engine.axial import running_loads
+from rigplan.engine.rating import rate_joints
+from rigplan.engine.stringmodel import Closure, Hole, JointSpec, Settings
 
 INCH = 0.0254
 PSI = 6894.757293168361
@@ -68,7 +68,7 @@ def test_weak_connection_lowers_the_fill_until_it_holds():
     # threaded connections rated below the full-pipe load (times the tension
     # design factor) but a strong rig, the float plan must leave the pipe
     # part empty so that every connection keeps DF x load <= rating.
-    from rigplan.planner import try_float
+    from rigplan.engine.planner import try_float
     import dataclasses
     base = [JointSpec(f"J{i + 1}", "blank", "a53b", od=16 * INCH, wall=0.5 * INCH,
                       length=12.0, connection="threaded_coupled", connection_rating=1.0)

@@ -1,4 +1,4 @@
-"""Joint rating (rigplan.rating.rate_joints)."""
+"""Joint rating (rigplan.engine.rating.rate_joints)."""
 
 import dataclasses
 import math
@@ -8,11 +8,11 @@ import pytest
 from numpy.testing import assert_allclose
 
 from _units import ft, inch, ksi, lb_per_ft, lbf, psi
-from rigplan.collapse import api_5c3, timoshenko
+from rigplan.engine.collapse import api_5c3, timoshenko
 from rigplan.errors import InputError
-from rigplan.materials import LIBRARY, get_material
-from rigplan.rating import joint_weight, rate_joints, rating_wall
-from rigplan.stringmodel import G, JointArrays, JointSpec
+from rigplan.engine.materials import LIBRARY, get_material
+from rigplan.engine.rating import joint_weight, rate_joints, rating_wall
+from rigplan.engine.stringmodel import G, JointArrays, JointSpec
 
 
 def joint(label="J1", kind="blank", material="a53b", od=16.0, wall=0.375, length=40.0,
@@ -278,8 +278,8 @@ def test_grouped_rating_equals_rating_each_joint():
     # joint on its own (common practice, no source: weight is linear in length).
     import dataclasses
     import numpy as np
-    from rigplan.rating import rate_each_joint, rate_joints
-    from rigplan.stringmodel import JointSpec
+    from rigplan.engine.rating import rate_each_joint, rate_joints
+    from rigplan.engine.stringmodel import JointSpec
     rng = np.random.default_rng(3)
     base = [JointSpec("x", "blank", "a53b", od=0.4064, wall=0.009525, length=6.0,
                       weld_efficiency=0.85),

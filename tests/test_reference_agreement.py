@@ -1,6 +1,6 @@
 """Checks of the plain-Python running-load reference (benchmarks/reference.py)
 against the identities of the pressure-area method, and of the vectorized
-engine (rigplan.axial) against that reference."""
+engine (rigplan.engine.axial) against that reference."""
 
 from __future__ import annotations
 
@@ -12,7 +12,7 @@ import numpy as np
 import pytest
 from numpy.testing import assert_allclose
 
-from rigplan.stringmodel import G, Closure, Hole, JointArrays
+from rigplan.engine.stringmodel import G, Closure, Hole, JointArrays
 
 _REF_PATH = Path(__file__).resolve().parents[1] / "benchmarks" / "reference.py"
 _spec = importlib.util.spec_from_file_location("rigplan_bench_reference", _REF_PATH)
@@ -354,10 +354,10 @@ def random_case(seed):
 
 
 def _engine():
-    axial = pytest.importorskip("rigplan.axial",
-                                reason="rigplan.axial is not written yet")
+    axial = pytest.importorskip("rigplan.engine.axial",
+                                reason="rigplan.engine.axial is not written yet")
     if not hasattr(axial, "running_loads"):
-        pytest.skip("rigplan.axial has no running_loads yet")
+        pytest.skip("rigplan.engine.axial has no running_loads yet")
     return axial.running_loads
 
 

@@ -1,4 +1,4 @@
-"""Tests for rigplan.runlog (on-site tally log) and rigplan.atomicio.
+"""Tests for rigplan.files.runlog (on-site tally log) and rigplan.files.atomicio.
 
 What the checks rest on:
 
@@ -31,9 +31,9 @@ from pathlib import Path
 
 import pytest
 
-from rigplan.atomicio import atomic_write_text
+from rigplan.files.atomicio import atomic_write_text
 from rigplan.errors import InputError
-from rigplan.runlog import (
+from rigplan.files.runlog import (
     SCHEMA_VERSION,
     Event,
     RunLog,
@@ -361,7 +361,7 @@ def test_threads_share_one_log(log):
 
 _WRITER = """
 import sys
-from rigplan.runlog import RunLog
+from rigplan.files.runlog import RunLog
 log = RunLog(sys.argv[1])
 prefix = sys.argv[2]
 i = 0
@@ -404,7 +404,7 @@ def test_sigkill_loses_no_committed_entry(tmp_path):
 
 _TORN = """
 import sys, time
-from rigplan.runlog import RunLog
+from rigplan.files.runlog import RunLog
 log = RunLog(sys.argv[1])
 for i in range(5):
     print(log.record_run(f"T{i}", 6.0), flush=True)
@@ -526,7 +526,7 @@ def test_atomic_write_refuses_non_text(tmp_path):
 
 _REWRITER = """
 import sys
-from rigplan.atomicio import atomic_write_text
+from rigplan.files.atomicio import atomic_write_text
 p = sys.argv[1]
 a = "A" * 400000 + "\\n"
 b = "B" * 400000 + "\\n"
@@ -554,7 +554,7 @@ def test_atomic_write_killed_midway_leaves_old_or_new(tmp_path):
 
 def test_runlog_imports_no_ui_or_units_library():
     # Project layering rule: the tally log is stdlib only.
-    code = ("import sys, rigplan.runlog, rigplan.atomicio; "
+    code = ("import sys, rigplan.files.runlog, rigplan.files.atomicio; "
             "bad = [m for m in ('textual', 'rich', 'pint', 'numpy') if m in sys.modules]; "
             "print(bad); sys.exit(1 if bad else 0)")
     r = subprocess.run([sys.executable, "-c", code], env=_env(), cwd=str(ROOT),

@@ -1,11 +1,11 @@
-"""Two-stage setting (rigplan.staging)."""
+"""Two-stage setting (rigplan.engine.staging)."""
 
 import numpy as np
 from numpy.testing import assert_allclose
 
-from rigplan.axial import running_loads
-from rigplan.staging import landing_string_load, plan_two_stages
-from rigplan.stringmodel import G, Closure, Hole, JointArrays
+from rigplan.engine.axial import running_loads
+from rigplan.engine.staging import landing_string_load, plan_two_stages
+from rigplan.engine.stringmodel import G, Closure, Hole, JointArrays
 
 INCH = 0.0254
 STEEL = 7850.0

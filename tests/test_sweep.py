@@ -1,6 +1,6 @@
-"""Checks of the scenario sweep (rigplan.sweep) against the identities of the
+"""Checks of the scenario sweep (rigplan.engine.sweep) against the identities of the
 pressure-area method, the Timoshenko first-yield equation and the scalar
-engine (rigplan.axial.running_loads, rigplan.floatplan.fill_window)."""
+engine (rigplan.engine.axial.running_loads, rigplan.engine.floatplan.fill_window)."""
 
 from __future__ import annotations
 
@@ -11,13 +11,13 @@ import pytest
 from numpy.testing import assert_allclose
 
 from _units import ft, inch, lbf, psi
-from rigplan.axial import running_loads
-from rigplan.collapse import elastic_ring_collapse, timoshenko
+from rigplan.engine.axial import running_loads
+from rigplan.engine.collapse import elastic_ring_collapse, timoshenko
 from rigplan.errors import InputError
-from rigplan.floatplan import fill_window
-from rigplan.materials import get_material
-from rigplan.stringmodel import G, Closure, Hole, JointArrays
-from rigplan.sweep import UniformString, sweep_landing
+from rigplan.engine.floatplan import fill_window
+from rigplan.engine.materials import get_material
+from rigplan.engine.stringmodel import G, Closure, Hole, JointArrays
+from rigplan.engine.sweep import UniformString, sweep_landing
 
 #: 1 lb/gal in kg/m^3 (US gallon 231 in^3, NIST SP 811 appendix B).
 PPG = 0.45359237 / (231.0 * inch ** 3)
@@ -82,7 +82,7 @@ def test_handbook_buoyancy_example_7in_23lb():
 
 
 def test_landed_load_matches_scalar_engine_with_lost_returns():
-    # The sweep against rigplan.axial.running_loads on the same string, one
+    # The sweep against rigplan.engine.axial.running_loads on the same string, one
     # scenario at a time, with the annulus fluid top 30 m below the floor
     # (pressure-area method, string mechanics (ADE 1986) conventions).
     s = a53b_string(n=120)
@@ -126,7 +126,7 @@ def test_longest_empty_column_matches_fill_window(df):
     # longest empty column from the closed form
     # rho_m g Z - rho_w g (Z - h) = R / DF (string mechanics (ADE 1986), "Floating and
     # fill-up", collapse bound) against the deepest allowed fill level of
-    # rigplan.floatplan.fill_window at the landed step, same string, same
+    # rigplan.engine.floatplan.fill_window at the landed step, same string, same
     # rating, no hoisting or running-weight limit.
     s = a53b_string(n=150)
     f = np.array([0.875, 0.93, 1.0, 1.0])

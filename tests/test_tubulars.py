@@ -1,11 +1,11 @@
-"""Tube geometry and plain-end weight (rigplan.tubulars)."""
+"""Tube geometry and plain-end weight (rigplan.engine.tubulars)."""
 
 import numpy as np
 import pytest
 from numpy.testing import assert_allclose
 
 from _units import inch, lb_per_ft, lb_per_in3, lbf, mm, psi
-from rigplan import tubulars as tb
+from rigplan.engine import tubulars as tb
 
 
 def density_from_k(k):

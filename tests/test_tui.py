@@ -20,8 +20,8 @@ from numpy.testing import assert_allclose
 
 from _units import ft, inch, lbf
 from rigplan import CAUTION
-from rigplan.job import apply_run_state, load_job, plan_job
-from rigplan.runlog import RunLog, log_path_for
+from rigplan.files.job import apply_run_state, load_job, plan_job
+from rigplan.files.runlog import RunLog, log_path_for
 
 SIZE = (140, 45)
 
@@ -268,7 +268,7 @@ async def test_units_toggle_changes_column_units(job):
 
 
 async def test_plan_edits_are_checked_applied_and_saved(job):
-    from rigplan.formats.planfile import read_plan
+    from rigplan.files.formats.planfile import read_plan
     from rigplan.tui.dialogs import PromptScreen
     plan, rig = job
     app = make_app(plan, rig)
@@ -393,7 +393,7 @@ def test_app_module_does_not_import_the_plot_library():
 
 
 def test_session_layer_imports_no_textual():
-    code = ("import sys, rigplan.tui, rigplan.tui.session, rigplan.tui.present; "
+    code = ("import sys, rigplan.tui, rigplan.tui.session, rigplan.present.wording; "
             "print('textual' in sys.modules)")
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
                          cwd=Path(__file__).resolve().parents[1], check=True)

@@ -27,7 +27,7 @@ import pytest
 from numpy.testing import assert_allclose
 
 from _units import ft
-from rigplan.runlog import RunLog, log_path_for
+from rigplan.files.runlog import RunLog, log_path_for
 from test_tui import SIZE, make_app, write_job
 
 REPO = Path(__file__).resolve().parents[1]

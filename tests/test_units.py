@@ -1,4 +1,4 @@
-"""Tests for rigplan.units: reading the trade's notations, refusals, SI
+"""Tests for rigplan.files.units: reading the trade's notations, refusals, SI
 conversion factors and display.
 
 Conversion factors are checked against NIST Special Publication 811 (2008
@@ -18,7 +18,7 @@ import numpy as np
 import pytest
 from numpy.testing import assert_allclose
 
-from rigplan import units
+from rigplan.files import units
 from rigplan.errors import InputError
 
 # NIST SP 811 (2008) Appendix B.8, exact definitions.
@@ -65,7 +65,7 @@ NOTATIONS = [
     ("9.2 lb/gal", "density", None, 9.2 * POUND / US_GALLON),
     ("1100 kg/m3", "density", None, 1100.0),
     ("1100 kg/m^3", "density", None, 1100.0),
-    # SG: the project's stated reference density, 999.972 kg/m^3 (rigplan.units)
+    # SG: the project's stated reference density, 999.972 kg/m^3 (rigplan.files.units)
     ("1.10 SG", "density", None, 1.10 * 999.972),
     ("150 psi", "pressure", None, 150 * POUND_FORCE / INCH ** 2),
     ("1000 kPa", "pressure", None, 1.0e6),
@@ -315,8 +315,8 @@ def test_default_units_are_the_display_units():
 
 
 def test_import_is_cheap():
-    """Importing rigplan.units does not import pint (the registry is built on use)."""
-    code = "import sys, rigplan.units; print('pint' in sys.modules)"
+    """Importing rigplan.files.units does not import pint (the registry is built on use)."""
+    code = "import sys, rigplan.files.units; print('pint' in sys.modules)"
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
                          check=True, cwd=str(__import__('pathlib').Path(__file__).parents[1]))
     assert out.stdout.strip() == "False"

@@ -21,10 +21,10 @@ from textual.screen import ModalScreen
 from textual.widgets import Footer, Header, Static, TabbedContent, TabPane
 
 from rigplan import CAUTION
-from rigplan import units as U
+from rigplan.files import units as U
 from rigplan.errors import InputError
-from rigplan.runlog import RunLogWriteError
-from rigplan.tui import present as P
+from rigplan.files.runlog import RunLogWriteError
+from rigplan.present import wording as P
 from rigplan.tui.commands import ACTIONS, GLOBAL, RUNNING, TALLY, RigplanCommands, bindings, help_sections
 from rigplan.tui.dialogs import ConfirmScreen, HelpScreen, PromptScreen, QuitScreen
 from rigplan.tui.panes import OverviewPane, RigPane, RunningPane, TallyPane
@@ -444,7 +444,7 @@ class RigplanApp(App):
         if how == "choice":
             hint = "One of: " + ", ".join(what)
         elif how == "material":
-            from rigplan import materials
+            from rigplan.engine import materials
             hint = "One of: " + ", ".join(materials.known_keys())
         elif how in ("quantity", "optional_quantity"):
             hint = (f"A bare number is in {U.unit_label(what, s.units)}; a unit may be given "

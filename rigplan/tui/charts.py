@@ -19,7 +19,7 @@ from textual.containers import Horizontal, Vertical
 from textual.widgets import Static
 from textual_plot import HiResMode, LegendLocation, NumericAxisFormatter, PlotWidget
 
-from rigplan import units as U
+from rigplan.files import units as U
 
 
 class DepthFormatter(NumericAxisFormatter):

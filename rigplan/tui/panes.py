@@ -1,7 +1,7 @@
 """The app's tab contents: overview, string and tally grid, running, rig.
 
 Each pane has ``show(session)``, which redraws it from the session's landing
-plan; the texts come from :mod:`rigplan.tui.present`.
+plan; the texts come from :mod:`rigplan.present.wording`.
 """
 
 from __future__ import annotations
@@ -12,8 +12,8 @@ from textual.app import ComposeResult
 from textual.containers import Horizontal, Vertical, VerticalScroll
 from textual.widgets import DataTable, Static
 
-from rigplan import units as U
-from rigplan.tui import present as P
+from rigplan.files import units as U
+from rigplan.present import wording as P
 
 
 class OverviewPane(VerticalScroll):

@@ -2,7 +2,7 @@
 
 No Textual here: the screens call these methods and show what they return,
 and the tests (and the kill test's driver) use the same code.  Every figure
-comes from the engine (:func:`rigplan.job.plan_job`); this module only keeps
+comes from the engine (:func:`rigplan.files.job.plan_job`); this module only keeps
 the job's state, records events in the run log as they happen, applies plan
 edits and compares a weight reading with the planned hook load.
 
@@ -10,10 +10,10 @@ State kept:
 
 * ``base_plan``: the plan as read and edited here (saved with
   :meth:`JobSession.save_plan`);
-* ``state``: the run replayed from the log (:class:`rigplan.runlog.RunState`);
+* ``state``: the run replayed from the log (:class:`rigplan.files.runlog.RunState`);
 * ``plan``: ``base_plan`` with the run state applied (measured lengths,
   rejections) -- what the engine plans;
-* ``landing``: the engine's :class:`rigplan.planner.LandingPlan` for
+* ``landing``: the engine's :class:`rigplan.engine.planner.LandingPlan` for
   ``plan`` (None with ``error`` set when the engine refused the input).
 """
 
@@ -25,10 +25,10 @@ from dataclasses import dataclass
 from pathlib import Path
 
 from rigplan.errors import InputError
-from rigplan.job import apply_run_state, length_warnings, load_job, plan_job, rated_joints
-from rigplan.runlog import RunLog, log_path_for
-from rigplan.stringmodel import CONNECTION_KINDS, JOINT_KINDS, StringPlan
-from rigplan import units as U
+from rigplan.files.job import apply_run_state, length_warnings, load_job, plan_job, rated_joints
+from rigplan.files.runlog import RunLog, log_path_for
+from rigplan.engine.stringmodel import CONNECTION_KINDS, JOINT_KINDS, StringPlan
+from rigplan.files import units as U
 
 #: Default half-width of the band around the planned hook load inside which a
 #: weight-indicator reading counts as agreeing: 10 % of the planned hook load
@@ -115,7 +115,7 @@ def compare_reading(observed: float, predicted: float, band_fraction: float,
 
 def _file_units(plan_path: Path) -> str:
     """Unit system of bare numbers in a plan file (its ``units`` key)."""
-    from rigplan.formats import read_toml
+    from rigplan.files.formats import read_toml
     system = read_toml(plan_path).get("units", "si")
     return system if system in U.SYSTEMS else "si"
 
@@ -407,7 +407,7 @@ class JobSession:
                 raise InputError(where, f"expected one of {', '.join(what)}, got {t!r}")
             value = t
         elif how == "material":
-            from rigplan import materials
+            from rigplan.engine import materials
             try:
                 value = materials.get_material(t).key
             except KeyError:
@@ -526,8 +526,8 @@ class JobSession:
 
     def change_rig(self, text: str) -> str:
         """Plan with another rig profile (read first: a bad file changes nothing)."""
-        from rigplan.formats.rigfile import read_rig
-        from rigplan.job import resolve_rig
+        from rigplan.files.formats.rigfile import read_rig
+        from rigplan.files.job import resolve_rig
         path = resolve_rig(text.strip(), self.plan_path)
         rig = read_rig(path)
         self.rig, self.rig_path, self.path_name = rig, Path(path), None
@@ -589,8 +589,8 @@ class JobSession:
 
         Returns the number of rows applied.
         """
-        from rigplan.formats.planfile import apply_tally
-        from rigplan.formats.tally import read_tally
+        from rigplan.files.formats.planfile import apply_tally
+        from rigplan.files.formats.tally import read_tally
         p = Path(path)
         if not p.is_absolute():
             p = self.plan_path.parent / p
@@ -611,7 +611,7 @@ class JobSession:
 
     def save_plan(self) -> Path:
         """Write the edited plan over its file (atomically, in the file's units)."""
-        from rigplan.formats.planfile import write_plan
+        from rigplan.files.formats.planfile import write_plan
         write_plan(self.base_plan, self.plan_path, system=self.file_units)
         self.dirty = False
         return self.plan_path

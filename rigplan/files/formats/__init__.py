@@ -6,7 +6,7 @@
 * user material files (``*.toml``)          -> :func:`read_materials`
 
 Values with units are strings (``"1200 ft"``, ``"9-5/8 in"``, ``"9.2 ppg"``)
-read by :func:`rigplan.units.parse`; a bare number is read in the file's
+read by :func:`rigplan.files.units.parse`; a bare number is read in the file's
 default unit system, chosen with the top-level key ``units = "si"`` (the
 default: m, mm, kg/m3, kPa, MPa, kN, kg/m, L) or ``units = "us"`` (ft, in,
 ppg, psi, psi, lbf, lb/ft, gal).  Every bad value raises
@@ -25,7 +25,7 @@ import math
 import tomllib
 from pathlib import Path
 
-from rigplan import units
+from rigplan.files import units
 from rigplan.errors import InputError
 
 __all__ = [
@@ -44,18 +44,18 @@ UNRATED = "unrated"
 
 def __getattr__(name):  # lazy: the readers import this module's helpers
     if name in ("read_plan", "write_plan", "PlanRead", "parse_plan"):
-        from rigplan.formats import planfile
+        from rigplan.files.formats import planfile
         return getattr(planfile, name)
     if name in ("read_rig", "parse_rig"):
-        from rigplan.formats import rigfile
+        from rigplan.files.formats import rigfile
         return getattr(rigfile, name)
     if name in ("read_tally", "write_tally", "TallyRow", "tally_from_plan", "tally_text"):
-        from rigplan.formats import tally
+        from rigplan.files.formats import tally
         return getattr(tally, name)
     if name in ("read_materials", "register_materials", "parse_materials"):
-        from rigplan.formats import materialfile
+        from rigplan.files.formats import materialfile
         return getattr(materialfile, name)
-    raise AttributeError(f"module 'rigplan.formats' has no attribute {name!r}")
+    raise AttributeError(f"module 'rigplan.files.formats' has no attribute {name!r}")
 
 
 # ---------------------------------------------------------------------------
@@ -271,7 +271,7 @@ def check_version(data: dict, source: str) -> None:
 def quantity_text(value_si: float, kind: str, system: str) -> str:
     """A quantity as file text in ``system``'s display unit, 12 significant digits.
 
-    Reads back with :func:`rigplan.units.parse` to within 5e-13 relative.
+    Reads back with :func:`rigplan.files.units.parse` to within 5e-13 relative.
     """
     value = float(value_si)
     if math.isnan(value):

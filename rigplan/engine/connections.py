@@ -12,8 +12,8 @@ import math
 
 import numpy as np
 
-from rigplan.stringmodel import CONNECTION_KINDS
-from rigplan.tubulars import _as_result, _at, _first_bad
+from rigplan.engine.stringmodel import CONNECTION_KINDS
+from rigplan.engine.tubulars import _as_result, _at, _first_bad
 
 __all__ = [
     "UW12_BUTT_WELD_EFFICIENCY",
@@ -92,7 +92,7 @@ def connection_capacity(connection_kind, body_yield, weld_efficiency=None, enter
     Parameters
     ----------
     connection_kind : str
-        One of :data:`rigplan.stringmodel.CONNECTION_KINDS`.
+        One of :data:`rigplan.engine.stringmodel.CONNECTION_KINDS`.
     body_yield : float or array_like
         Pipe-body yield (or the body rating) from the minimum wall [N].
     weld_efficiency : float, optional

@@ -1,6 +1,6 @@
 """Plan results as JSON (SI base units) and as text tables (rich).
 
-Front-end layer: turns a :class:`rigplan.planner.LandingPlan` into the
+Front-end layer: turns a :class:`rigplan.engine.planner.LandingPlan` into the
 ``rigplan check`` outputs and the printed job plan.  No physics here: every
 number comes from the planner.
 """
@@ -12,8 +12,8 @@ import math
 import numpy as np
 
 from rigplan import CAUTION
-from rigplan.planner import LANDS_FLOATED, LANDS_OPEN, LANDS_STAGED, closure_name
-from rigplan import units as U
+from rigplan.engine.planner import LANDS_FLOATED, LANDS_OPEN, LANDS_STAGED, closure_name
+from rigplan.files import units as U
 
 JSON_UNITS = "SI base units: m, N, Pa, kg/m3, m3; margins and utilizations are fractions"
 

@@ -2,7 +2,7 @@
 
 from __future__ import annotations
 
-from rigplan.tubulars import _as_result, _check_fraction, _check_positive, validate_tube
+from rigplan.engine.tubulars import _as_result, _check_fraction, _check_positive, validate_tube
 
 __all__ = ["barlow"]
 

@@ -12,7 +12,7 @@ from dataclasses import dataclass
 from pathlib import Path
 
 from rigplan.errors import InputError
-from rigplan.stringmodel import JointSpec, StringPlan
+from rigplan.engine.stringmodel import JointSpec, StringPlan
 
 #: Where the bundled demo lives: the repository's ``rigs/`` and ``strings/``
 #: (an editable install from the checkout), else those of the current folder.
@@ -89,10 +89,10 @@ class Job:
 def load_job(plan_path, rig_path, path_name: str | None = None,
              materials_path=None) -> Job:
     """Read a plan and a rig profile (and an optional user materials file)."""
-    from rigplan.formats.planfile import read_plan
-    from rigplan.formats.rigfile import read_rig
+    from rigplan.files.formats.planfile import read_plan
+    from rigplan.files.formats.rigfile import read_rig
     if materials_path is not None:
-        from rigplan.formats.materialfile import read_materials
+        from rigplan.files.formats.materialfile import read_materials
         read_materials(materials_path)
     plan_path = Path(plan_path)
     if not plan_path.exists():
@@ -131,8 +131,8 @@ def _keep_collar(before: StringPlan, after: StringPlan, collar) -> StringPlan:
 
 def apply_tally_file(plan: StringPlan, path) -> StringPlan:
     """The plan with a tally CSV's measured lengths, walls and rejections."""
-    from rigplan.formats.planfile import apply_tally
-    from rigplan.formats.tally import read_tally
+    from rigplan.files.formats.planfile import apply_tally
+    from rigplan.files.formats.tally import read_tally
     rows = read_tally(path)
     joints = apply_tally(list(plan.joints), rows, str(path))
     return _keep_collar(plan, dataclasses.replace(plan, joints=tuple(joints)),
@@ -141,7 +141,7 @@ def apply_tally_file(plan: StringPlan, path) -> StringPlan:
 
 def read_run_state(plan_path):
     """The run log beside a plan (None when the job has not been run)."""
-    from rigplan.runlog import RunLog, log_path_for
+    from rigplan.files.runlog import RunLog, log_path_for
     log = log_path_for(plan_path)
     if not Path(log).exists():
         return None
@@ -152,7 +152,7 @@ def read_run_state(plan_path):
 def apply_run_state(plan: StringPlan, state) -> StringPlan:
     """The plan as run so far: measured lengths and rejections from a run log.
 
-    ``state`` is a :class:`rigplan.runlog.RunState` (or None).  Joints run
+    ``state`` is a :class:`rigplan.files.runlog.RunState` (or None).  Joints run
     keep their plan order; a measured length replaces the planned one; a
     rejected joint is marked rejected and left out of the loads.
     """
@@ -218,7 +218,7 @@ def length_warnings(plan: StringPlan) -> list:
 
 def rated_joints(plan: StringPlan):
     """The running joints of a plan, rated (``JointArrays``)."""
-    from rigplan.rating import rate_joints
+    from rigplan.engine.rating import rate_joints
     specs = plan.running_joints()
     if not specs:
         raise InputError(plan.source or plan.name, "the string has no joints to run")
@@ -232,12 +232,12 @@ def rated_joints(plan: StringPlan):
 
 def plan_job(plan: StringPlan, rig, path_name: str | None = None,
              fixed_closure: bool = False):
-    """Rate the string and plan its landing (``rigplan.planner.LandingPlan``).
+    """Rate the string and plan its landing (``rigplan.engine.planner.LandingPlan``).
 
     ``fixed_closure``: joints are in the hole, so the planned float
     equipment is installed and no other position is tried.
     """
-    from rigplan.planner import plan_landing
+    from rigplan.engine.planner import plan_landing
     joints = rated_joints(plan)
     closure = plan.closure
     if closure.valve_joint is not None and closure.valve_joint >= joints.n:

@@ -30,7 +30,7 @@ _PSI = 6894.757293168361
 _KSI = 1000.0 * _PSI
 _NAN = float("nan")
 
-#: How a material's collapse rating is obtained (see :mod:`rigplan.rating`).
+#: How a material's collapse rating is obtained (see :mod:`rigplan.engine.rating`).
 COLLAPSE_METHODS = ("timoshenko", "api_5c3", "thermoplastic", "entered")
 
 #: Material families.

@@ -25,7 +25,7 @@ from typing import NamedTuple
 
 import numpy as np
 
-from rigplan.tubulars import _as_result, _at, _check_fraction, _check_positive, _first_bad, validate_tube
+from rigplan.engine.tubulars import _as_result, _at, _check_fraction, _check_positive, _first_bad, validate_tube
 
 __all__ = [
     "ellipticity_from_diameters",

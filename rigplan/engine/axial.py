@@ -48,8 +48,8 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from rigplan.hydrostatics import collapse_load
-from rigplan.stringmodel import G, Closure, Hole, JointArrays
+from rigplan.engine.hydrostatics import collapse_load
+from rigplan.engine.stringmodel import G, Closure, Hole, JointArrays
 
 _BLOCK_ELEMENTS = 1 << 20
 

@@ -22,7 +22,7 @@ At each step the allowed fill heights form an interval (the fill window):
 The string load with fill is the empty-string load plus the weight of the
 fill inside, ``rho_f g V(s)``: the fluid above the valve rests only on the
 pipe's faces, so the pressure-area sum over those faces equals its weight
-(the tests check this against ``rigplan.axial``).
+(the tests check this against ``rigplan.engine.axial``).
 
 Sources: string mechanics (ADE 1986) (floating and fill-up conventions);
 Bourgoyne et al., *Applied Drilling Engineering* (1986), ch. 7 (casing
@@ -45,16 +45,16 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from rigplan.axial import StringGeometry, string_geometry, string_load_by_step
-from rigplan.hydrostatics import collapse_load
-from rigplan.stringmodel import G, Closure, Hole, JointArrays
+from rigplan.engine.axial import StringGeometry, string_geometry, string_load_by_step
+from rigplan.engine.hydrostatics import collapse_load
+from rigplan.engine.stringmodel import G, Closure, Hole, JointArrays
 
 _EMPTY = 1e12  # a fill level deeper than any string [m]: empty above the valve
 _BLOCK_ELEMENTS = 1 << 20  # largest (steps x sections) array built at once
 
 
 #: Values derived from a string geometry, kept with it: ``id(geo) ->
-#: (geo, {key: value})``.  Geometries are read-only (rigplan.axial), so what
+#: (geo, {key: value})``.  Geometries are read-only (rigplan.engine.axial), so what
 #: is derived from one alone stays valid; keys carry any other input.
 _DERIVED: dict = {}
 _DERIVED_SIZE = 16

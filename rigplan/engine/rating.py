@@ -1,10 +1,10 @@
 """Rate every joint of a string: weight, pressure areas and strength ratings.
 
-:func:`rate_joints` turns the user's :class:`rigplan.stringmodel.JointSpec`
-list into the per-joint arrays of :class:`rigplan.stringmodel.JointArrays`
+:func:`rate_joints` turns the user's :class:`rigplan.engine.stringmodel.JointSpec`
+list into the per-joint arrays of :class:`rigplan.engine.stringmodel.JointArrays`
 that the load engine uses.  It picks a formula per joint by its material and
-adds no physics of its own; the formulas live in :mod:`rigplan.tubulars`,
-:mod:`rigplan.collapse`, :mod:`rigplan.burst` and :mod:`rigplan.connections`.
+adds no physics of its own; the formulas live in :mod:`rigplan.engine.tubulars`,
+:mod:`rigplan.engine.collapse`, :mod:`rigplan.engine.burst` and :mod:`rigplan.engine.connections`.
 
 Rules applied (rigplan rules; string mechanics (ADE 1986)):
 
@@ -25,13 +25,13 @@ from collections.abc import Mapping, Sequence
 
 import numpy as np
 
-from rigplan.burst import barlow
-from rigplan.collapse import API_5C3_YIELD_RANGE, api_5c3, ellipticity_from_diameters, thermoplastic_sdr, timoshenko
-from rigplan.connections import connection_capacity
+from rigplan.engine.burst import barlow
+from rigplan.engine.collapse import API_5C3_YIELD_RANGE, api_5c3, ellipticity_from_diameters, thermoplastic_sdr, timoshenko
+from rigplan.engine.connections import connection_capacity
 from rigplan.errors import InputError
-from rigplan.materials import LIBRARY, Material, get_material
-from rigplan.stringmodel import CONNECTION_KINDS, G, JOINT_KINDS, JointArrays, JointSpec
-from rigplan.tubulars import body_yield, linear_mass, minimum_wall, sdr
+from rigplan.engine.materials import LIBRARY, Material, get_material
+from rigplan.engine.stringmodel import CONNECTION_KINDS, G, JOINT_KINDS, JointArrays, JointSpec
+from rigplan.engine.tubulars import body_yield, linear_mass, minimum_wall, sdr
 
 __all__ = [
     "DEFAULT_ELLIPTICITY",
@@ -133,8 +133,8 @@ def rating_wall(spec: JointSpec, material: Material):
 
     Examples
     --------
-    >>> from rigplan.stringmodel import JointSpec
-    >>> from rigplan.materials import get_material
+    >>> from rigplan.engine.stringmodel import JointSpec
+    >>> from rigplan.engine.materials import get_material
     >>> j = JointSpec("J1", "blank", "a53b", od=0.4064, wall=0.009525, length=6.0)
     >>> wall, how = rating_wall(j, get_material("a53b"))
     >>> round(wall, 7), how
@@ -163,7 +163,7 @@ def joint_weight(spec: JointSpec, material: Material):
     how : str
         ``"entered weight"``, ``"entered weight per length"`` or
         ``"plain-end formula"`` (``rho g pi/4 (D^2 - d^2) L`` on the
-        specified wall, :func:`rigplan.tubulars.linear_mass`).
+        specified wall, :func:`rigplan.engine.tubulars.linear_mass`).
 
     Raises
     ------
@@ -192,7 +192,7 @@ def joint_ellipticity(spec: JointSpec, default_ellipticity=DEFAULT_ELLIPTICITY):
     """Ellipticity used for a Timoshenko rating [-].
 
     From the measured ``dmax``/``dmin`` when given
-    (:func:`rigplan.collapse.ellipticity_from_diameters`), else the entered
+    (:func:`rigplan.engine.collapse.ellipticity_from_diameters`), else the entered
     ``ellipticity``, else ``default_ellipticity``.
     """
     if _is_given(spec.dmax) and _is_given(spec.dmin):
@@ -225,7 +225,7 @@ def rate_joints(specs: Sequence[JointSpec], materials: Mapping[str, Material] | 
         Joints in running order (joint 1 first).  Every spec given is rated;
         leave rejected joints out (``StringPlan.running_joints()``).
     materials : mapping of str to Material, optional
-        Material library; default :data:`rigplan.materials.LIBRARY`.
+        Material library; default :data:`rigplan.engine.materials.LIBRARY`.
     default_ellipticity : float, optional
         Ellipticity for Timoshenko ratings when a joint gives none [-];
         default 0.01 (common practice, no source).
@@ -249,7 +249,7 @@ def rate_joints(specs: Sequence[JointSpec], materials: Mapping[str, Material] | 
         * ``body_rating`` [N]: entered tensile rating; nan for screens;
           else ``Sy A_s`` on the minimum wall;
         * ``connection_rating`` [N]:
-          :func:`rigplan.connections.connection_capacity` with the body
+          :func:`rigplan.engine.connections.connection_capacity` with the body
           rating;
         * ``collapse_method``: the method used per joint
           (``"entered"``, ``"unrated"``, ``"timoshenko"``, ``"api_5c3"``,
@@ -274,7 +274,7 @@ def rate_joints(specs: Sequence[JointSpec], materials: Mapping[str, Material] | 
 
     Examples
     --------
-    >>> from rigplan.stringmodel import JointSpec
+    >>> from rigplan.engine.stringmodel import JointSpec
     >>> j = JointSpec("J1", "blank", "a53b", od=0.4064, wall=0.009525, length=6.0,
     ...               weld_efficiency=0.85)
     >>> arrays = rate_joints([j])

@@ -1,8 +1,8 @@
 """Engine data model: the string, the hole and the settings, in SI floats.
 
 Everything here is plain data (dataclasses and numpy arrays); there is no
-unit handling and no file I/O.  Readers in ``rigplan.formats`` build these
-objects from the user's files; ``rigplan.rating.rate_joints`` turns a list of
+unit handling and no file I/O.  Readers in ``rigplan.files.formats`` build these
+objects from the user's files; ``rigplan.engine.rating.rate_joints`` turns a list of
 :class:`JointSpec` into the per-joint arrays of :class:`JointArrays` that the
 load engine consumes.
 

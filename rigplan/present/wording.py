@@ -1,7 +1,7 @@
 """Text the screens show, built from the engine's landing plan (no Textual).
 
-Every number here is read from :class:`rigplan.planner.LandingPlan` (or the
-run log) and converted for display with :mod:`rigplan.units`; nothing is
+Every number here is read from :class:`rigplan.engine.planner.LandingPlan` (or the
+run log) and converted for display with :mod:`rigplan.files.units`; nothing is
 computed beyond picking the entry for the current running step.
 """
 
@@ -9,8 +9,8 @@ from __future__ import annotations
 
 import math
 
-from rigplan import units as U
-from rigplan.planner import (CANNOT_CONFIRM, CANNOT_LAND, LANDS_FLOATED, LANDS_OPEN,
+from rigplan.files import units as U
+from rigplan.engine.planner import (CANNOT_CONFIRM, CANNOT_LAND, LANDS_FLOATED, LANDS_OPEN,
                              LANDS_STAGED, closure_name)
 
 #: Verdict -> CSS class of the verdict banner.
@@ -385,7 +385,7 @@ def rig_tables(session) -> list:
 
     rows are ``(component, rating at hook, allowed string load, governs)``.
     """
-    from rigplan.hoisting import rig_capacity
+    from rigplan.engine.hoisting import rig_capacity
     sys_ = session.units
     lp = session.landing
     in_use = lp.path.path if lp is not None else session.path_name

@@ -13,7 +13,7 @@ Both stages are run open-ended here: a stage that would itself need floating
 is reported as not landing.
 
 Source: string mechanics (ADE 1986) (staged setting); the landing-string load is
-the same pressure-area sum as the casing (``rigplan.axial``) for an open
+the same pressure-area sum as the casing (``rigplan.engine.axial``) for an open
 pipe, ``W_air - P_o(bottom) A_steel``.
 """
 
@@ -23,8 +23,8 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from rigplan.axial import running_loads, step_profile, string_geometry, string_load_by_step
-from rigplan.stringmodel import G, Closure, Hole, JointArrays
+from rigplan.engine.axial import running_loads, step_profile, string_geometry, string_load_by_step
+from rigplan.engine.stringmodel import G, Closure, Hole, JointArrays
 
 
 def landing_string_load(length, weight_per_length: float, density: float, hole: Hole):

@@ -31,7 +31,7 @@ from __future__ import annotations
 import math
 
 from rigplan.errors import InputError
-from rigplan.formats import Table, check_version, file_system, parse_toml_text, read_toml
+from rigplan.files.formats import Table, check_version, file_system, parse_toml_text, read_toml
 
 TOP_KEYS = ("version", "units", "material")
 MATERIAL_KEYS = ("key", "name", "family", "density", "yield_strength", "youngs_modulus",
@@ -55,7 +55,7 @@ def _maybe_unknown(t: Table, key: str, kind: str):
 
 def materials_from_data(data: dict, source: str) -> list:
     """Materials defined in a parsed file (not registered)."""
-    from rigplan.materials import COLLAPSE_METHODS, FAMILIES, Material
+    from rigplan.engine.materials import COLLAPSE_METHODS, FAMILIES, Material
 
     check_version(data, source)
     system = file_system(data, source)
@@ -116,7 +116,7 @@ def parse_materials(text: str, source: str = "<materials>") -> list:
 
 def register_materials(data: dict, source: str) -> list:
     """Check every material of a parsed file, then register them all."""
-    from rigplan import materials
+    from rigplan.engine import materials
 
     entries = materials_from_data(data, source)
     for m, replace, where in entries:

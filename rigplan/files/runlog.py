@@ -37,7 +37,7 @@ from datetime import datetime, timezone
 from pathlib import Path
 
 from rigplan import __version__
-from rigplan.atomicio import atomic_write_text
+from rigplan.files.atomicio import atomic_write_text
 from rigplan.errors import InputError
 
 __all__ = [

@@ -22,12 +22,12 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from rigplan import CAUTION
-from rigplan.axial import RunningLoads, neutral_point_depth, running_loads, step_profile
-from rigplan.floatplan import (EmptyRun, FillSchedule, FillWindow, empty_run, fill_schedule,
+from rigplan.engine.axial import RunningLoads, neutral_point_depth, running_loads, step_profile
+from rigplan.engine.floatplan import (EmptyRun, FillSchedule, FillWindow, empty_run, fill_schedule,
                                fill_window, switch_point)
-from rigplan.hoisting import PathCapacity, Rig, path_capacity
-from rigplan.staging import StagedPlan, plan_two_stages
-from rigplan.stringmodel import Closure, GroutSpec, Hole, JointArrays, Settings
+from rigplan.engine.hoisting import PathCapacity, Rig, path_capacity
+from rigplan.engine.staging import StagedPlan, plan_two_stages
+from rigplan.engine.stringmodel import Closure, GroutSpec, Hole, JointArrays, Settings
 
 LANDS_OPEN = "lands open"
 LANDS_FLOATED = "lands with float plan"
@@ -152,11 +152,11 @@ def collapse_rating_under_tension(joints: JointArrays, loads: RunningLoads, hole
                                   closure: Closure, fill_density: float) -> np.ndarray:
     """Collapse ratings of API-grade joints reduced for the axial tension
     they carry when their collapse load peaks [Pa] (other joints unchanged):
-    :func:`rigplan.collapse.api_5c3_under_axial_stress` with the true force
+    :func:`rigplan.engine.collapse.api_5c3_under_axial_stress` with the true force
     at that step over the rating wall's steel area."""
-    from rigplan.axial import true_force_at
-    from rigplan.collapse import api_5c3_under_axial_stress
-    from rigplan.tubulars import steel_area
+    from rigplan.engine.axial import true_force_at
+    from rigplan.engine.collapse import api_5c3_under_axial_stress
+    from rigplan.engine.tubulars import steel_area
     rating = np.asarray(joints.collapse_rating, dtype=float).copy()
     if joints.yield_strength is None or joints.rating_wall is None or not joints.collapse_method:
         return rating
@@ -505,7 +505,7 @@ def plan_landing(joints: JointArrays, hole: Hole, rig: Rig, settings: Settings,
     neutral = neutral_point_depth(prof) if settings.set_down_weight > 0 else float("nan")
     grouting = None
     if grout is not None:
-        from rigplan.grouting import plan_grout_lifts
+        from rigplan.engine.grouting import plan_grout_lifts
         grouting = plan_grout_lifts(joints, hole, grout, settings.design.collapse)
     return LandingPlan(
         verdict=verdict, governing=governing, path=cap, dead_load=hoist.dead_load,

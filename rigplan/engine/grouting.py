@@ -7,7 +7,7 @@ Geometry
 After landing, the shoe sits at depth ``Z`` (the string length) and joint 1
 is at the bottom.  Heights ``x`` are measured up the string from the shoe
 [m], so a point at height ``x`` lies at depth ``z = Z - x`` (the heights of
-each joint's faces come from :func:`rigplan.axial.string_geometry`).
+each joint's faces come from :func:`rigplan.engine.axial.string_geometry`).
 
 Grout (or cement) of density ``rho_g`` fills the annulus from a base height
 ``b`` up to a top height ``t``; its top lies at depth ``T = Z - t``.  Above
@@ -70,7 +70,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from rigplan.errors import InputError
-from rigplan.stringmodel import G, GroutSpec, Hole, JointArrays
+from rigplan.engine.stringmodel import G, GroutSpec, Hole, JointArrays
 
 __all__ = [
     "annulus_pressure_with_grout",
@@ -119,7 +119,7 @@ def _check_number(where: str, value, what: str, unit: str, *, positive=False) ->
 def _string_heights(joints: JointArrays):
     """Bottom and top heights of each joint above the shoe [m] and Z [m].
 
-    Same construction as :func:`rigplan.axial.string_geometry` (cumulative
+    Same construction as :func:`rigplan.engine.axial.string_geometry` (cumulative
     lengths in running order), without its area checks, which grouting
     does not need.
     """
@@ -290,7 +290,7 @@ def grout_differential_pressure(height, string_length, hole: Hole, grout_density
     full outside and water full inside:
     ``g (1000 x 80 + 1900 x 20 - 1000 x 100) = 18,000 g``.
 
-    >>> from rigplan.stringmodel import Hole
+    >>> from rigplan.engine.stringmodel import Hole
     >>> p = grout_differential_pressure(0.0, 100.0, Hole(1000.0), 1900.0, 20.0, 1000.0)
     >>> round(p / 9.80665)
     18000

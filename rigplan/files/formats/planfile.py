@@ -1,4 +1,4 @@
-"""String plan files (``strings/*.toml``) <-> :class:`rigplan.stringmodel.StringPlan`.
+"""String plan files (``strings/*.toml``) <-> :class:`rigplan.engine.stringmodel.StringPlan`.
 
 Schema (version 1).  Bare numbers are read in the file's ``units`` system
 (default ``"si"``: m, mm, kg/m3, kPa, MPa, kN, kg/m; ``"us"``: ft, in, ppg,
@@ -61,7 +61,7 @@ weight (w)::
     collar_candidates = [1, 2, 3]  # float collar positions to compare
 
     [design_factors]             # optional, plain numbers
-    tension = 1.6                # defaults from rigplan.stringmodel.DesignFactors
+    tension = 1.6                # defaults from rigplan.engine.stringmodel.DesignFactors
     collapse = 1.125
     burst = 1.1
 
@@ -86,9 +86,9 @@ from dataclasses import dataclass, fields
 from pathlib import Path
 
 from rigplan.errors import InputError
-from rigplan.formats import (SCHEMA_VERSION, Table, check_version, dump_toml, file_system,
+from rigplan.files.formats import (SCHEMA_VERSION, Table, check_version, dump_toml, file_system,
                              parse_toml_text, quantity_text, read_toml)
-from rigplan.stringmodel import (CONNECTION_KINDS, JOINT_KINDS, Closure, DesignFactors, GroutSpec,
+from rigplan.engine.stringmodel import (CONNECTION_KINDS, JOINT_KINDS, Closure, DesignFactors, GroutSpec,
                                  Hole, JointSpec, Settings, StringPlan)
 
 TOP_KEYS = ("version", "units", "name", "well", "site", "notes", "tally", "hole", "section",
@@ -178,7 +178,7 @@ def _fluid_density(t: Table, key: str, default=None, required: bool = False, ind
 
 
 def _material_key(t: Table, key: str = "material") -> str:
-    from rigplan import materials
+    from rigplan.engine import materials
 
     name = t.text(key, required=True)
     try:
@@ -350,7 +350,7 @@ def plan_from_data(data: dict, source: str, base_dir=Path("."), default_name: st
     tally_path = None
     tally_name = top.text("tally", default=None)
     if tally_name is not None:
-        from rigplan.formats.tally import read_tally
+        from rigplan.files.formats.tally import read_tally
 
         if not tally_name.strip():
             raise InputError(top.where("tally"), "expected the path of a tally CSV, got an empty text")
@@ -621,6 +621,6 @@ def write_plan(plan: StringPlan, path, system: str = "si", header: str = "") -> 
     measured length and rejection (the tally is then part of the file, and
     no ``tally`` key is written).  Comments of an earlier file are not kept.
     """
-    from rigplan.atomicio import atomic_write_text
+    from rigplan.files.atomicio import atomic_write_text
 
     atomic_write_text(path, plan_text(plan, system, header))

@@ -11,7 +11,7 @@ scenarios at once:
   method (for this uniform string it equals the air weight times the
   buoyancy factor);
 * the Timoshenko collapse rating of the pipe at the scenario's wall and
-  ellipticity (:func:`rigplan.collapse.timoshenko`);
+  ellipticity (:func:`rigplan.engine.collapse.timoshenko`);
 * the longest empty column a float shoe allows before collapse, with water
   (or another fill fluid) inside below the fill surface;
 * pass or fail of the landed load against a string limit.
@@ -37,9 +37,9 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from rigplan.collapse import timoshenko
+from rigplan.engine.collapse import timoshenko
 from rigplan.errors import InputError
-from rigplan.stringmodel import G
+from rigplan.engine.stringmodel import G
 
 __all__ = ["UniformString", "SweepResult", "sweep_landing"]
 
@@ -167,7 +167,7 @@ def sweep_landing(string: UniformString, wall_factor, fluid_density, ellipticity
 
       which is ``W (1 - rho_m / rho_s)``, the buoyancy factor, when the
       hole is full (``h_o = 0``);
-    * collapse rating ``R``: :func:`rigplan.collapse.timoshenko` at ``t``
+    * collapse rating ``R``: :func:`rigplan.engine.collapse.timoshenko` at ``t``
       and the scenario's ellipticity;
     * float shoe, fill fluid ``rho_w`` inside below the fill surface at
       depth ``h``, empty above: the collapse load

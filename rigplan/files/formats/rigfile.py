@@ -1,4 +1,4 @@
-"""Rig profile files (``rigs/*.toml``) -> :class:`rigplan.hoisting.Rig`.
+"""Rig profile files (``rigs/*.toml``) -> :class:`rigplan.engine.hoisting.Rig`.
 
 Schema (version 1; bare numbers in the file's ``units`` system, default
 ``"si"``; a rating may be the text ``"unrated"``, and a rating left out is
@@ -43,7 +43,7 @@ import math
 from pathlib import Path
 
 from rigplan.errors import InputError
-from rigplan.formats import Table, check_version, file_system, read_toml, parse_toml_text
+from rigplan.files.formats import Table, check_version, file_system, read_toml, parse_toml_text
 
 TOP_KEYS = ("version", "units", "name", "notes", "path", "landing_string")
 PATH_KEYS = ("name", "lines", "sheave_factor", "winch_line_pull", "rope_breaking_force",
@@ -59,7 +59,7 @@ DEFAULT_LANDING_STRING_DENSITY = 7850.0
 
 
 def read_rig(path) -> "object":
-    """Read a rig profile file and return a :class:`rigplan.hoisting.Rig`."""
+    """Read a rig profile file and return a :class:`rigplan.engine.hoisting.Rig`."""
     data = read_toml(path)
     return rig_from_data(data, str(path))
 
@@ -75,7 +75,7 @@ def _rewhere(exc: InputError, where: str) -> InputError:
 
 
 def rig_from_data(data: dict, source: str):
-    from rigplan.hoisting import HoistPath, LandingString, Rig, TOOL_KINDS
+    from rigplan.engine.hoisting import HoistPath, LandingString, Rig, TOOL_KINDS
 
     if not data:
         raise InputError(source, "the file is empty: expected a rig profile (a name and at "

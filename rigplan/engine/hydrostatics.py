@@ -7,7 +7,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from rigplan.stringmodel import G
+from rigplan.engine.stringmodel import G
 
 #: Oilfield gradient per lb/gal [psi/ft per lb/gal]:
 #: 0.051948 = (1 lb/gal x g x 1 ft) / 1 psi (exact unit definitions, NIST SP 811).
@@ -59,7 +59,7 @@ def buoyancy_factor(fluid_density, pipe_density):
     ``BF = 1 - rho_fluid / rho_pipe``  [-]
 
     Valid for a string open at the bottom with the same fluid inside and
-    out, fully submerged.  The pressure-area engine (``rigplan.axial``)
+    out, fully submerged.  The pressure-area engine (``rigplan.engine.axial``)
     reduces to this case; see its tests.  Source: Bourgoyne et al.,
     *Applied Drilling Engineering* (1986), ch. 7; string mechanics (ADE 1986)
     ``BF = 1 - MW/65.4`` with MW in lb/gal for steel.

@@ -15,7 +15,7 @@ Columns (any order; only ``label`` is required, the others may be left out):
 * ``measured_length [unit]``: a length; the unit in brackets is the unit of
   bare numbers, a value may carry its own (``20 ft 1-1/2 in``); empty = not
   measured yet;
-* ``kind``: one of :data:`rigplan.stringmodel.JOINT_KINDS`, or empty;
+* ``kind``: one of :data:`rigplan.engine.stringmodel.JOINT_KINDS`, or empty;
 * ``status``: ``run`` (default) or ``rejected`` (set aside, not run);
 * ``note``: free text;
 * ``measured_wall [unit]``: measured minimum wall (a diameter kind), or empty.
@@ -33,9 +33,9 @@ import re
 from dataclasses import dataclass, field
 from pathlib import Path
 
-from rigplan import units
+from rigplan.files import units
 from rigplan.errors import InputError
-from rigplan.stringmodel import JOINT_KINDS
+from rigplan.engine.stringmodel import JOINT_KINDS
 
 COLUMNS = ("label", "measured_length", "kind", "status", "note", "measured_wall")
 STATUSES = ("run", "rejected")
@@ -191,7 +191,7 @@ def tally_text(rows, system: str = "us", comment: str = "") -> str:
 
 def write_tally(rows, path, system: str = "us", comment: str = "") -> None:
     """Write tally rows to a CSV file atomically (12 significant digits)."""
-    from rigplan.atomicio import atomic_write_text
+    from rigplan.files.atomicio import atomic_write_text
 
     atomic_write_text(path, tally_text(rows, system, comment))
 
