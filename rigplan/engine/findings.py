@@ -1,0 +1,123 @@
+"""Typed results shared by the engine and the planner: verdicts, limits, findings.
+
+The engine never writes sentences and never chooses display units.  What it
+has to say about a plan (a note, a warning, a reason an option fails, a crew
+action) is a :class:`Finding`: a code, the joint or step it concerns, and its
+quantities as SI floats tagged with their :class:`Kind`.  The presentation
+layer (``rigplan.present``) turns findings into words in the units the user
+chose; the JSON output carries each finding's code beside its text.
+
+Codes are members of a ``StrEnum`` defined in the engine module that raises
+them (for example ``floatplan.FloatCode``), so a code reads the same in JSON
+and in Python and a typo is an ``AttributeError``, not a silent mismatch.
+"""
+
+from __future__ import annotations
+
+import enum
+import math
+from collections.abc import Mapping
+from dataclasses import dataclass, field
+from types import MappingProxyType
+
+
+class Verdict(enum.StrEnum):
+    """How the string lands, in the planner's order of trial."""
+
+    LANDS_OPEN = "lands open"
+    LANDS_FLOATED = "lands with float plan"
+    LANDS_STAGED = "lands in stages"
+    CANNOT_LAND = "cannot land"
+    CANNOT_CONFIRM = "cannot confirm"
+
+    @property
+    def lands(self) -> bool:
+        """True for the three verdicts under which the string can be run."""
+        return self in (Verdict.LANDS_OPEN, Verdict.LANDS_FLOATED, Verdict.LANDS_STAGED)
+
+
+class Kind(enum.StrEnum):
+    """The physical kind of a quantity, which fixes its SI unit.
+
+    The presentation layer picks the display unit from the kind and the
+    user's unit system; the engine only ever stores SI values.
+    """
+
+    LENGTH = "length"                # [m] lengths along the pipe
+    DEPTH = "depth"                  # [m] measured from the rig floor, downward
+    DIAMETER = "diameter"            # [m]
+    FORCE = "force"                  # [N]
+    PRESSURE = "pressure"            # [Pa] gauge
+    STRESS = "stress"                # [Pa]
+    DENSITY = "density"              # [kg/m3]
+    VOLUME = "volume"                # [m3]
+    MASS_PER_LENGTH = "mass per length"  # [kg/m]
+    TEMPERATURE = "temperature"      # [degC]
+    RATIO = "ratio"                  # [-] margins, utilizations, efficiencies
+    COUNT = "count"                  # [-] joints, lines, steps
+
+
+class Severity(enum.StrEnum):
+    """How much a finding matters to the crew."""
+
+    INFO = "info"          # a fact of the plan worth knowing
+    ACTION = "action"      # something the crew must do (fill, stop, top up)
+    WARNING = "warning"    # something that could go wrong if ignored
+    REASON = "reason"      # why an option, or the whole plan, fails
+
+
+@dataclass(frozen=True)
+class Quantity:
+    """One SI value with its kind (``nan`` means not known / unrated)."""
+
+    value: float
+    kind: Kind
+
+    def __post_init__(self) -> None:
+        object.__setattr__(self, "value", float(self.value))
+        object.__setattr__(self, "kind", Kind(self.kind))
+
+    @property
+    def known(self) -> bool:
+        return math.isfinite(self.value)
+
+
+def _frozen_quantities(q: Mapping[str, Quantity | tuple]) -> Mapping[str, Quantity]:
+    out = {}
+    for name, v in q.items():
+        out[name] = v if isinstance(v, Quantity) else Quantity(*v)
+    return MappingProxyType(out)
+
+
+@dataclass(frozen=True)
+class Finding:
+    """Something the engine has to say about a plan, with no words in it.
+
+    code : a ``StrEnum`` member of the raising module (its value is stable
+        and appears in the JSON output)
+    severity : :class:`Severity`
+    joint : the joint concerned, 1-based position in running order (None: none)
+    step : the running step concerned, 1-based (step k: joints 1..k hang)
+    label : the joint's own label (tally id), when a joint is concerned
+    quantities : named SI quantities, e.g. ``{"length": Quantity(185.6, Kind.LENGTH)}``;
+        plain ``(value, kind)`` tuples are accepted and converted
+    context : other named facts that are not quantities (a path name, a
+        limit name, a closure description); values are str, int or bool
+    """
+
+    code: str
+    severity: Severity = Severity.INFO
+    joint: int | None = None
+    step: int | None = None
+    label: str | None = None
+    quantities: Mapping[str, Quantity] = field(default_factory=dict)
+    context: Mapping[str, object] = field(default_factory=dict)
+
+    def __post_init__(self) -> None:
+        object.__setattr__(self, "severity", Severity(self.severity))
+        object.__setattr__(self, "quantities", _frozen_quantities(self.quantities))
+        object.__setattr__(self, "context", MappingProxyType(dict(self.context)))
+
+    def value(self, name: str) -> float:
+        """The SI value of the named quantity."""
+        return self.quantities[name].value
