@@ -12,7 +12,6 @@ from textual.app import ComposeResult
 from textual.containers import Horizontal, Vertical, VerticalScroll
 from textual.widgets import DataTable, Static
 
-from rigplan.files import units as U
 from rigplan.present import wording as P
 
 
@@ -53,10 +52,7 @@ class OverviewPane(VerticalScroll):
             self.query_one("#fill-plan", Static).update(P.fill_plan_text(lp, sys_))
             self.query_one("#float-line", Static).update(P.float_text(lp, sys_))
             self.query_one("#switch-line", Static).update(P.switch_text(lp))
-            notes = (list(lp.reasons) + [f"note: {x}" for x in lp.notes]
-                     + [f"unrated: {u}" for u in lp.unrated[:8]])
-            if len(lp.unrated) > 8:
-                notes.append(f"... and {len(lp.unrated) - 8} more unrated parts")
+            notes = P.reason_lines(lp, sys_)
             self.query_one("#reasons", Static).update(
                 Text("\n".join(notes)) if notes else "")
         nxt = session.next_joint()
@@ -69,8 +65,8 @@ class OverviewPane(VerticalScroll):
             + ("   [plan edited, not saved: s on the String tab]" if session.dirty else ""))
         warnings = list(session.warnings) + [w for w in session.length_warnings
                                              if w not in session.warnings]
-        self.query_one("#warnings", Static).update(
-            Text("\n".join(warnings)) if warnings else "")
+        lines = [text for _, text in P.finding_lines(warnings, sys_)]
+        self.query_one("#warnings", Static).update(Text("\n".join(lines)) if lines else "")
 
 
 class _Grid(DataTable):
@@ -217,7 +213,7 @@ class RigPane(VerticalScroll):
         for name, in_use, governing, rows, unrated, (s_lim, h_lim) in P.rig_tables(session):
             title = f"{name}{'  (in use)' if in_use else ''}"
             t = Table(title=Text(title, style="bold"), title_justify="left", expand=False)
-            unit = U.unit_label("force", session.units)
+            unit = P.unit("force", session.units)
             t.add_column(Text("Component"))
             t.add_column(Text(f"Rating at hook [{unit}]"), justify="right")
             t.add_column(Text(f"Allowed string load [{unit}]"), justify="right")
