@@ -133,12 +133,6 @@ def to_display(value_si, kind, system: str):
     return U.to_display(value_si, _unit_kind(kind), primary(system))
 
 
-def both(value, kind, system: str, digits: int | None = None) -> str:
-    """``150 L (40 gal)``: the value in the chosen units, then the other system."""
-    first = primary(system)
-    return fmt(value, kind, f"{first}+{OTHER_SYSTEM[first]}", digits)
-
-
 def percent(fraction, missing: str = "n/a") -> str:
     """A fraction as a percentage, ``12.3 %`` (``missing`` for nan or None)."""
     if fraction is None or not math.isfinite(float(fraction)):
