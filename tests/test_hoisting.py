@@ -238,16 +238,34 @@ def test_path_capacity_mast_governs_with_stronger_elevator():
     assert_allclose(cap.hook_limit, 130e3, rtol=1e-12)
 
 
-def test_path_capacity_dynamic_factor_divides_ratings():
-    # dynamic factor 1.25 (kN):
-    #   winch 160/1.25 = 128 - 30 = 98;  rope 240/1.25 = 192 - 30 = 162
-    #   mast  150/1.25 = 120 - 30 = 90;  elevator 120/1.25 = 96 - 20 = 76
+def test_shock_and_overpull_are_separate_load_cases():
+    # Hand arithmetic (kN), dynamic factor 1.25, overpull reserve 20, gear 10;
+    # shock: R/1.25 - gear, overpull: R - gear - 20 (common practice, no
+    # source, for the dynamic factor; API RP 7G margin of overpull, from
+    # memory, for the static pull), each part the smaller of the two:
+    #   winch    160/1.25 - 10 = 118   160 - 10 - 20 = 130  -> 118 shock
+    #   rope     240/1.25 - 10 = 182   240 - 10 - 20 = 210  -> 182 shock
+    #   mast     150/1.25 - 10 = 110   150 - 10 - 20 = 120  -> 110 shock
+    #   elevator 120/1.25      =  96   120      - 20 = 100  ->  96 shock
+    # Not stacked: the old rule (R/1.25 - 20 - gear) would give 76 for the
+    # elevator.
     cap = path_capacity(_main_path(dynamic_factor=1.25))
     assert cap.governing == "casing elevator"
-    assert_allclose(cap.string_limit, 76e3, rtol=1e-12)
-    allowed = {c[0]: c[3] for c in cap.components}
-    assert_allclose(allowed["winch line pull"], 98e3, rtol=1e-12)
-    assert_allclose(allowed["mast"], 90e3, rtol=1e-12)
+    assert cap.governing_case == "shock"
+    assert_allclose(cap.string_limit, 96e3, rtol=1e-12)
+    assert_allclose(cap.hook_limit, 106e3, rtol=1e-12)
+    parts = {p.name: p for p in cap.parts}
+    assert_allclose([parts[k].shock_limit for k in ("winch line pull", "wire rope", "mast",
+                                                     "casing elevator")],
+                    [118e3, 182e3, 110e3, 96e3], rtol=1e-12)
+    assert_allclose([parts[k].overpull_limit for k in ("winch line pull", "wire rope", "mast",
+                                                        "casing elevator")],
+                    [130e3, 210e3, 120e3, 100e3], rtol=1e-12)
+    # With a small dynamic factor the overpull case governs instead:
+    # elevator 120/1.1 = 109.1 > 120 - 20 = 100 -> overpull, 100 kN.
+    cap = path_capacity(_main_path(dynamic_factor=1.1))
+    assert cap.governing == "casing elevator" and cap.governing_case == "overpull"
+    assert_allclose(cap.string_limit, 100e3, rtol=1e-12)
 
 
 def test_dead_load_makes_stronger_hook_part_govern_over_weaker_tool():
