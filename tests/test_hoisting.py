@@ -470,3 +470,180 @@ def test_unrated_parts_in_use_on_a_path():
     assert set(cap.unrated_on_path) == {"spider", "wire rope", "mast"}
     head = HoistPath("t", top_head_pullup=200e3, dead_load=1e3)
     assert path_capacity(head).unrated_on_path == ()
+
+
+# ---------------------------------------------------------------------------
+# the hoisting chain on a constructed rig, read from a rig file
+
+CONSTRUCTED_RIG = """
+units = "si"
+name = "constructed rig"
+
+[[path]]
+name = "main line"
+lines = 4
+sheave_factor = 1.04
+winch_line_pull = "50 kN"
+rope_breaking_force = "240 kN"
+rope_design_factor = 3
+mast_rating = "200 kN"
+dead_load = "15 kN"
+overpull_reserve = "30 kN"
+dynamic_factor = 1.2
+
+[[path.tool]]
+name = "elevator"
+kind = "elevator"
+rating = "150 kN"
+
+[[path]]
+name = "top head"
+top_head_pullup = "120 kN"
+top_head_pullup_basis = "net"
+top_head_pullup_net_of = "10 kN"
+dead_load = "12 kN"
+overpull_reserve = "20 kN"
+dynamic_factor = 1.1
+
+[[path.tool]]
+name = "clamp"
+kind = "clamp"
+rating = "130 kN"
+"""
+
+
+def _constructed_chains():
+    from rigplan.files.formats.rigfile import parse_rig
+    return rig_capacity(parse_rig(CONSTRUCTED_RIG, "rigs/constructed.toml"))
+
+
+def test_chain_main_line_by_hand():
+    # Block efficiency, 4 lines, K = 1.04 (API RP 9B form, ADE ch. 1):
+    # E = (1.04^4 - 1) / (4 x 1.04^4 x 0.04) = 0.16985856 / 0.18717737 = 0.907473
+    # n E = 3.629893.  Rated at hook (kN):
+    #   winch    50 x 3.629893        = 181.495
+    #   rope     240 / 3 x 3.629893   = 290.391
+    #   mast     200 (gross), elevator 150 (net: holds the string only)
+    # Gear counted: 15 for winch, rope and mast; 0 for the elevator.
+    # Shock, dynamic factor 1.2 (common practice, no source): R/1.2 - gear
+    #   winch 136.246, rope 226.993, mast 151.667, elevator 125.000
+    # Overpull, 30 kN (API RP 7G margin of overpull, from memory): R - gear - 30
+    #   winch 136.495, rope 245.391, mast 155.000, elevator 120.000
+    # -> elevator in overpull governs: string limit 120, hook limit 135.
+    main = _constructed_chains()[0]
+    kn = 1e3
+    e4 = 0.16985856 / 0.18717737
+    assert_allclose(main.block_efficiency, e4, rtol=1e-6)
+    parts = {p.name: p for p in main.parts}
+    assert [p.name for p in main.parts] == ["winch line pull", "wire rope", "mast", "elevator"]
+    assert_allclose([parts[k].rated_at_hook / kn for k in parts],
+                    [50 * 4 * e4, 80 * 4 * e4, 200, 150], rtol=1e-6)
+    assert_allclose([parts[k].rating / kn for k in parts], [50, 240, 200, 150], rtol=1e-12)
+    assert_allclose([parts[k].gear_counted / kn for k in parts], [15, 15, 15, 0], rtol=1e-12)
+    assert_allclose([parts[k].shock_limit / kn for k in parts],
+                    [50 * 4 * e4 / 1.2 - 15, 80 * 4 * e4 / 1.2 - 15, 200 / 1.2 - 15, 125],
+                    rtol=1e-6)
+    assert_allclose([parts[k].overpull_limit / kn for k in parts],
+                    [50 * 4 * e4 - 45, 80 * 4 * e4 - 45, 155, 120], rtol=1e-6)
+    assert_allclose(parts["winch line pull"].shock_limit / kn, 136.246, atol=5e-3)
+    assert main.governing == "elevator" and main.governing_case == "overpull"
+    assert_allclose(main.string_limit / kn, 120, rtol=1e-12)
+    assert_allclose(main.hook_limit / kn, 135, rtol=1e-12)
+    assert_allclose(main.dead_load / kn, 15, rtol=1e-12)
+    shock, overpull = main.cases
+    assert (shock.code, shock.factor, shock.source) == ("shock", 1.2, "common practice, no source")
+    assert overpull.code == "overpull" and "API RP 7G" in overpull.source
+    assert_allclose(overpull.allowance / kn, 30, rtol=1e-12)
+
+
+def test_chain_top_head_net_of_its_own_weight_is_not_reduced_again():
+    # Pull-up 120 kN net of the head's own 10 kN; the path's dead load 12 kN
+    # (head 10 + sub and clamp 2): the rating still carries 2 kN of gear.
+    #   shock 120/1.1 - 2 = 107.091, overpull 120 - 2 - 20 = 98   -> 98
+    #   clamp (holds the string only): 130/1.1 = 118.18, 130 - 20 = 110
+    # string limit 98 kN (head, overpull), hook limit 98 + 12 = 110 kN.
+    # Counting the head's weight again and stacking the cases, as a rating
+    # read as gross would, gives 120/1.1 - 20 - 12 = 77.09 kN.
+    head = _constructed_chains()[1]
+    kn = 1e3
+    parts = {p.name: p for p in head.parts}
+    hp = parts["top head pull-up"]
+    assert hp.basis == "net"
+    assert_allclose(hp.gear_counted / kn, 2, rtol=1e-12)
+    assert_allclose(hp.shock_limit / kn, 120 / 1.1 - 2, rtol=1e-12)
+    assert_allclose(hp.overpull_limit / kn, 98, rtol=1e-12)
+    assert_allclose(parts["clamp"].string_limit / kn, 110, rtol=1e-12)
+    assert head.governing == "top head pull-up" and head.governing_case == "overpull"
+    assert_allclose(head.string_limit / kn, 98, rtol=1e-12)
+    assert_allclose(head.hook_limit / kn, 110, rtol=1e-12)
+
+
+def test_net_rating_of_all_the_gear_takes_no_dead_load():
+    # Mast 100 kN net of all the gear (no net_of given), 15 kN dead load,
+    # no shock or overpull: the string may use all 100 kN; gross, 85 kN.
+    net = path_capacity(HoistPath("p", mast_rating=100e3, mast_basis="net", dead_load=15e3))
+    gross = path_capacity(HoistPath("p", mast_rating=100e3, dead_load=15e3))
+    assert_allclose(net.string_limit, 100e3, rtol=1e-12)
+    assert_allclose(net.hook_limit, 115e3, rtol=1e-12)
+    assert_allclose(gross.string_limit, 85e3, rtol=1e-12)
+
+
+def test_other_tool_can_be_declared_net():
+    # a hook ("other", gross by default) rated net of the 5 kN block above it
+    p = HoistPath("p", tools=(("hook", "other", 100e3, "net", 5e3),), dead_load=8e3)
+    cap = path_capacity(p)
+    assert_allclose(cap.parts[0].gear_counted, 3e3, rtol=1e-12)
+    assert_allclose(cap.string_limit, 97e3, rtol=1e-12)
+
+
+@pytest.mark.parametrize("change, key, fragment", [
+    (("lines = 4", "lines = 25"), "path[1].lines", "from 1 to 24"),
+    (("lines = 4", "lines = 100000"), "path[1].lines", "from 1 to 24"),
+    (("lines = 4", "lines = 0"), "path[1].lines", ">= 1"),
+    (("sheave_factor = 1.04", "sheave_factor = 1.5"), "path[1].sheave_factor", "from 1 to 1.2"),
+    (("sheave_factor = 1.04", "sheave_factor = 0.9"), "path[1].sheave_factor", "from 1 to 1.2"),
+    (("sheave_factor = 1.04", 'sheave_factor = "nan"'), "path[1].sheave_factor", ""),
+    (("rope_design_factor = 3", "rope_design_factor = 0.5"), "path[1].rope_design_factor",
+     "from 1 to 20"),
+    (("dynamic_factor = 1.2", "dynamic_factor = 12"), "path[1].dynamic_factor", "from 1 to 3"),
+    (('top_head_pullup_basis = "net"', 'top_head_pullup_basis = "nett"'),
+     "path[2].top_head_pullup_basis", "gross, net"),
+    (('top_head_pullup_basis = "net"', 'top_head_pullup_basis = "gross"'),
+     "path[2].top_head_pullup_net_of", "gross rating"),
+    (('top_head_pullup_net_of = "10 kN"', 'top_head_pullup_net_of = "13 kN"'),
+     "path[2].top_head_pullup_net_of", "dead_load"),
+    (('rating = "130 kN"', 'rating = "130 kN"\nbasis = "heavy"'), "path[2].tool[1].basis",
+     "gross, net"),
+])
+def test_bad_chain_keys_are_one_line_input_errors(change, key, fragment):
+    from rigplan.files.formats.rigfile import parse_rig
+    text = CONSTRUCTED_RIG.replace(*change, 1)
+    assert text != CONSTRUCTED_RIG
+    with pytest.raises(InputError) as err:
+        parse_rig(text, "rigs/constructed.toml")
+    msg = str(err.value)
+    assert msg.startswith(f"rigs/constructed.toml: {key}:"), msg
+    assert fragment in msg and "\n" not in msg
+
+
+def test_engine_rejects_lines_and_sheave_factor_that_would_give_nan():
+    # K^n overflows for huge n or K: E_n = inf/inf = nan; refused instead.
+    with pytest.raises(InputError, match="lines"):
+        HoistPath("p", lines=100000, winch_line_pull=1e3)
+    with pytest.raises(InputError, match="sheave factor"):
+        HoistPath("p", lines=4, sheave_factor=1e300)
+    with pytest.raises(InputError, match="lines"):
+        block_efficiency(np.array([4, 20000]))
+
+
+def test_chain_figure_names_are_defined_once():
+    from rigplan.engine.hoisting import ChainFigure
+    # each figure of ChainPart / HoistChain is named by one member
+    assert ChainFigure.RATED_AT_HOOK.key == "rated_at_hook"
+    assert str(ChainFigure.HOOK_LIMIT) == "hook limit"
+    fields = {"rating", "to_hook", "rated_at_hook", "gear_counted", "shock_limit",
+              "overpull_limit", "string_limit"}
+    import dataclasses as dc
+    from rigplan.engine.hoisting import ChainPart
+    assert fields <= {f.name for f in dc.fields(ChainPart)}
+    assert fields <= {f.key for f in ChainFigure}
