@@ -647,3 +647,63 @@ def test_chain_figure_names_are_defined_once():
     from rigplan.engine.hoisting import ChainPart
     assert fields <= {f.name for f in dc.fields(ChainPart)}
     assert fields <= {f.key for f in ChainFigure}
+
+
+def test_check_json_and_text_show_the_chain(tmp_path, capsys):
+    # The constructed rig's chain (hand arithmetic in test_chain_main_line_by_hand)
+    # reaches `rigplan check` JSON under the ChainFigure keys, and the text
+    # table names the same figures.
+    import json
+    from pathlib import Path
+    from rigplan.cli import main
+    rig = tmp_path / "constructed.toml"
+    rig.write_text(CONSTRUCTED_RIG, encoding="utf-8")
+    plan = Path(__file__).resolve().parents[1] / "strings" / "cv3-8in-a53b.toml"
+    main(["check", str(plan), "--rig", str(rig), "--path", "main line", "--format", "json"])
+    doc = json.loads(capsys.readouterr().out)
+    r = doc["rig"]
+    assert r["path"] == "main line" and r["governing_component"] == "elevator"
+    assert r["governing_case"] == "overpull"
+    assert_allclose([r["string_limit"], r["hook_limit"], r["dead_load"]],
+                    [120e3, 135e3, 15e3], rtol=1e-9)
+    elev = [c for c in r["components"] if c["name"] == "elevator"][0]
+    assert elev["basis"] == "net"
+    assert_allclose([elev["rating"], elev["rated_at_hook"], elev["gear_counted"],
+                     elev["shock_limit"], elev["overpull_limit"], elev["string_limit"]],
+                    [150e3, 150e3, 0.0, 125e3, 120e3, 120e3], rtol=1e-9)
+    assert [c["case"] for c in r["cases"]] == ["shock", "overpull"]
+    assert r["cases"][0]["source"] == "common practice, no source"
+    assert all(s["hook_limit"] == r["hook_limit"] for s in doc["steps"])
+    main(["check", str(plan), "--rig", str(rig), "--path", "main line", "--units", "si"])
+    text = capsys.readouterr().out
+    for label in ("rated at hook", "gear counted", "shock limit", "overpull limit",
+                  "string limit", "hook limit", "API RP 7G"):
+        assert label in text, label
+
+
+async def test_app_rig_screen_shows_the_chain(tmp_path):
+    # The app's rig screen shows each path's chain with the same figure names
+    # (values: the constructed rig, worked by hand above).
+    from pathlib import Path
+    from rigplan.tui.app import build_app
+    rig = tmp_path / "constructed.toml"
+    rig.write_text(CONSTRUCTED_RIG, encoding="utf-8")
+    import shutil
+    strings = Path(__file__).resolve().parents[1] / "strings"
+    for name in ("cv3-8in-a53b.toml", "cv3-8in-a53b.tally.csv"):   # the run log goes beside
+        shutil.copy(strings / name, tmp_path / name)
+    plan = tmp_path / "cv3-8in-a53b.toml"
+    app = build_app(plan, rig, units="si")
+    app.animation_level = "none"
+    async with app.run_test(size=(160, 60)) as pilot:
+        await pilot.press("5")
+        await pilot.pause()
+        from rich.console import Console
+        import io
+        console = Console(width=160, record=True, file=io.StringIO())
+        console.print(app.query_one("#rig-view").content)
+        text = console.export_text()
+    for label in ("rated at hook", "gear counted", "shock limit", "overpull limit",
+                  "string limit", "hook limit", "governs (overpull)", "string limit 120 kN",
+                  "hook limit 135 kN", "hook limit 110 kN"):
+        assert label in text, label

@@ -98,7 +98,7 @@ RATING_BASES = ("gross", "net")
 
 #: Where each load case comes from.
 SHOCK_SOURCE = "common practice, no source"
-OVERPULL_SOURCE = "API RP 7G, margin of overpull (from memory)"
+OVERPULL_SOURCE = "API RP 7G margin of overpull, from memory"
 
 _NAN = float("nan")
 
