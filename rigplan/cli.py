@@ -181,7 +181,8 @@ def cmd_rigs(args) -> int:
         for p in rig.paths:
             c = path_capacity(p)
             print(f"  path {p.name!r}: string limit {fmt(c.string_limit, Kind.FORCE, 'us+si', 0)}"
-                  f", governed by {c.governing}")
+                  f", hook limit {fmt(c.hook_limit, Kind.FORCE, 'us+si', 0)}, governed by "
+                  f"{c.governing}" + (f" ({c.governing_case})" if c.governing_case else ""))
     return EXIT_LANDS
 
 
