@@ -158,7 +158,9 @@ def cmd_rigs(args) -> int:
         for p in rig.paths:
             c = path_capacity(p)
             print(f"  path {p.name!r}: string limit {U.format(c.string_limit, 'force', 'us', 0)}"
-                  f" ({U.format(c.string_limit, 'force', 'si', 1)}), governed by {c.governing}")
+                  f" ({U.format(c.string_limit, 'force', 'si', 1)}), hook limit "
+                  f"{U.format(c.hook_limit, 'force', 'us', 0)}, governed by {c.governing}"
+                  + (f" ({c.governing_case})" if c.governing_case else ""))
     return EXIT_LANDS
 
 
