@@ -58,6 +58,8 @@ def _parser() -> argparse.ArgumentParser:
     d = sub.add_parser("demo", help="check every bundled demo job and list the verdicts")
     d.add_argument("--units", choices=("us", "si"), default="us")
     sub.add_parser("rigs", help="list the bundled rig profiles and their hoisting paths")
+    from rigplan.cli_rack import add_commands
+    add_commands(sub, job_args)
     return p
 
 
@@ -203,6 +205,9 @@ def main(argv=None) -> int:
             from rigplan.tui.app import run_app
             run_app(plan, rig, None, "us")
             return EXIT_LANDS
+        if args.command in ("place", "liner"):
+            from rigplan import cli_rack
+            return getattr(cli_rack, f"cmd_{args.command}")(args, _load)
         return {"check": cmd_check, "open": cmd_open, "report": cmd_report,
                 "demo": cmd_demo, "rigs": cmd_rigs}[args.command](args)
     except InputError as err:
