@@ -226,13 +226,20 @@ def test_grout_lighter_than_hole_fluid_is_a_warning():
 
 def test_other_warnings():
     r = parse_plan(MINIMAL.replace('depth = "500 ft"', 'depth = "150 ft"\ndiameter = "8 in"')
-                   .replace('kind = "blank"', 'kind = "float_shoe"')
-                   + "[design_factors]\ntension = 0.9\n", "t.toml")
+                   .replace('kind = "blank"', 'kind = "float_shoe"'), "t.toml")
     text = " | ".join(r.warnings)
     assert "longer than the hole" in text
     assert "not less than the hole diameter" in text
-    assert "below 1" in text
     assert "no [float_equipment]" in text
+
+
+def test_design_factor_below_1_refused_as_in_the_app():
+    # A design factor below 1 lets a load pass above the rating: refused in
+    # the file as in the app's prompt (common practice, no source).
+    with pytest.raises(InputError) as err:
+        parse_plan(MINIMAL + "[design_factors]\ntension = 0.9\n", "t.toml")
+    assert err.value.where.endswith("design_factors.tension")
+    assert "design factor >= 1" in str(err.value)
 
 
 # ---------------------------------------------------------------------------

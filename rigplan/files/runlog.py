@@ -63,7 +63,6 @@ LOG_SUFFIX = ".rigrun.sqlite"
 #: Columns of the exported tally.
 TALLY_COLUMNS = ("seq", "label", "measured_length_m", "status", "note", "time")
 
-EVENT_KINDS = ("run", "reject", "undo", "observe")
 
 _SCHEMA = """
 CREATE TABLE meta (
