@@ -260,6 +260,10 @@ class RigplanApp(App):
 
         self.push_screen(ChoiceScreen("Job settings", choices, choice_id="settings"), picked)
 
+    def action_rack(self) -> None:
+        from rigplan.tui.rack import RackScreen
+        self.push_screen(RackScreen(self.session))
+
     def action_help(self) -> None:
         self.push_screen(HelpScreen(help_sections()))
 
