@@ -30,6 +30,11 @@ def add_commands(sub, job_args) -> None:
                     help="spacing of the profile rows, e.g. '10 ft' (default: about 40 rows)")
 
 
+def _system(args) -> str:
+    from rigplan.cli import _system as system
+    return system(args)
+
+
 def _inputs(args, job) -> list:
     paths = [job.plan_path, job.rig_path]
     for name in ("tally", "caliper", "materials"):
@@ -79,7 +84,7 @@ def cmd_place(args, load) -> int:
         json.dump(doc, sys.stdout, allow_nan=False)
         sys.stdout.write("\n")
     else:
-        for line in placement_lines(result, tallied, args.units):
+        for line in placement_lines(result, tallied, _system(args)):
             print(line)
         if args.output:
             print(f"wrote {args.output} (use it with --tally, or t in the app)")
@@ -114,14 +119,14 @@ def cmd_liner(args, load) -> int:
         every = U.parse(args.every, "length", "ft" if args.units == "us" else "m", "--every")
         if not every > 0:
             raise InputError("--every", f"expected a length greater than zero, got {args.every!r}")
-    for line in liner_lines(lj, args.units):
+    for line in liner_lines(lj, _system(args)):
         print(line)
     from rich.console import Console
     from rich.table import Table
     t = Table(title="Old casing along the log")
     for col in ("depth", "mean ID", "smallest ID", "ellipticity", "collapse rating", "clearance"):
         t.add_column(col, justify="right")
-    for row in liner_profile_rows(lj, args.units, every):
+    for row in liner_profile_rows(lj, _system(args), every):
         t.add_row(*row)
     console = Console(highlight=False, width=None if sys.stdout.isatty() else 110)
     console.print(t)
@@ -133,3 +138,13 @@ def cmd_liner(args, load) -> int:
     from rigplan import CAUTION
     print(f"Caution: {CAUTION}")
     return 0 if ok else 1
+
+
+def liner_of(job, landing):
+    """The liner checks of a plan that names its old casing and caliper log (else None)."""
+    from rigplan.files.formats.linerfile import read_existing_casing
+    from rigplan.files.linerjob import liner_job
+    spec = read_existing_casing(job.plan_path)
+    if spec is None or spec.caliper_log is None:
+        return None
+    return liner_job(job.plan_path, job.plan, landing)
