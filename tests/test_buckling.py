@@ -271,3 +271,80 @@ def test_more_set_down_never_shortens_the_buckled_length(s1, s2):
     assert b.sinusoidal_length >= a.sinusoidal_length - 1e-9
     assert b.helical_length >= a.helical_length - 1e-9
     assert np.nan_to_num(b.stress_utilization[0]) >= np.nan_to_num(a.stress_utilization[0]) - 1e-12
+
+
+def test_max_set_down_keeps_the_limits_exactly():
+    # The set-down weight shifts the effective and the true force by the same
+    # amount everywhere (a reaction at the shoe: Lubinski 1951), so the
+    # largest set-down that keeps a screen straight is S - (C - F_sin), and
+    # re-checking with it puts the screen exactly at its critical load.
+    od, wall, length, n = 8.625 * INCH, 0.322 * INCH, 20 * FT, 60
+    kinds = ["screen"] * 3 + ["blank"] * (n - 3)
+    j = _string(n, od, wall, length, kinds=kinds)
+    hole = Hole(fluid_density=1000.0, diameter=12.25 * INCH)
+    screens = np.array([k == "screen" for k in kinds])
+    e = np.full(n, 200e9)
+    s = 150e3
+    chk = check_buckling(j, step_profile(j, hole, Closure(), n, slack_off=s), hole.diameter, e,
+                         1.6, set_down=s, screens=screens)
+    assert chk.mode[0] > STRAIGHT
+    smax = chk.max_set_down
+    assert 0 < smax < s
+    again = check_buckling(j, step_profile(j, hole, Closure(), n, slack_off=smax),
+                           hole.diameter, e, 1.6, set_down=smax, screens=screens)
+    worst = np.max(again.compression[:3] - again.sinusoidal_load[:3])
+    stress = np.nanmax(again.stress_utilization)
+    # at the largest set-down one of the two limits is just reached
+    assert (abs(worst) < 1e-6 * s) or abs(stress - 1.0) < 1e-9
+    assert worst <= 1e-6 * s and stress <= 1.0 + 1e-9
+    assert_allclose(again.max_set_down, smax, rtol=1e-9)
+
+
+# ---------------------------------------------------------------------------
+# in the plan: a limit in the verdict, not a note
+
+
+def _plan(set_down, hole_diameter=12.25 * INCH):
+    from rigplan.engine.hoisting import HoistPath, Rig
+    from rigplan.engine.planner import plan_landing
+    from rigplan.engine.stringmodel import DesignFactors, Settings
+    od, wall, length, n = 8.625 * INCH, 0.322 * INCH, 20 * FT, 60
+    kinds = ["screen"] * 3 + ["blank"] * (n - 3)
+    j = _string(n, od, wall, length, kinds=kinds)
+    j = JointArrays(**{**j.__dict__, "modulus": np.full(n, 200e9),
+                       "collapse_rating": np.full(n, 5e6), "burst_rating": np.full(n, 5e6),
+                       "body_rating": np.full(n, 2e6), "connection_rating": np.full(n, 2e6)})
+    rig = Rig("r", paths=(HoistPath("p", mast_rating=2e6),))
+    hole = Hole(fluid_density=1000.0, diameter=hole_diameter)
+    settings = Settings(set_down_weight=set_down, design=DesignFactors())
+    return plan_landing(j, hole, rig, settings)
+
+
+def test_set_down_that_buckles_a_screen_is_a_limit_in_the_verdict():
+    # Lubinski (1950) critical load of the screens (as built in _string):
+    # a set-down far above it buckles them -> cannot land, the limit governs,
+    # and the crew is told the most it may set down; at that weight it lands.
+    from rigplan.engine.findings import LimitName, Verdict
+    from rigplan.engine.planner import PlanCode
+    lp = _plan(150e3)
+    assert lp.verdict == Verdict.CANNOT_LAND
+    assert lp.governing.name == LimitName.SCREEN_BUCKLING and lp.governing.joint == 1
+    assert lp.governing.margin < 0
+    codes = [f.code for f in lp.reasons]
+    assert PlanCode.OVER_LIMIT in codes and PlanCode.SET_DOWN_TOO_HEAVY in codes
+    smax = [f for f in lp.reasons if f.code == PlanCode.SET_DOWN_TOO_HEAVY][0].value("max_set_down")
+    assert_allclose(smax, lp.buckling.max_set_down, rtol=1e-12)
+    ok = _plan(smax * (1 - 1e-6))
+    assert ok.verdict == Verdict.LANDS_OPEN
+    names = {lim.name for lim in ok.chosen.limits}
+    assert {LimitName.SCREEN_BUCKLING, LimitName.BUCKLING_STRESS} <= names
+
+
+def test_no_set_down_no_buckling_check_and_unknown_hole_is_unrated():
+    from rigplan.engine.findings import Verdict
+    assert _plan(0.0).buckling is None
+    lp = _plan(150e3, hole_diameter=float("nan"))
+    # buckled, but the bending stress needs the hole diameter: not assumed
+    assert lp.buckling.unknown.any()
+    assert any(f.context.get("part") == "buckling" for f in lp.unrated)
+    assert lp.verdict in (Verdict.CANNOT_LAND, Verdict.CANNOT_CONFIRM)

@@ -452,6 +452,9 @@ class BucklingCheck:
     unknown : joints in effective compression whose buckling or stress
         cannot be worked out (modulus, hole diameter or yield unknown)
     design_factor : the factor applied [-]
+    max_set_down : largest set-down weight that keeps every screen straight
+        and the combined stress of every joint now in compression within
+        yield / design factor [N] (nan: not worked out)
     """
 
     compressed_length: float
@@ -467,6 +470,7 @@ class BucklingCheck:
     stress_utilization: np.ndarray
     unknown: np.ndarray
     design_factor: float
+    max_set_down: float = float("nan")
 
     @property
     def buckles(self) -> bool:
@@ -486,7 +490,8 @@ def _length_over(threshold, f_bottom, f_top, length):
 
 
 def check_buckling(joints, profile, hole_diameter: float, modulus, design_factor: float = 1.0,
-                   inclination: float = 0.0) -> BucklingCheck:
+                   inclination: float = 0.0, set_down: float = float("nan"),
+                   screens=None) -> BucklingCheck:
     """Buckling and combined stress below the neutral point of a landed string.
 
     For each joint in effective compression (``F_eff < 0`` at a face):
@@ -517,6 +522,17 @@ def check_buckling(joints, profile, hole_diameter: float, modulus, design_factor
         Factor on the combined stress [-], >= 1.
     inclination : float
         Hole inclination [rad]; 0 for a vertical hole.
+    set_down : float
+        The set-down weight in ``profile`` [N]; with it, ``max_set_down`` is
+        worked out.  A set-down weight changes the true and the effective
+        force everywhere by the same amount (a reaction at the shoe), so
+        a screen stays straight while ``S - (C_j - F_sin,j)`` is not
+        exceeded, ``C_j`` its compression under ``S``; and the combined
+        stress ``DF (|F| + d) / A_s + DF r D (C + d) / (4 I) = Y`` gives the
+        change ``d`` a compressed joint allows (true force compressive; the
+        bending term only once ``C + d`` passes ``F_sin``).
+    screens : array of bool, optional
+        Which joints are screens (for ``max_set_down``).
 
     Returns
     -------
@@ -566,6 +582,29 @@ def check_buckling(joints, profile, hole_diameter: float, modulus, design_factor
         util = np.where(in_comp, design_factor * (axial + bend) / yield_strength, np.nan)
     unknown = in_comp & (np.isnan(f_sin) | np.isnan(bend) | ~np.isfinite(util))
 
+    max_set_down = float("nan")
+    if np.isfinite(set_down) and set_down > 0:
+        allowed = [np.inf]
+        if screens is not None:
+            scr = np.asarray(screens, dtype=bool)[:k] & in_comp
+            if np.any(scr):
+                allowed.append(float(set_down - np.max(comp[scr] - f_sin[scr])))
+        # the joint's combined stress grows with the set-down d added:
+        # straight while C + d <= F_sin, then with the helix bending (a jump)
+        bend_per_force = r * od / (4.0 * moment)
+        compressive = true <= 0
+        with np.errstate(invalid="ignore", divide="ignore"):
+            spare = yield_strength / design_factor - axial
+            d_straight = spare * area
+            d_buckled = (spare - bend_per_force * comp) / (1.0 / area + bend_per_force)
+            room = np.where(comp + d_buckled > f_sin, d_buckled,
+                            np.minimum(d_straight, f_sin - comp))
+        use = in_comp & compressive & np.isfinite(room)
+        if np.any(use):
+            allowed.append(float(set_down + np.min(room[use])))
+        if not np.any(unknown):
+            max_set_down = max(min(allowed), 0.0)
+
     return BucklingCheck(
         compressed_length=float(np.sum(_length_over(0.0, -eb, -et, length))),
         sinusoidal_length=float(np.sum(_length_over(f_sin, -eb, -et, length))),
@@ -573,5 +612,5 @@ def check_buckling(joints, profile, hole_diameter: float, modulus, design_factor
         clearance=r, compression=comp, sinusoidal_load=f_sin, helical_load=f_hel,
         mode=mode.astype(int), axial_stress=np.where(in_comp, axial, np.nan),
         bending_stress=np.where(in_comp, bend, np.nan), stress_utilization=util,
-        unknown=unknown, design_factor=float(design_factor),
+        unknown=unknown, design_factor=float(design_factor), max_set_down=max_set_down,
     )
