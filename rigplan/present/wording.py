@@ -658,8 +658,9 @@ def tally_cells(session) -> list:
             "od": number(spec.od, "diameter", sys_),
             "wall": number(spec.wall, "diameter", sys_),
             "length": number(spec.length, "length", sys_),
-            "measured_length": "" if spec.measured_length is None
-            else number(spec.measured_length, "length", sys_),
+            "measured_length": ("planned" if session.length_basis(spec.label) == "planned"
+                                else "" if spec.measured_length is None
+                                else number(spec.measured_length, "length", sys_)),
             "connection": spec.connection,
             "top_depth": top,
             "max_tension": tension,
@@ -712,14 +713,28 @@ def run_cells(session) -> list:
             fill = fill_marker(lp, k + 1)
         else:
             shoe = hook = fill = ""
-        length = spec.run_length
         rows.append((spec.label, {
             "step": step, "label": spec.label, "status": joint_status(session, spec, reason=True),
-            "length": number(length, "length", sys_) + ("" if spec.measured_length is not None
-                                                          else " (plan)"),
+            "length": length_cell(session, spec),
             "shoe": shoe, "hook": hook, "fill": fill,
         }))
     return rows
+
+
+def length_basis(session, spec) -> str:
+    """``measured`` (taped on site, by the run log or a tally), ``planned``
+    (run on the planned length, nothing measured) or ``plan`` (not run yet,
+    no tally length)."""
+    basis = session.length_basis(spec.label)
+    if basis is not None:
+        return basis
+    return "measured" if spec.measured_length is not None else "plan"
+
+
+def length_cell(session, spec) -> str:
+    """A joint's length with how it is known: ``20.08 measured``, ``20.00
+    planned`` (in the hole, not measured) or ``20.00 plan`` (not run)."""
+    return f"{number(spec.run_length, 'length', session.units)} {length_basis(session, spec)}"
 
 
 def fill_marker(lp, step: int) -> str:
