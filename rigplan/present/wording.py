@@ -778,3 +778,52 @@ def rig_chains(session) -> list:
     lp = session.landing
     in_use = lp.path.path if lp is not None else session.path_name
     return [(cap, cap.path == in_use) for cap in rig_capacity(session.rig)]
+
+
+# ---------------------------------------------------------------------------
+# where it lands
+
+_LANDING_ITEM = {"shoe": "Shoe", "float collar": "Float collar", "screen": "Screen"}
+
+
+def _span(labels) -> str:
+    return labels[0] if len(labels) == 1 else f"{labels[0]}-{labels[-1]}"
+
+
+def _signed(value, system: str) -> str:
+    if value != value:
+        return "n/a"
+    text = fmt(abs(value), Kind.DEPTH, system, 2)
+    return ("+" if value > 0 else "-" if value < 0 else "") + text
+
+
+def landing_lines(picture, system: str) -> list:
+    """The landing picture in words, one line per item: as-run depth, the
+    planned one and the shift; the shoe against TD; a WARNING line for each
+    screen interval that moved more than the plan's tolerance."""
+    td = picture.hole_depth
+    lines = [f"Where it lands (as run; TD {fmt(td, Kind.DEPTH, system, 2)}):"]
+    for r in picture.rows:
+        if r.item == "screen":
+            name = f"Screen {_span(r.labels)}"
+            here = (f"{fmt(r.top, Kind.DEPTH, system, 2)} to {fmt(r.bottom, Kind.DEPTH, system, 2)}"
+                    if r.bottom == r.bottom else "set aside")
+            plan = (f"{fmt(r.planned_top, Kind.DEPTH, system, 2)} to "
+                    f"{fmt(r.planned_bottom, Kind.DEPTH, system, 2)}")
+        else:
+            name = ("Shoe" if r.item == "shoe"
+                    else f"Float collar (top of {r.labels[0]})")
+            here = fmt(r.bottom, Kind.DEPTH, system, 2)
+            plan = fmt(r.planned_bottom, Kind.DEPTH, system, 2)
+        line = f"  {name}: {here}; planned {plan}; shift {_signed(r.shift, system)}"
+        if r.item == "shoe" and picture.shoe_off_bottom == picture.shoe_off_bottom:
+            off = picture.shoe_off_bottom
+            line += (f"; {fmt(off, Kind.DEPTH, system, 2)} off bottom" if off >= 0 else
+                     f"; {fmt(-off, Kind.DEPTH, system, 2)} LONGER THAN THE HOLE")
+        lines.append(line)
+    for r in picture.moved:
+        lines.append(f"WARNING: screen {_span(r.labels)} lands "
+                     f"{_signed(r.shift, system)} from its planned depth, more than the "
+                     f"{fmt(picture.tolerance, Kind.DEPTH, system, 2)} the plan allows: "
+                     "check the tally and the screen placement before going on")
+    return lines
