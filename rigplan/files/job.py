@@ -223,7 +223,7 @@ def rated_joints(plan: StringPlan):
     if not specs:
         raise InputError(plan.source or plan.name, "the string has no joints to run")
     try:
-        return rate_joints(specs)
+        return rate_joints(specs, temperature=plan.hole.temperature)
     except InputError:
         raise
     except (ValueError, KeyError) as err:
