@@ -56,6 +56,8 @@ def _parser() -> argparse.ArgumentParser:
     d = sub.add_parser("demo", help="check every bundled demo job and list the verdicts")
     d.add_argument("--units", choices=("us", "si"), default="us")
     sub.add_parser("rigs", help="list the bundled rig profiles and their hoisting paths")
+    from rigplan.cli_rack import add_commands
+    add_commands(sub, job_args)
     return p
 
 
@@ -158,7 +160,9 @@ def cmd_rigs(args) -> int:
         for p in rig.paths:
             c = path_capacity(p)
             print(f"  path {p.name!r}: string limit {U.format(c.string_limit, 'force', 'us', 0)}"
-                  f" ({U.format(c.string_limit, 'force', 'si', 1)}), governed by {c.governing}")
+                  f" ({U.format(c.string_limit, 'force', 'si', 1)}), hook limit "
+                  f"{U.format(c.hook_limit, 'force', 'us', 0)}, governed by {c.governing}"
+                  + (f" ({c.governing_case})" if c.governing_case else ""))
     return EXIT_LANDS
 
 
@@ -179,6 +183,9 @@ def main(argv=None) -> int:
             from rigplan.tui.app import run_app
             run_app(plan, rig, None, "us")
             return EXIT_LANDS
+        if args.command in ("place", "liner"):
+            from rigplan import cli_rack
+            return getattr(cli_rack, f"cmd_{args.command}")(args, _load)
         return {"check": cmd_check, "open": cmd_open, "report": cmd_report,
                 "demo": cmd_demo, "rigs": cmd_rigs}[args.command](args)
     except InputError as err:

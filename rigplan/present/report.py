@@ -89,7 +89,7 @@ def plan_dict(landing, plan=None, warnings=(), rig_name: str = "") -> dict:
     steps = [{
         "joint": k + 1, "label": j.label[k], "shoe_depth": _f(loads.shoe_depth[k]),
         "hook_load": _f(hook[k]), "string_load": _f(loads.string_load[k]),
-        "capacity": _f(hook_limit), "margin": _f(chk.capacity_margin[k]),
+        "hook_limit": _f(hook_limit), "margin": _f(chk.capacity_margin[k]),
         "fill_level": _f(fill_level[k]),
     } for k in range(n)]
     shoe = loads.shoe_depth[-1]
@@ -133,15 +133,7 @@ def plan_dict(landing, plan=None, warnings=(), rig_name: str = "") -> dict:
             "name": plan.name, "well": plan.well, "site": plan.site,
             "hole_fluid_density": _f(plan.hole.fluid_density),
             "hole_fluid_level": _f(plan.hole.fluid_level), "hole_depth": _f(plan.hole.depth)},
-        "rig": {
-            "name": rig_name, "path": landing.path.path,
-            "string_limit": _f(landing.path.string_limit), "hook_limit": _f(hook_limit),
-            "dead_load": _f(landing.dead_load), "governing_component": landing.path.governing,
-            "components": [{"name": c[0], "kind": c[1], "rating_at_hook": _f(c[2]),
-                            "allowed_string_load": _f(c[3])} for c in landing.path.components],
-            "unrated_components": list(landing.path.unrated_on_path),
-            "parts_not_on_path": [c for c in landing.path.unrated
-                                  if c not in landing.path.unrated_on_path]},
+        "rig": {"name": rig_name, **chain_dict(landing.path)},
         "closure": closure_name(chk.closure),
         "switch_joint": landing.switch_joint,
         "next_action": next_action(landing),
@@ -173,8 +165,10 @@ def plan_dict(landing, plan=None, warnings=(), rig_name: str = "") -> dict:
             "closure": closure_name(opt.closure), "valve_joint": opt.closure.valve_joint,
             "fill_density": _f(opt.fill_density),
             "fill_to_top_through": s.fill_to_top_through,
-            "top_ups": [{"joint": t.joint, "volume": _f(t.volume),
+            "top_ups": [{"joint": t.joint, "before_joint": t.before_joint or None,
+                         "volume": _f(t.volume),
                          "level_after": _f(t.level_after)} for t in s.top_ups],
+            "lowered_below_window": list(s.lowered_below_window),
             "least_margin": _f(s.least_margin), "least_margin_step": s.least_margin_step,
             "final_fill_volume": _f(s.added_volume),
             "steps": [{"joint": k + 1, "fill_level": _f(s.fill_level[k]),
@@ -206,6 +200,76 @@ def plan_dict(landing, plan=None, warnings=(), rig_name: str = "") -> dict:
     if g is not None:
         out["grouting"] = grouting_dict(g)
     return out
+
+
+def chain_dict(chain) -> dict:
+    """JSON view of a hoisting chain (:class:`rigplan.engine.hoisting.HoistChain`):
+    every figure under the key of its :class:`~rigplan.engine.hoisting.ChainFigure`."""
+    from rigplan.engine.hoisting import ChainFigure as F
+    return {
+        "path": chain.path, F.STRING_LIMIT.key: _f(chain.string_limit),
+        F.HOOK_LIMIT.key: _f(chain.hook_limit), F.DEAD_LOAD.key: _f(chain.dead_load),
+        "governing_component": chain.governing,
+        "governing_case": None if chain.governing_case is None else str(chain.governing_case),
+        "lines": chain.lines, "sheave_factor": _f(chain.sheave_factor),
+        "block_efficiency": _f(chain.block_efficiency),
+        "cases": [{"case": str(c.code), "factor": _f(c.factor), "allowance": _f(c.allowance),
+                   "source": c.source} for c in chain.cases],
+        "components": [{"name": p.name, "kind": p.kind, "basis": p.basis,
+                        **{f.key: _f(getattr(p, f.key)) for f in F
+                           if f not in (F.HOOK_LIMIT, F.DEAD_LOAD)},
+                        "governing_case": str(p.governing_case)} for p in chain.parts],
+        "unrated_components": list(chain.unrated_on_path),
+        "parts_not_on_path": [c for c in chain.unrated if c not in chain.unrated_on_path],
+    }
+
+
+def chain_table(chain, system: str, title: str = ""):
+    """The hoisting chain as a rich table: each part's rating, at the hook,
+    the gear counted, both load cases and the string limit, with the cases'
+    sources and the hook limit in the caption."""
+    from rich.table import Table
+    from rich.text import Text
+    from rigplan.engine.hoisting import ChainFigure as F, LoadCaseCode
+    unit = U.unit_label("force", system)
+    t = Table(title=Text(title or f"Hoisting chain: {chain.path}", style="bold"),
+              title_justify="left", expand=False)
+    t.add_column(Text(f"[{unit}]"), no_wrap=True)
+
+    def n(v):
+        return _q(v, "force", system, 0).removesuffix(" " + unit)
+
+    for p in chain.parts:
+        t.add_column(p.name + (f"\ngoverns ({p.governing_case})" if p.name == chain.governing
+                               else ""), justify="right",
+                     style="bold" if p.name == chain.governing else None)
+    for u in chain.unrated:
+        t.add_column(f"{u}\nunrated, not counted", justify="right")
+    blank = [""] * len(chain.unrated)
+    t.add_row("basis", *(p.basis for p in chain.parts), *blank)
+    for fig in (F.RATING, F.TO_HOOK, F.RATED_AT_HOOK, F.GEAR_COUNTED, F.SHOCK_LIMIT,
+                F.OVERPULL_LIMIT, F.STRING_LIMIT):
+        cells = [f"{getattr(p, fig.key):.3f}" if fig == F.TO_HOOK else n(getattr(p, fig.key))
+                 for p in chain.parts]
+        t.add_row(str(fig), *cells, *blank)
+    cases = {c.code: c for c in chain.cases}
+    words = []
+    if LoadCaseCode.SHOCK in cases:
+        c = cases[LoadCaseCode.SHOCK]
+        words.append(f"shock: {c.factor:g} x (string + gear counted) <= rated at hook "
+                     f"({c.source})")
+    if LoadCaseCode.OVERPULL in cases:
+        c = cases[LoadCaseCode.OVERPULL]
+        words.append(f"overpull: string + gear counted + {_q(c.allowance, 'force', system, 0)} "
+                     f"<= rated at hook ({c.source})")
+    words.append(f"{chain.lines} line(s), block efficiency {chain.block_efficiency:.3f} "
+                 f"(sheave factor {chain.sheave_factor:g}, API RP 9B)")
+    words.append(f"{F.STRING_LIMIT} {_q(chain.string_limit, 'force', system, 0)} + "
+                 f"{F.DEAD_LOAD} {_q(chain.dead_load, 'force', system, 0)} = "
+                 f"{F.HOOK_LIMIT} {_q(chain.hook_limit, 'force', system, 0)}")
+    t.caption = Text("; ".join(words))
+    t.caption_justify = "left"
+    return t
 
 
 def grouting_dict(g) -> dict:
@@ -267,8 +331,10 @@ def text_renderables(landing, plan=None, system: str = "us", warnings=(), rig_na
         head.append(f"\nGoverning: {gov.name} at {gov.where}, margin {_pct(gov.margin)}")
     cap = landing.path
     head.append(f"\nRig: {rig_name}, path '{cap.path}': hook limit "
-                f"{_q(cap.hook_limit, 'force', system, 0)} (string {_q(cap.string_limit, 'force', system, 0)}"
-                f" after {_q(landing.dead_load, 'force', system, 0)} dead load), governed by {cap.governing}")
+                f"{_q(cap.hook_limit, 'force', system, 0)} (string limit "
+                f"{_q(cap.string_limit, 'force', system, 0)} + dead load "
+                f"{_q(landing.dead_load, 'force', system, 0)}), governed by {cap.governing}"
+                + (f" ({cap.governing_case})" if cap.governing_case else ""))
     head.append(f"\nNext action: {next_action(landing, system)}")
     if landing.switch_joint:
         head.append(f"\nOpen-ended the string load passes the limit at joint "
@@ -278,6 +344,7 @@ def text_renderables(landing, plan=None, system: str = "us", warnings=(), rig_na
                     f"{_q(landing.neutral_point, 'length', system, 1)}")
     out.append(Panel(head, title="rigplan", expand=False))
 
+    out.append(chain_table(cap, system))
     for r in landing.reasons:
         out.append(Text(f"  - {r}"))
     for r in landing.notes:
@@ -332,7 +399,7 @@ def text_renderables(landing, plan=None, system: str = "us", warnings=(), rig_na
         out.append(t)
 
     st_t = Table(title=f"Running steps ({closure_name(chk.closure)})")
-    for c in ("joint", "shoe depth", "fill level", "hook load", "capacity", "margin"):
+    for c in ("joint", "shoe depth", "fill level", "hook load", "hook limit", "margin"):
         st_t.add_column(c, justify="right")
     actions = step_actions(landing, system)
     st_t.add_column("crew action")

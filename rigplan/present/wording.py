@@ -358,7 +358,7 @@ def running_summary(session) -> list:
         lines.append(f"Hook load now (planned): {fmt(now, 'force', sys_)}")
         if k < n:
             lines.append(f"After the next joint: {fmt(loads[k], 'force', sys_)}")
-    lines.append(f"Hook capacity ({lp.path.path}): {fmt(lp.path.hook_limit, 'force', sys_)}")
+    lines.append(f"Hook limit ({lp.path.path}): {fmt(lp.path.hook_limit, 'force', sys_)}")
     if k >= 1:
         lines.append(f"Capacity margin now: {percent(lp.chosen.capacity_margin[k - 1])}")
     lines.append(f"Next: {fill_instruction(lp, k, sys_)}")
@@ -380,19 +380,11 @@ def weight_text(check, system: str) -> tuple:
             tuple("likely: " + c for c in check.causes))
 
 
-def rig_tables(session) -> list:
-    """Per hoisting path: (name, in use, governing, rows, unrated, limits).
-
-    rows are ``(component, rating at hook, allowed string load, governs)``.
-    """
+def rig_chains(session) -> list:
+    """Per hoisting path: ``(chain, in use)``, the chain from
+    :func:`rigplan.engine.hoisting.rig_capacity` (shown with
+    :func:`rigplan.present.report.chain_table`)."""
     from rigplan.engine.hoisting import rig_capacity
-    sys_ = session.units
     lp = session.landing
     in_use = lp.path.path if lp is not None else session.path_name
-    out = []
-    for cap in rig_capacity(session.rig):
-        rows = [(name, number(rating, "force", sys_), number(allowed, "force", sys_),
-                 name == cap.governing) for name, _kind, rating, allowed in cap.components]
-        out.append((cap.path, cap.path == in_use, cap.governing, rows, tuple(cap.unrated),
-                    (fmt(cap.string_limit, "force", sys_), fmt(cap.hook_limit, "force", sys_))))
-    return out
+    return [(cap, cap.path == in_use) for cap in rig_capacity(session.rig)]

@@ -206,7 +206,8 @@ class RunningPane(Horizontal):
 
 
 class RigPane(VerticalScroll):
-    """Each hoisting path: components, ratings at the hook, allowed string load."""
+    """Each hoisting path's chain: every part's rating, at the hook, the gear
+    counted, the shock and overpull cases and the string limit."""
 
     def compose(self) -> ComposeResult:
         yield Static("", id="rig-view", markup=False)
@@ -214,23 +215,10 @@ class RigPane(VerticalScroll):
     def show(self, session) -> None:
         rig = session.rig
         parts = []
-        for name, in_use, governing, rows, unrated, (s_lim, h_lim) in P.rig_tables(session):
-            title = f"{name}{'  (in use)' if in_use else ''}"
-            t = Table(title=Text(title, style="bold"), title_justify="left", expand=False)
-            unit = U.unit_label("force", session.units)
-            t.add_column(Text("Component"))
-            t.add_column(Text(f"Rating at hook [{unit}]"), justify="right")
-            t.add_column(Text(f"Allowed string load [{unit}]"), justify="right")
-            t.add_column(Text(""))
-            for comp, rating, allowed, gov in rows:
-                t.add_row(Text(comp), rating, allowed,
-                          "governs" if gov else "", style="bold" if gov else None)
-            for u in unrated:
-                t.add_row(Text(u), "unrated", "not counted", "")
-            t.caption = Text(f"string limit {s_lim}, hook limit {h_lim}; governed by "
-                             f"{governing or 'nothing rated'}")
-            t.caption_justify = "left"
-            parts.append(t)
+        from rigplan.present.report import chain_table
+        for chain, in_use in P.rig_chains(session):
+            parts.append(chain_table(chain, session.units,
+                                     f"{chain.path}{'  (in use)' if in_use else ''}"))
         ls = rig.landing_string
         from rich.console import Group
         head = Text(f"Rig: {rig.name}" + (f"   {rig.notes}" if rig.notes else ""), style="bold")
