@@ -213,16 +213,17 @@ def test_pvc_ratings_derated_for_temperature():
     assert_allclose(steel.collapse_rating, rate_joints([joint()]).collapse_rating, rtol=1e-15)
 
 
-def test_pvc_above_the_derating_table_has_no_rating():
+def test_pvc_above_the_derating_table_is_unrated():
     # The derating table stops at 140 F, the highest recommended service
     # temperature of PVC (Uni-Bell Handbook of PVC Pipe, from memory): above it
-    # the pressure and collapse ratings are 0 and a finding says why.
+    # the pressure and collapse ratings are unrated (never assumed) and a
+    # finding says why.
     from rigplan.engine.rating import RatingCode
     od = 8.625
     arrays = rate_joints([joint("P1", material="pvc", od=od, wall=od / 21, connection="spline",
                                 collapse_rating=150 * psi)], temperature=65.0)
-    assert arrays.collapse_rating[0] == 0.0 and arrays.burst_rating[0] == 0.0
-    assert arrays.collapse_basis == ("maker's figure",)       # entered, and derated too
+    assert math.isnan(arrays.collapse_rating[0]) and math.isnan(arrays.burst_rating[0])
+    assert arrays.collapse_basis == arrays.burst_basis == ("unrated",)
     assert [f.code for f in arrays.findings] == [RatingCode.ABOVE_DERATING_TABLE]
 
 

@@ -59,8 +59,8 @@ def _f_to_c(deg_f):
 
 #: Temperature derating tables: key -> (temperatures [C], factors [-], source).
 #: A rating at the reference temperature times the factor at the service
-#: temperature, interpolated linearly; 1.0 at or below the first entry; 0.0
-#: above the last one (not recommended for service there: no rating).
+#: temperature, interpolated linearly; 1.0 at or below the first entry; nan
+#: above the last one (not recommended for service there: unrated).
 TEMPERATURE_DERATING = {
     "pvc": (
         tuple(_f_to_c(t) for t in (73.4, 80.0, 90.0, 100.0, 110.0, 120.0, 130.0, 140.0)),
@@ -80,7 +80,7 @@ def temperature_factor(table, temperature):
     """Derating factor of a thermoplastic rating at a service temperature.
 
     .. math:: f(T) = \\text{linear interpolation of the table};
-        \\; f = 1 \\; (T \\le T_0); \\; f = 0 \\; (T > T_{max})
+        \\; f = 1 \\; (T \\le T_0); \\; \\text{unrated} \\; (T > T_{max})
 
     Parameters
     ----------
@@ -93,10 +93,10 @@ def temperature_factor(table, temperature):
     Returns
     -------
     float or ndarray
-        Factor on the rating at 73.4 F / 23 C [-], 0 <= f <= 1.  Nothing is
+        Factor on the rating at 73.4 F / 23 C [-], 0 < f <= 1.  Nothing is
         gained below 73 F (the factor stays 1); above the table's last
         temperature (140 F / 60 C for PVC) the material is not recommended
-        and has no rating (0).
+        and has no rating: nan (unrated, never assumed).
 
     Notes
     -----
@@ -117,8 +117,8 @@ def temperature_factor(table, temperature):
         out = np.ones_like(t)
     else:
         temps, factors, _ = TEMPERATURE_DERATING[table]
-        out = np.interp(t, temps, factors, left=1.0, right=0.0)
-        out = np.where(t > temps[-1] + 1e-9, 0.0, out)
+        out = np.interp(t, temps, factors, left=1.0, right=np.nan)
+        out = np.where(t > temps[-1] + 1e-9, np.nan, out)
         out = np.where(np.isnan(t), np.nan, out)
     return float(out) if out.ndim == 0 else out
 

@@ -86,13 +86,13 @@ class RatingCode(enum.StrEnum):
 
     #: a measured wall under the minimum its standard allows, (1 - u) x the
     #: specified wall (quantities ``measured_wall``, ``minimum_wall``)
-    WALL_UNDER_MINIMUM = "wall under the standard's minimum"
+    WALL_UNDER_MINIMUM = "wall_under_minimum"
     #: a measured ellipticity above the one the plan assumed for the joint
     #: (quantities ``ellipticity``, ``assumed_ellipticity``)
-    ELLIPTICITY_ABOVE_ASSUMED = "ellipticity above the plan's assumption"
+    ELLIPTICITY_ABOVE_ASSUMED = "ellipticity_above_assumed"
     #: a thermoplastic joint above the last temperature of its derating table:
-    #: no pressure or collapse rating there (quantity ``temperature``)
-    ABOVE_DERATING_TABLE = "above the derating table's temperature"
+    #: its pressure and collapse ratings are unrated there (quantity ``temperature``)
+    ABOVE_DERATING_TABLE = "above_derating_table"
 
 
 def _is_given(value):
@@ -568,6 +568,7 @@ def rate_each_joint(specs: Sequence[JointSpec], materials: Mapping[str, Material
     burst = burst * factor
     k = formula_burst & np.isfinite(burst)
     burst_basis[k] = wall_basis[k]
+    burst_basis[np.isnan(burst)] = "unrated"
 
     # body -------------------------------------------------------------------
     body = entered("tensile_rating")
@@ -638,7 +639,7 @@ def _joint_findings(i, spec, material, default_ellipticity, factor, temperature,
                 "assumed_ellipticity": (assumed, Kind.RATIO),
                 "od_max": (spec.dmax, Kind.DIAMETER), "od_min": (spec.dmin, Kind.DIAMETER)},
                 **common))
-    if factor == 0.0:
+    if math.isnan(factor):
         out.append(Finding(RatingCode.ABOVE_DERATING_TABLE, quantities={
             "temperature": (temperature, Kind.TEMPERATURE)},
             context={"material": material.key}, **common))
