@@ -468,6 +468,7 @@ def rate_joints(specs: Sequence[JointSpec], materials: Mapping[str, Material] | 
         tension_basis=tuple(base.tension_basis[i] for i in which),
         derating=tuple(base.derating[i] for i in which),
         rating_temperature=base.rating_temperature, findings=tuple(findings),
+        modulus=base.modulus[w],
     )
 
 
@@ -607,7 +608,7 @@ def rate_each_joint(specs: Sequence[JointSpec], materials: Mapping[str, Material
         body_rating=body,
         connection_rating=connection,
         collapse_method=tuple(str(x) for x in method),
-        yield_strength=sy, rating_wall=t_rate,
+        yield_strength=sy, rating_wall=t_rate, modulus=e_mod,
         displaced_area=displaced,
         collapse_basis=tuple(str(x) for x in collapse_basis),
         burst_basis=tuple(str(x) for x in burst_basis),

@@ -127,6 +127,8 @@ class JointArrays:
     findings : tuple of ``rigplan.engine.findings.Finding``  what the rating
         found (a measured wall under the standard's minimum, an ellipticity
         above the plan's assumption)
+    modulus : ndarray  Young's modulus of each joint's material [Pa] (optional,
+        nan: unknown; used for buckling below the neutral point)
     """
 
     label: tuple
@@ -149,6 +151,7 @@ class JointArrays:
     derating: tuple = ()
     rating_temperature: float = 23.0
     findings: tuple = ()
+    modulus: np.ndarray | None = None          # Young's modulus [Pa] (nan: unknown)
 
     def __post_init__(self):
         n = len(self.length)
@@ -199,6 +202,7 @@ class JointArrays:
             findings=tuple(f if f.joint is None else replace(f, joint=f.joint - start)
                            for f in self.findings
                            if f.joint is None or start < f.joint <= stop),
+            modulus=None if self.modulus is None else self.modulus[sl],
         )
 
 
