@@ -50,7 +50,7 @@ def test_json_keys_and_si_values(capsys):
                 "fill_schedule", "stages", "grouting", "cautions"):
         assert key in doc
     step = doc["steps"][-1]
-    for key in ("joint", "shoe_depth", "hook_load", "capacity"):
+    for key in ("joint", "shoe_depth", "hook_load", "hook_limit"):
         assert key in step
     con = doc["connections"][0]
     for key in ("joint", "depth", "max_true_tension", "capacity", "utilization"):

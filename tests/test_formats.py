@@ -569,7 +569,7 @@ def test_rig_values():
     (('"20000 lbf"', '"20000 psi"'), "rigs/t.toml: path[1].winch_line_pull", "expected a force"),
     (('"20000 lbf"', '"-5 lbf"'), "rigs/t.toml: path[1].winch_line_pull", "greater than zero"),
     (('kind = "elevator"', 'kind = "slips"'), "rigs/t.toml: path[1].tool[1].kind", "elevator, clamp"),
-    (('dynamic_factor = 1.1', "dynamic_factor = 0.9"), "rigs/t.toml: path[1].dynamic_factor", ">= 1"),
+    (('dynamic_factor = 1.1', "dynamic_factor = 0.9"), "rigs/t.toml: path[1].dynamic_factor", "from 1 to 3"),
     (('name = "hook"', 'name = "elevator"'), "rigs/t.toml: path[1].tool[2].name", "already used"),
     (('"14.7 lb/ft"', '"14.7 lb"'), "rigs/t.toml: landing_string.weight_per_length",
      "expected a weight per length"),

@@ -20,7 +20,6 @@ from textual.containers import Vertical
 from textual.screen import ModalScreen
 from textual.widgets import Footer, Header, Static, TabbedContent, TabPane
 
-from rigplan import CAUTION
 from rigplan.files import units as U
 from rigplan.errors import InputError
 from rigplan.files.runlog import RunLogWriteError
@@ -89,7 +88,7 @@ class RigplanApp(App):
                 yield ChartsPane(id="charts-pane")
             with TabPane("5 Rig", id="rig"):
                 yield RigPane(id="rig-pane")
-        yield Static(CAUTION, id="caution", markup=False)
+        yield Static(P.CAUTION, id="caution", markup=False)
         yield Footer()
 
     def on_mount(self) -> None:
@@ -214,7 +213,7 @@ class RigplanApp(App):
             title, kind, hint = JOB_SETTINGS[key]
             if kind not in (None, "dimensionless"):
                 hint = (hint + "; " if hint else "") + (
-                    f"a bare number is in {U.unit_label(kind, s.units)} ({U.describe(kind)})")
+                    f"a bare number is in {P.unit(kind, s.units)} ({U.describe(kind)})")
             if key == "rig":
                 self.push_screen(PromptScreen(title, value=s.setting_text(key), hint=hint,
                                               parse=s.change_rig, prompt_id="prompt-setting"),
@@ -271,13 +270,13 @@ class RigplanApp(App):
         if nxt is None:
             self.notify("Every joint of the plan is in the hole.", severity="warning")
             return
-        unit = U.unit_label("length", s.units)
+        unit = P.unit("length", s.units)
         default = P.fmt(nxt.length, "length", s.units, 2)
         caution = ""
         if s.landing is None:
             caution = "  There is no plan (see the Overview): record only what was run."
         elif not s.landing.lands:
-            caution = f"  The plan says: {s.landing.verdict}."
+            caution = f"  The plan says: {s.landing.verdict.value}."
 
         def parse(text: str):
             t = text.strip()
@@ -381,7 +380,7 @@ class RigplanApp(App):
 
     def action_observe(self) -> None:
         s = self.session
-        unit = U.unit_label("force", s.units)
+        unit = P.unit("force", s.units)
         predicted = s.predicted_hook_load()
 
         def parse(text: str):
@@ -447,7 +446,7 @@ class RigplanApp(App):
             from rigplan.engine import materials
             hint = "One of: " + ", ".join(materials.known_keys())
         elif how in ("quantity", "optional_quantity"):
-            hint = (f"A bare number is in {U.unit_label(what, s.units)}; a unit may be given "
+            hint = (f"A bare number is in {P.unit(what, s.units)}; a unit may be given "
                     f"({U.describe(what)})" + ("; empty: not measured" if how != "quantity" else ""))
         else:
             hint = "A label not used by another joint"

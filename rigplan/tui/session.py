@@ -29,6 +29,7 @@ from rigplan.files.job import apply_run_state, length_warnings, load_job, plan_j
 from rigplan.files.runlog import RunLog, log_path_for
 from rigplan.engine.stringmodel import CONNECTION_KINDS, JOINT_KINDS, StringPlan
 from rigplan.files import units as U
+from rigplan.present import wording as P
 
 #: Default half-width of the band around the planned hook load inside which a
 #: weight-indicator reading counts as agreeing: 10 % of the planned hook load
@@ -342,7 +343,7 @@ class JobSession:
 
     def band_text(self) -> str:
         if self.band_force > 0:
-            return f"+/- {U.format(self.band_force, 'force', self.units)}"
+            return f"+/- {P.fmt(self.band_force, 'force', self.units)}"
         return f"+/- {self.band_fraction * 100:g} %"
 
     # -- plan edits ----------------------------------------------------------
@@ -423,7 +424,7 @@ class JobSession:
         changed = dataclasses.replace(spec, **{field: value})
         if changed.wall >= changed.od / 2.0:
             raise InputError(where, f"the wall must be less than half the od "
-                                    f"({U.format(changed.od / 2, 'diameter', self.units)})")
+                                    f"({P.fmt(changed.od / 2, 'diameter', self.units)})")
         joints = list(self.base_plan.joints)
         joints[i] = changed
         collar = self._collar_label(self.base_plan)
@@ -448,7 +449,7 @@ class JobSession:
         }
         if key in values:
             kind, v = values[key]
-            return "unrated" if v != v else U.format(v, kind, sys_)
+            return "unrated" if v != v else P.fmt(v, kind, sys_)
         if key.endswith("_factor"):
             return f"{getattr(d, key[:-len('_factor')]):g}"
         if key == "float_equipment":
@@ -512,8 +513,8 @@ class JobSession:
         value = U.parse(t, kind, U.unit_label(kind, self.units), where)
         if kind == "density" and not _DENSITY_RANGE[0] <= value <= _DENSITY_RANGE[1]:
             raise InputError(where, f"expected a fluid density between "
-                                    f"{U.format(_DENSITY_RANGE[0], 'density', self.units)} and "
-                                    f"{U.format(_DENSITY_RANGE[1], 'density', self.units)}, "
+                                    f"{P.fmt(_DENSITY_RANGE[0], 'density', self.units)} and "
+                                    f"{P.fmt(_DENSITY_RANGE[1], 'density', self.units)}, "
                                     f"got {text!r}")
         if kind in ("length", "force") and value < 0:
             raise InputError(where, f"expected {U.describe(kind)} >= 0, got {text!r}")

@@ -37,8 +37,10 @@ from rigplan.files import units
 from rigplan.errors import InputError
 from rigplan.engine.stringmodel import JOINT_KINDS
 
-COLUMNS = ("label", "measured_length", "kind", "status", "note", "measured_wall")
+COLUMNS = ("label", "measured_length", "kind", "status", "note", "measured_wall", "run_order")
 STATUSES = ("run", "rejected")
+#: Largest running position a tally may give (the most joints in one string).
+MAX_RUN_ORDER = 100_000
 _QUANTITY_COLUMNS = {"measured_length": "length", "measured_wall": "diameter"}
 _HEADER_CELL = re.compile(r"^\s*(?P<name>[A-Za-z_]+)\s*(?:\[(?P<unit>[^\]]*)\])?\s*$")
 
@@ -53,6 +55,8 @@ class TallyRow:
     status : "run" or "rejected"
     note : free text
     measured_wall : measured minimum wall [m] (None = not measured)
+    run_order : running position, 1 = first in the hole (None = as planned);
+        given for every joint or for none, it re-orders interchangeable joints
     row : line number in the file it came from (0 when made in code)
     """
 
@@ -62,6 +66,7 @@ class TallyRow:
     status: str = "run"
     note: str = ""
     measured_wall: float | None = None
+    run_order: int | None = None
     row: int = field(default=0, compare=False)
 
 
@@ -141,9 +146,16 @@ def parse_tally(text: str, source: str = "<tally>") -> list:
         status = (values.get("status", "") or "run").lower()
         if status not in STATUSES:
             raise InputError(f"{where}, status", f"expected run or rejected, got {values['status']!r}")
+        order_text = values.get("run_order", "")
+        run_order = None
+        if order_text:
+            if not order_text.isdigit() or not 1 <= int(order_text) <= MAX_RUN_ORDER:
+                raise InputError(f"{where}, run_order", f"expected a whole number 1..{MAX_RUN_ORDER} "
+                                                        f"(1 = first in the hole), got {order_text!r}")
+            run_order = int(order_text)
         rows.append(TallyRow(label=label, measured_length=q["measured_length"], kind=kind,
                              status=status, note=values.get("note", ""),
-                             measured_wall=q["measured_wall"], row=line))
+                             measured_wall=q["measured_wall"], run_order=run_order, row=line))
     if columns is None:
         raise InputError(source, "empty tally: expected a header line "
                                  f"({', '.join(COLUMNS)}) and one row per joint")
@@ -175,8 +187,10 @@ def tally_text(rows, system: str = "us", comment: str = "") -> str:
     for line in comment.splitlines():
         buf.write(f"# {line}".rstrip() + "\n")
     w = csv.writer(buf, lineterminator="\n")
+    ordered = any(r.run_order is not None for r in rows)
     w.writerow(["label", f"measured_length [{units.unit_label('length', system)}]", "kind",
-                "status", "note", f"measured_wall [{units.unit_label('diameter', system)}]"])
+                "status", "note", f"measured_wall [{units.unit_label('diameter', system)}]"]
+               + (["run_order"] if ordered else []))
     for r in rows:
         w.writerow([
             r.label,
@@ -185,7 +199,7 @@ def tally_text(rows, system: str = "us", comment: str = "") -> str:
             r.status,
             r.note,
             "" if r.measured_wall is None else _number(r.measured_wall, "diameter", system),
-        ])
+        ] + (["" if r.run_order is None else str(r.run_order)] if ordered else []))
     return buf.getvalue()
 
 

@@ -48,7 +48,7 @@ def render(fmt: str, job, landing, system: str = "us", info=None, choices=(), as
         src = as_run.landing if as_run is not None else landing
         plan = as_run.state_plan if as_run is not None else job.plan
         doc = plan_dict(src, plan, job.warnings, rig_name)
-        doc["report"] = report_meta(info, system, info.paper or PAPER_FOR_SYSTEM[system],
+        doc["report"] = report_meta(info, system, info.paper or PAPER_FOR_SYSTEM[system.split("+")[0]],
                                     rig_name, choices, as_run is not None)
         return (json.dumps(doc, indent=1, allow_nan=False) + "\n").encode()
     packet = build_packet(job, landing, system, info, choices, as_run, rig_name)

@@ -21,6 +21,7 @@ from matplotlib.figure import Figure  # noqa: E402
 from matplotlib.patches import Rectangle  # noqa: E402
 
 from rigplan.files import units as U  # noqa: E402
+from rigplan.present import wording as W  # noqa: E402
 from rigplan.present.packet.schematic import governing_step, well_schematic  # noqa: E402
 
 #: rc settings for every packet figure: one font (the one the PDF embeds),
@@ -110,6 +111,7 @@ def _draw_schematic(ax, s, system: str, title: str, stretch: float):
 
 
 def schematic_figure(landing, plan, system: str) -> Figure:
+    system = W.primary(system)
     """Two side views to the same depth scale: at the step of the least
     hoisting margin, and landed (with the grout column when planned)."""
     k = governing_step(landing)
@@ -175,6 +177,7 @@ def _label_column(ax, items, ylim, system, unit):
 
 def hook_load_figure(landing, system: str) -> Figure:
     """Hook load against shoe depth: open-ended, planned, and the hook limit."""
+    system = W.primary(system)
     fig, ax = _new(4.2)
     lp = landing
     shoe_open = _d(lp.open_check.loads.shoe_depth, system)
@@ -183,7 +186,7 @@ def hook_load_figure(landing, system: str) -> Figure:
     hook = _f(lp.hook_load, system)
     limit = float(_f(lp.path.hook_limit, system))
     ax.plot(hook_open, shoe_open, color=COLOURS["open"], linestyle="--", label="open-ended")
-    ax.plot(hook, shoe, color=COLOURS["planned"], label=f"planned ({lp.verdict})")
+    ax.plot(hook, shoe, color=COLOURS["planned"], label=f"planned ({lp.verdict.value})")
     if math.isfinite(limit):
         ax.axvline(limit, color=COLOURS["limit"], linewidth=1.2,
                    label=f"hook limit, path '{lp.path.path}'")
@@ -199,6 +202,7 @@ def hook_load_figure(landing, system: str) -> Figure:
 
 def utilization_figure(landing, system: str) -> Figure:
     """Tension and collapse utilization of each joint at its landed depth."""
+    system = W.primary(system)
     fig, ax = _new(4.0)
     lp = landing
     j = lp.joints
@@ -224,6 +228,7 @@ def utilization_figure(landing, system: str) -> Figure:
 
 def fill_window_figure(landing, system: str) -> Figure | None:
     """The fill window at every step with the planned fill level."""
+    system = W.primary(system)
     opt = landing.best_float
     if opt is None or opt.window is None:
         return None

@@ -15,15 +15,12 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from rigplan import CAUTION
-from rigplan.engine.planner import (CANNOT_CONFIRM, LANDS_FLOATED, LANDS_OPEN, LANDS_STAGED,
-                                    closure_name)
-from rigplan.files import units as U
+from rigplan.engine.findings import Kind, Verdict
 from rigplan.present import wording as W
+from rigplan.present.wording import CAUTION, closure_name, next_action, step_actions
 from rigplan.present.packet.document import (CrewSheet, Facts, Figure, Packet, Paragraph,
                                              Section, Signoff, Table)
 from rigplan.present.packet.schematic import governing_step, well_schematic
-from rigplan.present.report import next_action, step_actions
 
 #: Default half-width of the weight band on the crew sheet, a fraction of the
 #: predicted hook load (the app's default band; common practice, no source).
@@ -99,7 +96,11 @@ class Context:
     _cache: dict = field(default_factory=dict)
 
     def u(self, kind: str) -> str:
-        return U.unit_label(kind, self.system)
+        return W.unit(kind, self.system)
+
+    def words(self, findings, unrated=()) -> list:
+        """Findings in words, one line each."""
+        return [t for _, t in W.finding_lines(findings, self.system, unrated)]
 
     def q(self, value, kind: str, digits: int | None = None) -> str:
         """Value with unit, ``n/a`` when not known."""
@@ -117,13 +118,19 @@ class Context:
         return W.column_title(title, kind, self.system)
 
 
+def _both(value, kind, system: str) -> str:
+    """The value in the chosen units with the other system beside it."""
+    first = W.primary(system)
+    return W.fmt(value, kind, f"{first}+{W.OTHER_SYSTEM[first]}")
+
+
 def _pct(x) -> str:
     return W.percent(x) if x is not None and math.isfinite(float(x)) else "unrated"
 
 
 def force_digits(system: str) -> int:
     """Decimals for forces in tables: whole lbf, tenths of a kN."""
-    return 0 if system == "us" else 1
+    return 0 if W.primary(system) == "us" else 1
 
 
 # ---------------------------------------------------------------------------
@@ -139,7 +146,7 @@ def crew_actions(landing, system: str) -> list:
     """Short crew action per joint for the floor, one line each."""
     n = landing.joints.n
     acts = ["run, no fill"] * n
-    if landing.verdict == LANDS_STAGED and landing.stages is not None:
+    if landing.verdict == Verdict.LANDS_STAGED and landing.stages is not None:
         p = landing.stages.split
         acts = [f"stage 1" for _ in range(p)] + ["stage 2"] * (n - p)
         acts[p - 1] = "stage 1: land it, release"
@@ -194,14 +201,13 @@ def _cover(ctx: Context) -> Section:
         ("Job", plan.name), ("Well", plan.well or "not given"), ("Site", plan.site or "not given"),
         ("Rig", ctx.rig_name),
         ("Hoisting path", f"{lp.path.path} (governed by {lp.path.governing or 'nothing rated'})"),
-        ("Verdict", lp.verdict.upper()),
+        ("Verdict", W.verdict_text(lp)),
     ]
     if gov is not None:
-        kind = getattr(gov, "kind", "force")
-        items.append(("Governing limit", f"{gov.name} at {gov.where}"))
-        if gov.capacity or gov.load:
+        items.append(("Governing limit", f"{gov.name} at {W.limit_place(gov)}"))
+        if math.isfinite(gov.load) and math.isfinite(gov.capacity):
             items.append(("Load against capacity",
-                          f"{ctx.q(gov.load, kind)} against {ctx.q(gov.capacity, kind)}"))
+                          f"{ctx.q(gov.load, gov.kind)} against {ctx.q(gov.capacity, gov.kind)}"))
         items.append(("Margin", W.percent(gov.margin)))
     items += [
         ("String limit", ctx.q(lp.path.string_limit, "force")),
@@ -210,17 +216,18 @@ def _cover(ctx: Context) -> Section:
         ("How to land it", next_action(lp, ctx.system)),
         ("Revision", info.revision or "not given"),
         ("Date", info.date or "not given"),
-        ("Units", "US field units" if ctx.system == "us" else "SI units"),
+        ("Units", "US field units" if W.primary(ctx.system) == "us" else "SI units"),
     ]
     sec.blocks.append(Facts("", tuple(items)))
-    if lp.reasons:
-        sec.blocks.append(Paragraph("Why: " + "; ".join(lp.reasons), "small"))
+    if lp.reasons or lp.unrated:
+        sec.blocks.append(Paragraph("Why: " + "; ".join(ctx.words(lp.reasons, lp.unrated)),
+                                    "small"))
     if len(ctx.choices) > 1:
         sec.blocks.append(rig_choice_table(ctx.choices, ctx.system,
                                            title="Rigs and hoisting paths considered"))
     sec.blocks.append(Signoff((("Prepared by", info.prepared_by, ""),
                                ("Reviewed by", info.reviewed_by, ""))))
-    for c in lp.cautions:
+    for c in W.cautions(lp):
         sec.blocks.append(Paragraph(f"Caution: {c}", "caution"))
     return sec
 
@@ -231,7 +238,8 @@ def rig_choice_table(choices, system: str, title: str = "Which rig can land the 
     rows = []
     emph = []
     for i, c in enumerate(choices):
-        rows.append((("* " if c.chosen else "") + c.rig, c.path, c.verdict, c.governing or "-",
+        rows.append((("* " if c.chosen else "") + c.rig, c.path, str(c.verdict),
+                     c.governing or "-",
                      W.percent(c.margin) if math.isfinite(c.margin) else "n/a",
                      W.number(c.string_limit, "force", system, force_digits(system))
                      if math.isfinite(c.string_limit) else "n/a"))
@@ -277,7 +285,7 @@ def _inputs(ctx: Context) -> Section:
     sec.blocks.append(Facts("Hole", (
         ("Total depth (TD)", ctx.q(hole.depth, "length", 1)),
         ("Bit / hole diameter", ctx.q(hole.diameter, "diameter")),
-        ("Hole fluid density", W.both(hole.fluid_density, "density", ctx.system)),
+        ("Hole fluid density", _both(hole.fluid_density, "density", ctx.system)),
         ("Hole fluid level below the floor", ctx.q(hole.fluid_level, "length", 1)),
     )))
     specs = plan.running_joints()
@@ -324,7 +332,7 @@ def _inputs(ctx: Context) -> Section:
     sec.blocks.append(Facts("Float equipment", fe))
     alts = ", ".join(W.fmt(x, "density", ctx.system) for x in st.fill_density_alternatives)
     sec.blocks.append(Facts("Running and design factors", (
-        ("Fill fluid", W.both(st.fill_density, "density", ctx.system)
+        ("Fill fluid", _both(st.fill_density, "density", ctx.system)
          + (f"; alternatives offered: {alts}" if alts else "")),
         ("Minimum running weight", ctx.q(st.min_running_weight, "force")),
         ("Set-down weight when landed", ctx.q(st.set_down_weight, "force")),
@@ -340,7 +348,6 @@ def _inputs(ctx: Context) -> Section:
 
 def _assumptions(ctx: Context) -> Table:
     lp, plan = ctx.landing, ctx.job.plan
-    rig_path = _rig_path(ctx)
     src_plan = f"plan file {_name(ctx.job.plan_path)}"
     src_rig = f"rig profile {_name(ctx.job.rig_path)}"
     rows = [
@@ -357,14 +364,14 @@ def _assumptions(ctx: Context) -> Table:
         ("Hole fluid density and level, fill fluid, float equipment, design factors",
          src_plan),
     ]
-    if rig_path is not None:
-        rows += [
-            (f"Dead load on the hook {ctx.q(rig_path.dead_load, 'force')}, overpull reserve "
-             f"{ctx.q(rig_path.overpull_reserve, 'force')}, dynamic factor "
-             f"{rig_path.dynamic_factor:g}", src_rig),
-            (f"{rig_path.lines} lines strung, sheave factor {rig_path.sheave_factor:g}, wire "
-             f"rope design factor {rig_path.rope_design_factor:g}", src_rig),
-        ]
+    chain = lp.path
+    rows.append((f"Gear on the hook (dead load) {ctx.q(chain.dead_load, Kind.FORCE)}; "
+                 f"{chain.lines} line(s), sheave factor {chain.sheave_factor:g}, block "
+                 f"efficiency {chain.block_efficiency:.3f}", src_rig))
+    for c in chain.cases:
+        what = (f"dynamic factor {c.factor:g}" if str(c.code) == "shock"
+                else f"overpull reserve {ctx.q(c.allowance, Kind.FORCE)}")
+        rows.append((f"Hoisting load case '{c.code}': {what}", f"{src_rig}; {c.source}"))
     from rigplan.engine import materials as M
     seen = []
     for s in plan.running_joints():
@@ -394,71 +401,51 @@ def _name(path) -> str:
     return "" if path is None else str(getattr(path, "name", path))
 
 
-def _rig_path(ctx: Context):
-    for p in getattr(ctx.job.rig, "paths", ()):
-        if p.name == ctx.landing.path.path:
-            return p
-    return None
-
-
-def _schematic(ctx: Context) -> Section:
-    lp = ctx.landing
-    k = governing_step(lp)
-    s = well_schematic(lp, k)
-    sec = Section("schematic", "Well schematic")
-    sec.blocks.append(Figure(
-        "schematic", "",
-        caption=f"Left: joint {k} at the floor, the step of the least hoisting margin "
-                f"(fluid levels inside and outside at that step). Right: the string landed"
-                + (", with the grout column" if ctx.job.plan.grout is not None else "")
-                + ". Depth to scale; widths stretched so the walls show."))
-    marks = well_schematic(lp, None, ctx.job.plan.grout).marks
-    rows = [(m.kind, ctx.n(m.depth, "length", 1)) for m in marks]
-    rows += [(f"at step {k}: {m.kind}", ctx.n(m.depth, "length", 1)) for m in s.marks
-             if m.kind in ("fill level inside", "shoe")]
-    boxes = [b for b in well_schematic(lp, None, ctx.job.plan.grout).boxes
-             if b.kind in ("screen", "sump", "casing")]
-    rows += [(f"{b.label}: top to bottom", f"{ctx.n(b.top, 'length', 1)} - "
-                                            f"{ctx.n(b.bottom, 'length', 1)}")
-             for b in sorted(boxes, key=lambda b: b.top)]
-    sec.blocks.append(Table("Depths shown (landed unless a step is named)",
-                            ("item", ctx.head("depth below the floor", "length")),
-                            tuple(rows), "lr", (5, 3), key="depths"))
-    return sec
-
-
 def _hoisting(ctx: Context) -> Section:
+    """Each part's rating, referred to the hook, the gear it carries, both load
+    cases and its string limit; the least is the path's string limit."""
     lp = ctx.landing
-    p = lp.path
+    chain = lp.path
     fd = force_digits(ctx.system)
     sec = Section("hoisting", "Hoisting chain", new_page=False)
     rows = []
     emph = []
-    for i, (name, kind, at_hook, allowed) in enumerate(p.components):
-        rows.append((name, kind.replace("_", " "), ctx.n(at_hook, "force", fd),
-                     ctx.n(allowed, "force", fd), "governs" if name == p.governing else ""))
-        if name == p.governing:
+    for i, p in enumerate(chain.parts):
+        gov = p.name == chain.governing
+        rows.append((p.name, p.basis, ctx.n(p.rating, Kind.FORCE, fd), f"{p.to_hook:.3f}",
+                     ctx.n(p.rated_at_hook, Kind.FORCE, fd), ctx.n(p.gear_counted, Kind.FORCE, fd),
+                     ctx.n(p.shock_limit, Kind.FORCE, fd), ctx.n(p.overpull_limit, Kind.FORCE, fd),
+                     ctx.n(p.string_limit, Kind.FORCE, fd),
+                     f"governs ({p.governing_case})" if gov else ""))
+        if gov:
             emph.append(i)
-    for name in p.unrated:
-        rows.append((name, "", "unrated", "skipped", ""))
-    rp = _rig_path(ctx)
-    note = ("Allowed string load = rating at the hook / dynamic factor, less the dead load "
-            "and the overpull reserve for parts that carry the hook load; handling tools "
-            "hold the string only.")
-    sec.blocks.append(Table(f"Path '{p.path}' of {ctx.rig_name}",
-                            ("component", "kind", ctx.head("rating at the hook", "force"),
-                             ctx.head("allowed string load", "force"), ""),
-                            tuple(rows), "llrrl", (5, 2.5, 3, 3, 1.6), note=note,
-                            emphasis=tuple(emph), key="hoisting"))
-    items = [("String limit (least allowed string load)", ctx.q(p.string_limit, "force")),
-             ("Governed by", p.governing or "nothing rated"),
-             ("Dead load (gear on the hook)", ctx.q(lp.dead_load, "force")),
-             ("Hook limit (string limit + dead load)", ctx.q(p.hook_limit, "force"))]
-    if rp is not None:
-        items += [("Overpull reserve", ctx.q(rp.overpull_reserve, "force")),
-                  ("Dynamic factor", f"{rp.dynamic_factor:g}"),
-                  ("Lines strung", str(rp.lines))]
-    sec.blocks.append(Facts("From the parts to the string limit", tuple(items)))
+    for name in chain.unrated_on_path:
+        rows.append((name, "unrated: not counted", "n/a", "", "", "", "", "", "", ""))
+    words = []
+    for c in chain.cases:
+        if str(c.code) == "shock":
+            words.append(f"shock: {c.factor:g} x (string + gear counted) <= rated at hook "
+                         f"({c.source})")
+        else:
+            words.append(f"overpull: string + gear counted + {ctx.q(c.allowance, Kind.FORCE)} "
+                         f"<= rated at hook ({c.source})")
+    words.append(f"{chain.lines} line(s), block efficiency {chain.block_efficiency:.3f} "
+                 f"(sheave factor {chain.sheave_factor:g}, API RP 9B)")
+    sec.blocks.append(Table(
+        f"Path '{chain.path}' of {ctx.rig_name}",
+        ("part", "basis", ctx.head("rating", Kind.FORCE), "to hook",
+         ctx.head("rated at hook", Kind.FORCE), ctx.head("gear counted", Kind.FORCE),
+         ctx.head("shock limit", Kind.FORCE), ctx.head("overpull limit", Kind.FORCE),
+         ctx.head("string limit", Kind.FORCE), ""),
+        tuple(rows), "llrrrrrrrl", (3, 3.6, 2, 1.3, 2, 1.8, 2, 2, 2, 2.4),
+        note="; ".join(words) + ".", emphasis=tuple(emph), key="hoisting"))
+    sec.blocks.append(Facts("From the parts to the string limit", (
+        ("String limit (least over the parts)", ctx.q(chain.string_limit, Kind.FORCE)),
+        ("Governed by", (chain.governing or "nothing rated")
+         + (f" ({chain.governing_case})" if chain.governing_case is not None else "")),
+        ("Dead load (gear on the hook)", ctx.q(chain.dead_load, Kind.FORCE)),
+        ("Hook limit (string limit + dead load)", ctx.q(chain.hook_limit, Kind.FORCE)),
+    )))
     others = [c for c in ctx.choices if not c.chosen]
     if others:
         sec.blocks.append(Paragraph("Other rigs and paths are compared on the cover.", "small"))
@@ -505,7 +492,7 @@ def _fill(ctx: Context) -> Section | None:
     opt = lp.best_float
     sec = Section("fill", "Fill schedule")
     if opt is None or opt.schedule is None or lp.chosen.closure.is_open:
-        if lp.verdict == LANDS_OPEN:
+        if lp.verdict == Verdict.LANDS_OPEN:
             sec.blocks.append(Paragraph("Open shoe: the hole fluid fills the pipe through the "
                                         "shoe; there is nothing to fill.", "body"))
         else:
@@ -518,7 +505,7 @@ def _fill(ctx: Context) -> Section | None:
                          ctx.n(t.level_after, "length", 1)))
         m = opt.closure.valve_joint or 0
         sec.blocks.append(Table(
-            f"{closure_name(opt.closure)}, fill with {W.both(opt.fill_density, 'density', ctx.system)}",
+            f"{closure_name(opt.closure)}, fill with {_both(opt.fill_density, 'density', ctx.system)}",
             ("action", "joints", ctx.head("volume", "volume"),
              ctx.head("fill level after", "length")),
             tuple(rows), "llrr", (5, 2, 2, 2.5),
@@ -527,8 +514,8 @@ def _fill(ctx: Context) -> Section | None:
             + f"fill above the valve at landing {ctx.q(float(s.fill_volume[-1]), 'volume', 0)}.",
             key="fill"))
     if lp.notes:
-        sec.blocks.append(Paragraph("Notes: " + " ".join(f"{x}." if not x.endswith(".") else x
-                                                           for x in lp.notes), "small"))
+        sec.blocks.append(Paragraph("Notes: " + " ".join(
+            x if x.endswith(".") else f"{x}." for x in ctx.words(lp.notes)), "small"))
     if len(lp.float_options) > 0:
         rows = []
         for o in lp.float_options:
@@ -536,7 +523,7 @@ def _fill(ctx: Context) -> Section | None:
                          "yes" if o.lands else "no",
                          str(len(o.schedule.top_ups)) if o.schedule else "-",
                          _pct(o.schedule.least_margin) if o.schedule and o.schedule.feasible
-                         else "-", o.reason or ""))
+                         else "-", W.finding_text(o.reason, ctx.system) if o.reason else ""))
         sec.blocks.append(Table("Float positions and fill fluids compared",
                                 ("equipment", "fill", "lands", "top-ups", "least margin",
                                  "why not"), tuple(rows), "llllrl", (3, 2, 1.2, 1.3, 1.8, 8),
@@ -548,7 +535,7 @@ def _least_kept(opt) -> str:
     """The least margin the fill plan keeps, from its full check when there is one."""
     if opt.check is not None and opt.check.limits:
         g = min(opt.check.limits, key=lambda lim: lim.margin)
-        return f"Least margin kept {_pct(g.margin)}: {g.name} at {g.where}; "
+        return f"Least margin kept {_pct(g.margin)}: {g.name} at {W.limit_place(g)}; "
     s = opt.schedule
     return f"Least margin kept {_pct(s.least_margin)} at step {s.least_margin_step}; "
 
@@ -569,8 +556,8 @@ def _stages_grout(ctx: Context) -> Section | None:
                  ("Stage 2 peak string load", ctx.q(st.stage2_peak, "force", fd)),
                  ("Least margin", f"{_pct(st.least_margin)} ({st.governing})")]
         if st.reason:
-            items.append(("Why not", st.reason))
-        sec.blocks.append(Facts("Staged setting" + ("" if lp.verdict == LANDS_STAGED
+            items.append(("Why not", W.finding_text(st.reason, ctx.system)))
+        sec.blocks.append(Facts("Staged setting" + ("" if lp.verdict == Verdict.LANDS_STAGED
                                                      else " (tried, not chosen)"), tuple(items)))
     if g is not None:
         lifts = getattr(g, "lifts", ())
@@ -579,11 +566,11 @@ def _stages_grout(ctx: Context) -> Section | None:
         note = ("The planned column can be placed in one lift." if getattr(g, "full_column_ok", False)
                 else f"Place the grout in {len(lifts)} lifts, each set before the next.")
         if getattr(g, "reason", ""):
-            note += f" {g.reason}"
+            note += f" {W.finding_text(g.reason, ctx.system)}"
         sec.blocks.append(Table("Grouting lifts (heights above the shoe)",
                                 ("lift", ctx.head("from", "length"), ctx.head("to", "length")),
                                 tuple(rows), "lrr", (1, 2, 2), note=note, key="grout"))
-        for w in getattr(g, "warnings", ()):
+        for w in ctx.words(getattr(g, "warnings", ())):
             sec.blocks.append(Paragraph(f"Grouting: {w}", "small"))
     return sec
 
@@ -605,14 +592,14 @@ def _crew(ctx: Context) -> Section:
     lp = ctx.landing
     sec = Section("crew", "Crew sheet")
     legend = [f"{ctx.job.plan.name} on {ctx.rig_name}, path '{lp.path.path}': "
-              f"{lp.verdict.upper()}.",
+              f"{W.verdict_text(lp)}.",
               f"Hook limit {ctx.q(lp.path.hook_limit, 'force')}; stop and call the engineer "
               f"if a reading leaves its band (+/- {100 * ctx.info.band:g} % of the predicted "
               f"hook load).",
               f"Plan: {next_action(lp, ctx.system)}."]
-    if lp.verdict not in (LANDS_OPEN, LANDS_FLOATED, LANDS_STAGED):
+    if lp.verdict not in (Verdict.LANDS_OPEN, Verdict.LANDS_FLOATED, Verdict.LANDS_STAGED):
         legend.insert(0, "DO NOT RUN: the string cannot be landed as planned"
-                         + (" (a loaded part is unrated)" if lp.verdict == CANNOT_CONFIRM else "")
+                         + (" (a loaded part is unrated)" if lp.verdict == Verdict.CANNOT_CONFIRM else "")
                          + ".")
     k = governing_step(lp)
     sec.blocks.append(CrewSheet(
@@ -718,7 +705,7 @@ def build_packet(job, landing, system: str = "us", info: ReportInfo | None = Non
                  choices=(), as_run: AsRun | None = None, rig_name: str = "") -> Packet:
     """The whole job packet for ``landing`` (the chosen rig's plan)."""
     info = info or ReportInfo()
-    paper = info.paper or PAPER_FOR_SYSTEM.get(system, "letter")
+    paper = info.paper or PAPER_FOR_SYSTEM.get(W.primary(system), "letter")
     ctx = Context(job, landing, system, info, tuple(choices), as_run,
                   rig_name or getattr(job.rig, "name", ""))
     sections = [_cover(ctx), _inputs(ctx), _schematic(ctx), _hoisting(ctx), _charts(ctx),

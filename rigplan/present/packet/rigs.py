@@ -67,8 +67,8 @@ def weigh_rigs(plan, rig_paths, path_name=None, fixed_closure: bool = False) -> 
         for name in names:
             lp = plan_job(plan, rig, name, fixed_closure=fixed_closure)
             g = lp.governing
-            choice = RigChoice(rig=rig.name, path=lp.path.path, verdict=lp.verdict,
-                               lands=lp.lands, governing=g.name if g else "",
+            choice = RigChoice(rig=rig.name, path=lp.path.path, verdict=str(lp.verdict),
+                               lands=lp.lands, governing=str(g.name) if g else "",
                                margin=float(g.margin) if g else math.nan,
                                string_limit=float(lp.path.string_limit),
                                hook_limit=float(lp.path.hook_limit))

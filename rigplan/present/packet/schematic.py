@@ -82,9 +82,12 @@ class Schematic:
 
 
 def governing_step(landing) -> int:
-    """The running step (1-based) of the least hoisting margin of the chosen
-    run: where the schematic shows the fluid levels.  A floated plan uses its
-    schedule's least-margin step; a staged plan its last step."""
+    """The running step (1-based) where the schematic shows the fluid levels:
+    the governing limit's step when it has one, else the least-margin step of
+    the fill schedule, else the step of the least hoisting margin."""
+    g = landing.governing
+    if g is not None and getattr(g, "step", None):
+        return int(g.step)
     opt = landing.best_float
     chk = landing.chosen
     if opt is not None and opt.schedule is not None and not chk.closure.is_open \

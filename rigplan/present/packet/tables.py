@@ -28,7 +28,10 @@ def render_csv(job, landing, system: str, info: ReportInfo, state=None) -> str:
     fd = force_digits(system)
 
     def n(v, kind, d=None):
-        return "" if v is None or v != v else W.number(v, kind, system, d)
+        # plain numbers (no thousands separators), as a spreadsheet reads them
+        if v is None or v != v:
+            return ""
+        return W.plain(v, kind, system, d).removesuffix(" " + W.unit(kind, system))
 
     L, F, V = (W.column_title("", k, system).strip() for k in ("length", "force", "volume"))
     buf = io.StringIO()
