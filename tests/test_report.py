@@ -21,7 +21,7 @@ from pathlib import Path
 import pytest
 
 from rigplan.cli import main
-from rigplan.files import units as U
+from rigplan.present import wording as W
 
 ROOT = Path(__file__).resolve().parents[1]
 STRINGS = ROOT / "strings"
@@ -82,8 +82,8 @@ def test_cover_numbers_equal_the_check(built):
     doc, cover = built["doc"], built["texts"][0]
     assert doc["verdict"].upper() in cover
     assert f"{100 * doc['governing']['margin']:.1f} %" in cover
-    assert U.format(doc["rig"]["string_limit"], "force", "us") in cover
-    assert U.format(doc["rig"]["hook_limit"], "force", "us") in cover
+    assert W.fmt(doc["rig"]["string_limit"], "force", "us") in cover
+    assert W.fmt(doc["rig"]["hook_limit"], "force", "us") in cover
     assert "Revision" in cover and "C" in cover and "2026-11-30" in cover
     assert "P. Planner" in cover and "Reviewed by" in cover
     assert "verify every figure against the rig maker's load chart" in cover
@@ -96,11 +96,11 @@ def test_crew_sheet_is_one_page_with_the_checks_hook_loads(built):
     assert i == len(texts) - 1          # last page, one page: nothing runs over
     for step in doc["steps"]:
         h = step["hook_load"]
-        hook = U.format(h, "force", "us", 0).split()[0]
+        hook = W.number(h, "force", "us", 0)
         # band: +/- 10 % of the predicted hook load (the app's default band;
         # common practice, no source)
-        lo = U.format(0.9 * h, "force", "us", 0).split()[0]
-        hi = U.format(1.1 * h, "force", "us", 0).split()[0]
+        lo = W.number(0.9 * h, "force", "us", 0)
+        hi = W.number(1.1 * h, "force", "us", 0)
         assert re.search(rf"\b{step['label']}\b.*\b{hook}\b.*{lo}-{hi}", page), step["label"]
     sched = doc["fill_schedule"]
     assert re.search(rf"\b{sched['fill_to_top_through'] + 1}\s+J{sched['fill_to_top_through'] + 1}"
@@ -112,13 +112,13 @@ def test_running_schedule_and_hoisting_chain_equal_the_check(built):
     i = _page_of(texts, "Running schedule")
     text = "\n".join(texts[i:i + 3])
     for step in doc["steps"][::7]:
-        hook = U.format(step["hook_load"], "force", "us", 0).split()[0]
+        hook = W.number(step["hook_load"], "force", "us", 0)
         assert re.search(rf"\b{step['joint']}\s+{step['label']}\b.*\b{hook}\b", text)
     h = _page_of(texts, "Hoisting chain")
     chain = " ".join(texts[h:h + 2])
     for comp in doc["rig"]["components"]:
         assert comp["name"] in chain
-        assert U.format(comp["allowed_string_load"], "force", "us", 0).split()[0] in chain
+        assert W.number(comp["string_limit"], "force", "us", 0) in chain
 
 
 def test_same_input_same_pdf(built, tmp_path):
@@ -139,7 +139,7 @@ def test_si_packet_on_a4_with_stages(tmp_path, capsys):
     assert "Stages and grouting" in text
     st = doc["stages"]
     assert f"joints 1-{st['split']} on the landing string" in text
-    assert U.format(st["release_depth"], "length", "si", 1) in text
+    assert W.fmt(st["release_depth"], "length", "si", 1) in text
 
 
 class _Figures(HTMLParser):
@@ -175,7 +175,7 @@ def test_html_parses_and_holds_each_chart(tmp_path, capsys):
     assert "<script" not in text and "http" not in text.split("<svg", 1)[0]
     assert "@media print" in text and "break-inside: avoid" in text
     doc = _json(capsys, FLOATED, "--rig", "mw80")
-    assert U.format(doc["rig"]["string_limit"], "force", "us") in text
+    assert W.fmt(doc["rig"]["string_limit"], "force", "us") in text
 
 
 GOLDEN = ROOT / "tests" / "golden"

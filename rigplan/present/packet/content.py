@@ -158,7 +158,7 @@ def crew_actions(landing, system: str) -> list:
     sch = opt.schedule
     for k in range(n):
         if k < m:
-            acts[k] = "shoe track, no fill"
+            acts[k] = "shoe track"
         elif k < sch.fill_to_top_through:
             acts[k] = "fill to the top"
         elif k == sch.fill_to_top_through:
@@ -220,8 +220,9 @@ def _cover(ctx: Context) -> Section:
     ]
     sec.blocks.append(Facts("", tuple(items)))
     if lp.reasons or lp.unrated:
-        sec.blocks.append(Paragraph("Why: " + "; ".join(ctx.words(lp.reasons, lp.unrated)),
-                                    "small"))
+        head = "Options set aside: " if lp.lands else "Why it cannot be confirmed: " \
+            if lp.verdict == Verdict.CANNOT_CONFIRM else "Why it cannot land: "
+        sec.blocks.append(Paragraph(head + "; ".join(ctx.words(lp.reasons, lp.unrated)), "small"))
     if len(ctx.choices) > 1:
         sec.blocks.append(rig_choice_table(ctx.choices, ctx.system,
                                            title="Rigs and hoisting paths considered"))
@@ -399,6 +400,32 @@ def _assumptions(ctx: Context) -> Table:
 
 def _name(path) -> str:
     return "" if path is None else str(getattr(path, "name", path))
+
+
+def _schematic(ctx: Context) -> Section:
+    lp = ctx.landing
+    k = governing_step(lp)
+    s = well_schematic(lp, k)
+    sec = Section("schematic", "Well schematic")
+    sec.blocks.append(Figure(
+        "schematic", "",
+        caption=f"Left: joint {k} at the floor, the running step that governs "
+                f"(fluid levels inside and outside at that step). Right: the string landed"
+                + (", with the grout column" if ctx.job.plan.grout is not None else "")
+                + ". Depth to scale; widths stretched so the walls show."))
+    marks = well_schematic(lp, None, ctx.job.plan.grout).marks
+    rows = [(m.kind, ctx.n(m.depth, "length", 1)) for m in marks]
+    rows += [(f"at step {k}: {m.kind}", ctx.n(m.depth, "length", 1)) for m in s.marks
+             if m.kind in ("fill level inside", "shoe")]
+    boxes = [b for b in well_schematic(lp, None, ctx.job.plan.grout).boxes
+             if b.kind in ("screen", "sump", "casing")]
+    rows += [(f"{b.label}: top to bottom", f"{ctx.n(b.top, 'length', 1)} - "
+                                            f"{ctx.n(b.bottom, 'length', 1)}")
+             for b in sorted(boxes, key=lambda b: b.top)]
+    sec.blocks.append(Table("Depths shown (landed unless a step is named)",
+                            ("item", ctx.head("depth below the floor", "length")),
+                            tuple(rows), "lr", (5, 3), key="depths"))
+    return sec
 
 
 def _hoisting(ctx: Context) -> Section:
@@ -597,6 +624,9 @@ def _crew(ctx: Context) -> Section:
               f"if a reading leaves its band (+/- {100 * ctx.info.band:g} % of the predicted "
               f"hook load).",
               f"Plan: {next_action(lp, ctx.system)}."]
+    opt = lp.best_float
+    if opt is not None and (opt.closure.valve_joint or 0) > 0 and not lp.chosen.closure.is_open:
+        legend.append("Shoe track: the joints below the float collar; they fill from the hole.")
     if lp.verdict not in (Verdict.LANDS_OPEN, Verdict.LANDS_FLOATED, Verdict.LANDS_STAGED):
         legend.insert(0, "DO NOT RUN: the string cannot be landed as planned"
                          + (" (a loaded part is unrated)" if lp.verdict == Verdict.CANNOT_CONFIRM else "")

@@ -11,6 +11,7 @@ the document id, and no clock is read.
 from __future__ import annotations
 
 import io
+import math
 from xml.sax.saxutils import escape
 
 from reportlab import rl_config
@@ -137,36 +138,52 @@ def _facts(block: Facts, st, width) -> list:
     return [KeepTogether(out)] if len(rows) < 30 else out
 
 
-def _table(block, st, width, font_scale: float = 1.0):
+def _table(block, st, width, pad_v: float = 1.5):
+    """A platypus table: header repeated on each page, rows never split.
+    Cells that fit their column on one line are plain strings (fast); longer
+    ones are paragraphs that wrap."""
+    from reportlab.pdfbase.pdfmetrics import stringWidth
     n = len(block.columns)
     rel = block.widths or (1,) * n
     tot = float(sum(rel))
     col_w = [width * r / tot for r in rel]
     align = block.align or "l" * n
     emph = set(block.emphasis)
+    font, bold = st["cell"].fontName, st["cellb"].fontName
+    size, leading = st["cell"].fontSize, st["cell"].leading
+    pad = 5.0
     head = [_p(c, st["cellb"] if align[i] == "l" else st["cellrb"])
             for i, c in enumerate(block.columns)]
     data = [head]
     for r, row in enumerate(block.rows):
-        bold = r in emph
+        f = bold if r in emph else font
         cells = []
         for i, cell in enumerate(row):
-            key = ("cellr" if align[i] == "r" else "cell") + ("b" if bold else "")
-            cells.append(_p(cell, st[key]))
+            text = str(cell)
+            if stringWidth(text, f, size) <= col_w[i] - pad:
+                cells.append(text)
+            else:
+                key = ("cellr" if align[i] == "r" else "cell") + ("b" if r in emph else "")
+                cells.append(_p(text, st[key]))
         data.append(cells)
     t = Table(data, colWidths=col_w, repeatRows=1, hAlign="LEFT")
     style = [
+        ("FONT", (0, 1), (-1, -1), font, size, leading),
         ("BACKGROUND", (0, 0), (-1, 0), HEAD_BG),
         ("LINEBELOW", (0, 0), (-1, 0), 0.6, colors.HexColor("#606060")),
         ("GRID", (0, 0), (-1, -1), 0.25, GRID),
         ("VALIGN", (0, 0), (-1, -1), "TOP"),
-        ("TOPPADDING", (0, 0), (-1, -1), 1.5), ("BOTTOMPADDING", (0, 0), (-1, -1), 1.5),
+        ("TOPPADDING", (0, 0), (-1, -1), pad_v), ("BOTTOMPADDING", (0, 0), (-1, -1), pad_v),
         ("LEFTPADDING", (0, 0), (-1, -1), 2.5), ("RIGHTPADDING", (0, 0), (-1, -1), 2.5),
     ]
+    for i, a in enumerate(align):
+        if a == "r":
+            style.append(("ALIGN", (i, 1), (i, -1), "RIGHT"))
     for r in range(2, len(data), 2):
         style.append(("BACKGROUND", (0, r), (-1, r), STRIPE))
     for r in emph:
         style.append(("BACKGROUND", (0, r + 1), (-1, r + 1), colors.HexColor("#fde9c8")))
+        style.append(("FONT", (0, r + 1), (-1, r + 1), bold, size, leading))
     t.setStyle(TableStyle(style))
     return t
 
@@ -213,31 +230,55 @@ def _crew(block: CrewSheet, st, width, height) -> list:
     the page needs, in the largest type that fits (down to 5.5 pt)."""
     legend = [_p(x, st["body"]) for x in block.legend]
     legend_h = sum(p.wrap(width, height)[1] + 4 for p in legend) + 40
+    from reportlab.pdfbase.pdfmetrics import stringWidth
     n = len(block.rows)
-    rel = (1.0, 1.8, 2.3, 4.4, 2.3, 4.0)
     gap = 6
     room = height - legend_h
     emph = set(block.emphasis)
+    wide = 3                       # the action column takes what is left
+
+    def widths(size, inner_w):
+        """Each column as wide as its widest cell (bold), the action column
+        the rest; None when the action column would be too narrow."""
+        font = st["cellb"].fontName
+        w = [max([stringWidth(str(r[i]), font, size) for r in block.rows]
+                 + [stringWidth(word, font, size) for word in str(block.columns[i]).split()]
+                 + [size * 2.2]) + 6.0
+             for i in range(len(block.columns))]
+        rest = inner_w - (sum(w) - w[wide])
+        if rest < size * 6:
+            return None
+        w[wide] = rest
+        return tuple(w)
+
+    def pad_v(size):
+        return 1.5 if size >= 7 else 0.6
 
     def build(size, nblocks, per):
         cs = {k: ParagraphStyle(k, parent=st[k], fontSize=size, leading=size * 1.2)
               for k in ("cell", "cellb", "cellr", "cellrb")}
         inner_w = (width - gap * (nblocks - 1)) / nblocks
+        rel = widths(size, inner_w)
+        if rel is None:
+            return None, math.inf, inner_w
         tables = []
         for b in range(-(-n // per)):
             chunk = block.rows[b * per:(b + 1) * per]
             sub = Tab("", block.columns, tuple(chunk), block.align, rel,
                       emphasis=tuple(i - b * per for i in emph if b * per <= i < (b + 1) * per))
-            tables.append(_table(sub, cs, inner_w))
+            tables.append(_table(sub, cs, inner_w, pad_v(size)))
         tallest = max(t.wrap(inner_w, room)[1] for t in tables)
         return tables, tallest, inner_w
 
     chosen = None
-    for nblocks in (1, 2, 3):
-        for size in (8.0, 7.5, 7.0, 6.5, 6.0, 5.5):
-            if nblocks == 3 and size > 6.5:
+    for size in (8.0, 7.5, 7.0, 6.5, 6.0, 5.5):     # the largest type first
+        for nblocks in (1, 2, 3):
+            if nblocks == 3 and size > 7.0:
                 continue
-            tables, tallest, inner_w = build(size, nblocks, -(-n // nblocks))
+            per = -(-n // nblocks)
+            if (per + 1) * (size * 1.2 + 2 * pad_v(size)) > room:   # even one line a row
+                continue
+            tables, tallest, inner_w = build(size, nblocks, per)
             if tallest <= room:
                 chosen = (tables, nblocks, inner_w)
                 break
@@ -246,15 +287,16 @@ def _crew(block: CrewSheet, st, width, height) -> list:
     if chosen is None:
         # more joints than one page holds: the most rows a block takes at
         # 5.5 pt, three blocks a page, page after page
-        lo, hi = 5, n
+        nb = next((k for k in (3, 2, 1) if build(5.5, k, 1)[0] is not None), 1)
+        lo, hi = 1, n
         while lo < hi:
             mid = (lo + hi + 1) // 2
-            if build(5.5, 3, mid)[1] <= room:
+            if build(5.5, nb, mid)[1] <= room:
                 lo = mid
             else:
                 hi = mid - 1
-        tables, _, inner_w = build(5.5, 3, lo)
-        chosen = (tables, 3, inner_w)
+        tables, _, inner_w = build(5.5, nb, lo)
+        chosen = (tables, nb, inner_w)
     tables, nblocks, inner_w = chosen
     out = [_p(block.title, st["h1"])] + legend
     for i in range(0, len(tables), nblocks):

@@ -88,6 +88,8 @@ def governing_step(landing) -> int:
     g = landing.governing
     if g is not None and getattr(g, "step", None):
         return int(g.step)
+    if _staged_split(landing):
+        return _staged_split(landing)      # stage 1 made up whole: its heaviest
     opt = landing.best_float
     chk = landing.chosen
     if opt is not None and opt.schedule is not None and not chk.closure.is_open \
@@ -108,6 +110,41 @@ def _sections(kinds, od, bore, first, last):
             out.append((start, i - 1))
             start = i
     return out
+
+
+def _staged_split(landing) -> int:
+    """The split of a staged setting when the chosen run is staged, else 0."""
+    st = landing.stages
+    if st is None or str(landing.verdict) != "lands in stages":
+        return 0
+    return int(st.split)
+
+
+def joint_positions(landing, step: int):
+    """Bottom and top depths [m] of joints 1..``step`` at running step ``step``.
+
+    Each stage hangs from the floor while it is run: the shoe of step k is
+    ``loads.shoe_depth[k-1]`` and joint i spans up from it by the lengths of
+    joints 1..i.  In a staged setting, once stage 2 is being run, stage 1
+    (joints 1..split) lies landed at the bottom (its shoe at the sum of all
+    joint lengths) and stage 2 hangs from the floor above it.
+    """
+    j = landing.joints
+    loads = landing.chosen.loads
+    length = np.asarray(j.length, dtype=float)
+    p = _staged_split(landing)
+    if p and step > p:
+        landed = float(np.sum(length))
+        b1 = landed - np.concatenate(([0.0], np.cumsum(length[:p - 1])))
+        shoe2 = float(loads.shoe_depth[step - 1])
+        b2 = shoe2 - np.concatenate(([0.0], np.cumsum(length[p:step - 1])))
+        bottoms = np.concatenate((b1, b2))
+    else:
+        shoe = float(loads.shoe_depth[step - 1])
+        bottoms = shoe - np.concatenate(([0.0], np.cumsum(length[:step - 1])))
+    tops = bottoms - length[:step]
+    tops = np.where(np.abs(tops) < 1e-9, 0.0, tops)
+    return bottoms, tops
 
 
 def well_schematic(landing, step: int | None = None, grout=None) -> Schematic:
@@ -147,10 +184,9 @@ def well_schematic(landing, step: int | None = None, grout=None) -> Schematic:
         marks.append(Mark("fluid level outside", level, hole_r))
         return Schematic(0, n, max(td, landed_shoe), max(hole_r, float(np.max(od)) / 2),
                          tuple(boxes), tuple(sorted(marks, key=lambda m: m.depth)))
-    shoe = float(loads.shoe_depth[step - 1])
-    bottoms = shoe - np.concatenate(([0.0], np.cumsum(length[:step - 1])))
-    tops = np.where(np.abs(bottoms - length[:step]) < 1e-9, 0.0, bottoms - length[:step])
-    string_top = float(tops[-1])
+    bottoms, tops = joint_positions(landing, step)
+    shoe = float(bottoms[0])
+    string_top = float(np.min(tops))
     outer = float(od[:step].max()) / 2
     # the annulus: hole fluid (and grout when landed), below the shoe the whole hole
     grout_top = None
@@ -185,7 +221,10 @@ def well_schematic(landing, step: int | None = None, grout=None) -> Schematic:
         marks.append(Mark("fill level inside", fill, inner_r))
         marks.append(Mark("float shoe" if m == 0 else "float collar", valve, outer))
     # the pipe walls, section by section (a screen or sump run stands apart)
-    for a, b in _sections(j.kind, od, bore, 0, step - 1):
+    split = _staged_split(landing)
+    runs = (_sections(j.kind, od, bore, 0, split - 1) + _sections(j.kind, od, bore, split, step - 1)
+            if split and step > split else _sections(j.kind, od, bore, 0, step - 1))
+    for a, b in runs:
         kind = j.kind[a]
         box_kind = "screen" if kind == "screen" else "sump" if kind == "sump" else "casing"
         words = kind.replace("_", " ")
