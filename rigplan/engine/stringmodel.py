@@ -216,6 +216,9 @@ class Settings:
     fill_density_alternatives : other fill fluids to compare [kg/m^3]
     float_collar_positions : joints to try for a float collar (besides a
         float shoe) when the planner compares float positions
+    screen_depth_tolerance : how far a screen interval may land from its
+        planned depth before the crew is warned [m]; default 2 ft (0.6096 m,
+        common practice, no source)
     """
 
     fill_density: float = 998.2
@@ -224,6 +227,7 @@ class Settings:
     design: DesignFactors = field(default_factory=DesignFactors)
     fill_density_alternatives: tuple = ()
     float_collar_positions: tuple = (1, 2, 3)
+    screen_depth_tolerance: float = 0.6096
 
 
 @dataclass(frozen=True)

@@ -96,7 +96,7 @@ def plan_dict(landing, plan=None, warnings=(), rig_name: str = "") -> dict:
             "hole_fluid_density": _f(plan.hole.fluid_density),
             "hole_fluid_level": _f(plan.hole.fluid_level), "hole_depth": _f(plan.hole.depth)},
         "rig": {"name": rig_name, **chain_dict(landing.path)},
-        "closure": closure_name(chk.closure),
+        "closure": closure_name(chk.closure, landing.joints.label),
         "switch_joint": landing.switch_joint,
         "next_action": W.next_action(landing, "si"),
         "steps": steps,
@@ -127,7 +127,7 @@ def plan_dict(landing, plan=None, warnings=(), rig_name: str = "") -> dict:
             "feasible": bool(w.feasible[k])} for k in range(n)]
         s = opt.schedule
         out["fill_schedule"] = {
-            "closure": closure_name(opt.closure), "valve_joint": opt.closure.valve_joint,
+            "closure": closure_name(opt.closure, landing.joints.label), "valve_joint": opt.closure.valve_joint,
             "fill_density": _f(opt.fill_density),
             "fill_to_top_through": s.fill_to_top_through,
             "top_ups": [{"joint": t.joint, "before_joint": t.before_joint or None,
@@ -145,7 +145,7 @@ def plan_dict(landing, plan=None, warnings=(), rig_name: str = "") -> dict:
         }
     for o in landing.float_options:
         out["float_options"].append({
-            "closure": closure_name(o.closure), "valve_joint": o.closure.valve_joint,
+            "closure": closure_name(o.closure, landing.joints.label), "valve_joint": o.closure.valve_joint,
             "fill_density": _f(o.fill_density), "lands": o.lands,
             "top_ups": len(o.schedule.top_ups) if o.schedule else None,
             "fill_to_top_through": o.schedule.fill_to_top_through if o.schedule else None,
@@ -328,7 +328,7 @@ def text_renderables(landing, plan=None, system: str = "us", warnings=(), rig_na
     if opt is not None and landing.verdict in (Verdict.LANDS_FLOATED, Verdict.LANDS_OPEN,
                                                Verdict.CANNOT_CONFIRM):
         s = opt.schedule
-        t = Table(title=f"Fill plan: {closure_name(opt.closure)}, fill fluid "
+        t = Table(title=f"Fill plan: {closure_name(opt.closure, landing.joints.label)}, fill fluid "
                         f"{_q(opt.fill_density, 'density', system, 2)}")
         t.add_column("action")
         t.add_column("joint", justify="right")
@@ -349,7 +349,7 @@ def text_renderables(landing, plan=None, system: str = "us", warnings=(), rig_na
             for c in ("equipment", "fill", "lands", "top-ups", "least margin", "why not"):
                 ft.add_column(c)
             for o in landing.float_options:
-                ft.add_row(closure_name(o.closure), _q(o.fill_density, "density", system, 2),
+                ft.add_row(closure_name(o.closure, landing.joints.label), _q(o.fill_density, "density", system, 2),
                            "yes" if o.lands else "no",
                            str(len(o.schedule.top_ups)) if o.schedule else "-",
                            _pct(o.schedule.least_margin) if o.schedule and o.schedule.feasible
@@ -371,7 +371,7 @@ def text_renderables(landing, plan=None, system: str = "us", warnings=(), rig_na
             t.add_row("why not", W.finding_text(st.reason, system))
         out.append(t)
 
-    st_t = Table(title=f"Running steps ({closure_name(chk.closure)})")
+    st_t = Table(title=f"Running steps ({closure_name(chk.closure, landing.joints.label)})")
     for c in ("joint", "shoe depth", "fill level", "hook load", "hook limit", "margin"):
         st_t.add_column(c, justify="right")
     actions = W.step_actions(landing, system)

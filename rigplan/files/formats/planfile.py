@@ -59,6 +59,9 @@ weight (w)::
     min_running_weight = "..."   # F, default 0
     set_down_weight = "..."      # F, default 0
     collar_candidates = [1, 2, 3]  # float collar positions to compare
+    screen_depth_tolerance = "2 ft"  # L, how far a screen interval may land
+                                 # from its planned depth before a warning,
+                                 # 0 to 30 m (100 ft), default 2 ft
 
     [design_factors]             # optional, plain numbers
     tension = 1.6                # defaults from rigplan.engine.stringmodel.DesignFactors
@@ -104,6 +107,7 @@ JOINT_KEYS = ("label",) + COMMON_JOINT_KEYS + ("length", "measured_length", "rej
 FLOAT_KEYS = ("type", "collar_joint", "valve_rating")
 FLOAT_TYPES = ("none", "float_shoe", "float_collar")
 RUNNING_KEYS = ("fill_density", "fill_alternatives", "min_running_weight", "set_down_weight",
+                "screen_depth_tolerance",
                 "collar_candidates")
 DESIGN_KEYS = ("tension", "collapse", "burst")
 GROUT_KEYS = ("density", "height", "inside_density", "inside_level")
@@ -123,6 +127,10 @@ _OPTIONAL_QUANTITIES = (
     ("dmax", "dmax", "diameter", False),
     ("dmin", "dmin", "diameter", False),
 )
+
+#: Screen depth tolerances accepted [m]: 0 to 30 m (about 100 ft, five
+#: joints); more is no longer a check on where a screen lands.
+SCREEN_TOLERANCE_RANGE = (0.0, 30.0)
 
 #: Densities accepted for a drilling fluid, fill fluid or grout [kg/m^3]
 #: (about 5 to 25 ppg): a value outside is almost surely a unit slip.
@@ -486,6 +494,14 @@ def plan_from_data(data: dict, source: str, base_dir=Path("."), default_name: st
                                                         default=0.0, nonnegative=True)
         settings_kw["set_down_weight"] = rt.quantity("set_down_weight", "force", default=0.0,
                                                      nonnegative=True)
+        tol = rt.quantity("screen_depth_tolerance", "length",
+                          default=_DEFAULT_SETTINGS.screen_depth_tolerance)
+        lo, hi = SCREEN_TOLERANCE_RANGE
+        if not lo <= tol <= hi:
+            raise InputError(rt.where("screen_depth_tolerance"),
+                             f"expected a length from {lo:g} to {hi:g} m (0 to 100 ft), got "
+                             f"{rt.raw('screen_depth_tolerance')!r}")
+        settings_kw["screen_depth_tolerance"] = tol
         cands = rt.list_of("collar_candidates")
         if cands is not None:
             checked = []
@@ -656,6 +672,8 @@ def plan_text(plan: StringPlan, system: str = "si", header: str = "") -> str:
     run["min_running_weight"] = quantity_text(s.min_running_weight, "force", system)
     run["set_down_weight"] = quantity_text(s.set_down_weight, "force", system)
     run["collar_candidates"] = [int(v) for v in s.float_collar_positions]
+    if s.screen_depth_tolerance != _DEFAULT_SETTINGS.screen_depth_tolerance:
+        run["screen_depth_tolerance"] = quantity_text(s.screen_depth_tolerance, "length", system)
     doc["running"] = run
     doc["design_factors"] = {"tension": float(s.design.tension),
                              "collapse": float(s.design.collapse),
