@@ -327,6 +327,7 @@ class StringPlan:
     site: str = ""
     notes: str = ""
     source: str = ""
+    report: tuple = ()       # (key, text) pairs of the file's [report] table (packet facts)
 
     def running_joints(self) -> tuple:
         """The joints that go in the hole, in running order."""

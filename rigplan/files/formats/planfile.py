@@ -105,7 +105,7 @@ from rigplan.engine.stringmodel import (CONNECTION_KINDS, JOINT_KINDS, Closure, 
 
 TOP_KEYS = ("version", "units", "name", "well", "site", "notes", "tally", "hole", "section",
             "joint", "float_equipment", "running", "design_factors", "grout",
-            "existing_casing", "liner_fit")
+            "existing_casing", "liner_fit", "report")
 HOLE_KEYS = ("fluid_density", "fluid_level", "depth", "diameter", "temperature")
 COMMON_JOINT_KEYS = ("kind", "material", "od", "wall", "connection", "weld_efficiency",
                      "connection_rating", "tensile_rating", "collapse_rating", "burst_rating",
@@ -120,6 +120,8 @@ RUNNING_KEYS = ("fill_density", "fill_alternatives", "min_running_weight", "set_
                 "collar_candidates")
 DESIGN_KEYS = ("tension", "collapse", "burst")
 GROUT_KEYS = ("density", "height", "inside_density", "inside_level", "temperature_rise")
+#: The printed job packet's facts: text, kept as written (a TOML date is read as YYYY-MM-DD).
+REPORT_KEYS = ("revision", "date", "prepared_by", "reviewed_by")
 
 # file key -> (JointSpec field, quantity kind) for the optional quantities
 _OPTIONAL_QUANTITIES = (
@@ -240,6 +242,20 @@ def _fluid_density(t: Table, key: str, default=None, required: bool = False, ind
                                 f"{lo:.0f} and {hi:.0f} kg/m3 (about 5 to 25 ppg); check the unit "
                                 "(bare numbers are in the file's units)")
     return rho
+
+
+def _report_table(t) -> tuple:
+    """``(key, text)`` pairs of the ``[report]`` table, in REPORT_KEYS order."""
+    if t is None:
+        return ()
+    import datetime
+    out = []
+    for key in REPORT_KEYS:
+        if key in t.data and isinstance(t.data[key], (datetime.date, datetime.datetime)):
+            out.append((key, t.data[key].isoformat()))
+        elif key in t.data:
+            out.append((key, t.text(key)))
+    return tuple(out)
 
 
 def _material_key(t: Table, key: str = "material") -> str:
@@ -446,6 +462,8 @@ def plan_from_data(data: dict, source: str, base_dir=Path("."), default_name: st
     site = top.text("site")
     notes = top.text("notes")
 
+    report = _report_table(top.table("report", REPORT_KEYS))
+
     # hole
     ht = top.table("hole", HOLE_KEYS)
     if ht is None:
@@ -631,7 +649,8 @@ def plan_from_data(data: dict, source: str, base_dir=Path("."), default_name: st
                             f"({hole.diameter * 1000:.1f} mm)")
 
     plan = StringPlan(name=name, well=well, hole=hole, joints=tuple(joints), closure=closure,
-                      settings=settings, grout=grout, site=site, notes=notes, source=source)
+                      settings=settings, grout=grout, site=site, notes=notes, source=source,
+                      report=report)
     return PlanRead(plan=plan, warnings=tuple(warnings), tally_path=tally_path, units=system)
 
 
@@ -754,6 +773,8 @@ def plan_text(plan: StringPlan, system: str = "si", header: str = "") -> str:
         if g.temperature_rise:
             doc["grout"]["temperature_rise"] = _temperature_text(g.temperature_rise, system,
                                                                  difference=True)
+    if plan.report:
+        doc["report"] = dict(plan.report)
     if not header:
         header = f"rigplan string plan: {plan.name}" + (f", well {plan.well}" if plan.well else "")
     return dump_toml(doc, header=header)
