@@ -17,7 +17,7 @@ from rigplan.engine.axial import (neutral_point_depth, running_loads, step_profi
 from rigplan.engine.hydrostatics import buoyancy_factor, hydrostatic_pressure
 from rigplan.engine.stringmodel import G, Closure, Hole, JointArrays
 
-from _units import ft as FT, inch as INCH, lbf as LBF, ppg as PPG, psi as PSI  # NIST SP 811
+from _units import ft as FT, inch as INCH, lbf as LBF, psi as PSI  # NIST SP 811
 STEEL = 7850.0
 
 

@@ -35,7 +35,7 @@ from rigplan.engine.buckling import (HELICAL, SINUSOIDAL, STRAIGHT, check_buckli
                                      second_moment_of_area, sinusoidal_critical_load)
 from rigplan.engine.stringmodel import G, Closure, Hole, JointArrays
 
-from _units import ft as FT, inch as INCH, lbf as LBF, ppg as PPG, psi as PSI  # NIST SP 811
+from _units import ft as FT, inch as INCH, lbf as LBF, psi as PSI  # NIST SP 811
 E_STEEL_PSI = 30e6                  # Young's modulus of steel, 30 x 10^6 psi (handbook value)
 
 

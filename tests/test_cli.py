@@ -6,8 +6,6 @@ number from them.
 """
 
 import json
-import subprocess
-import sys
 from pathlib import Path
 
 import pytest

@@ -5,8 +5,6 @@ engine (rigplan.engine.axial) against that reference."""
 from __future__ import annotations
 
 import math
-import sys
-from pathlib import Path
 
 import numpy as np
 import pytest
@@ -17,8 +15,7 @@ from rigplan.engine.stringmodel import G, Closure, Hole, JointArrays
 from benchmarks import reference as ref
 
 # Exact unit definitions (NIST SP 811 appendix B).
-from _units import ft as FT, gal as GAL, inch as INCH, lb as LB, lbf as LBF  # noqa: F401
-from _units import ppg as PPG, psi as PSI  # noqa: F401
+from _units import ft as FT, inch as INCH, lbf as LBF, ppg as PPG, psi as PSI  # noqa: F401
 
 
 def make_joints(length, od, bore, weight):
