@@ -21,6 +21,7 @@ class OverviewPane(VerticalScroll):
     def compose(self) -> ComposeResult:
         yield Static("", id="verdict", markup=False)
         yield Static("", id="next-action", classes="line next", markup=False)
+        yield Static("", id="reasons", classes="line dim", markup=False)
         yield Static("", id="governing", classes="line", markup=False)
         yield Static("", id="path-line", classes="line", markup=False)
         yield Static("", id="fill-plan", classes="line", markup=False)
@@ -29,7 +30,6 @@ class OverviewPane(VerticalScroll):
         yield Static("", id="set-down-line", classes="line", markup=False)
         yield Static("", id="progress", classes="line", markup=False)
         yield Static("", id="landing", classes="line", markup=False)
-        yield Static("", id="reasons", classes="line dim", markup=False)
         yield Static("", id="warnings", classes="line dim", markup=False)
 
     def show(self, session) -> None:
@@ -63,7 +63,7 @@ class OverviewPane(VerticalScroll):
         self.query_one("#progress", Static).update(
             f"Run log: {session.step} of {total} joints in the hole, "
             f"{len(session.state.rejected)} set aside, "
-            f"{len(session.state.observations)} weight readings; next joint: "
+            f"weight readings: {len(session.state.observations)}; next joint: "
             f"{nxt.label if nxt is not None else 'none (all in)'}"
             + ("   [plan edited, not saved: s on the String tab]" if session.dirty else ""))
         warnings = list(session.warnings) + [w for w in session.length_warnings
