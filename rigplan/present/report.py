@@ -81,6 +81,8 @@ def plan_dict(landing, plan=None, warnings=(), rig_name: str = "") -> dict:
         "collapse_utilization": _f(chk.collapse_utilization[i]),
         "burst_rating": _f(j.burst_rating[i]), "max_burst_load": _f(loads.burst_max[i]),
         "burst_utilization": _f(chk.burst_utilization[i]),
+        "rating_basis": _rating_basis(j, i),
+        "rating_flags": [str(f.code) for f in j.findings if f.joint == i + 1],
     } for i in range(n)]
     gov = landing.governing
     out = {
@@ -274,6 +276,41 @@ def grouting_dict(g) -> dict:
 # ---------------------------------------------------------------------------
 # text
 
+def _rating_basis(j, i) -> dict:
+    """What joint ``i``'s collapse, burst and tension ratings rest on."""
+    def pick(basis):
+        return basis[i] if basis else None
+    return {"collapse": pick(j.collapse_basis), "burst": pick(j.burst_basis),
+            "tension": pick(j.tension_basis)}
+
+
+#: Short labels of the rating bases for the per-joint table.
+_BASIS_LABEL = {"specified wall": "specified", "minimum wall": "minimum", "measured wall": "measured",
+                "maker's figure": "maker", "unrated": "-"}
+
+
+def _rating_flag_lines(joints, system) -> list:
+    """One line per rating finding (measured wall, ellipticity, temperature)."""
+    out = []
+    for f in joints.findings:
+        q = f.quantities
+        if "measured_wall" in q:
+            what = (f"measured wall {_q(f.value('measured_wall'), 'diameter', system, 3)} is under "
+                    f"the standard's minimum {_q(f.value('minimum_wall'), 'diameter', system, 3)}: "
+                    "rated on the measured wall")
+        elif "ellipticity" in q:
+            what = (f"measured ellipticity {100 * f.value('ellipticity'):.2f} % is above the "
+                    f"{100 * f.value('assumed_ellipticity'):.2f} % the plan assumed: rated at the "
+                    "measured one")
+        elif "temperature" in q:
+            what = (f"{f.value('temperature'):.0f} C is above its temperature-derating table: "
+                    "pressure and collapse unrated")
+        else:
+            what = str(f.code)
+        out.append(f"joint {f.joint} ({f.label}): {what}")
+    return out
+
+
 def _pct(x) -> str:
     return percent(x, "unrated")
 
@@ -395,21 +432,24 @@ def text_renderables(landing, plan=None, system: str = "us", warnings=(), rig_na
                         f"{loads.envelope_step[i]}, utilization {_pct(tu[i])} "
                         f"(design factor {landing.settings.design.tension})"))
     jt = Table(title="Per joint: tension, collapse and burst utilization (design factors applied)",
-               caption="Ratings are on the minimum wall (the specified wall less the standard's "
-                       "under-tolerance) unless a measured wall is given, so API-grade figures "
-                       "sit below the API tables, which use the specified wall.")
+               caption="Rated on: API grades on the specified wall (API TR 5C3); other steel "
+                       "and PVC on the minimum wall the standard allows; a measured wall or the "
+                       "maker's figure where given. PVC derated for the job temperature.")
     for c in ("joint", "kind", "max tension", "tension", "collapse load", "collapse rating",
-              "collapse", "burst"):
+              "rated on", "collapse", "burst"):
         jt.add_column(c, justify="right")
     for i in range(n):
         jt.add_row(f"{i + 1} {j.label[i]}", j.kind[i],
                    _q(loads.envelope_max[i], "force", system, 0), _pct(tu[i]),
                    _q(loads.collapse_max[i], "pressure", system, 0),
                    _q(j.collapse_rating[i], "pressure", system, 0),
+                   _BASIS_LABEL.get(j.collapse_basis[i], "") if j.collapse_basis else "",
                    _pct(chk.collapse_utilization[i]) if loads.collapse_max[i] > 0 or
                    np.isfinite(chk.collapse_utilization[i]) else "unrated",
                    _pct(chk.burst_utilization[i]))
     out.append(jt)
+    for line in _rating_flag_lines(j, system):
+        out.append(Text(f"Rack measurement: {line}", "yellow"))
     g = landing.grouting
     if g is not None:
         text = Text("Grouting: ")
