@@ -235,8 +235,15 @@ _UNRATED_PART = {"tension": "tension at the top of joint", "collapse": "collapse
                              "yield not given) of joint"}
 
 
+def _valve(f: Finding) -> str:
+    """The float equipment of a finding, by the collar joint's label when known."""
+    m = f.get("valve_joint")
+    label = f.get("valve_label")
+    return closure_name(m, None if not label else [""] * (m - 1) + [label])
+
+
 def _float_name(f: Finding, system: str) -> str:
-    return (f"{closure_name(f.get('valve_joint'))} with fill "
+    return (f"{_valve(f)} with fill "
             f"{fmt(f.value('fill_density'), Kind.DENSITY, system)}")
 
 
@@ -272,15 +279,15 @@ _WORDS = {
         f"{_UNRATED_PART[f.get('part')]} {f.joint}" + (f" ({f.label})" if f.label else "")),
     PlanCode.UNRATED_COMPONENT: lambda f, s: f"{f.get('component')} on hoisting path {f.get('path')!r}",
     PlanCode.EMPTY_COLLAPSES: lambda f, s: (
-        f"{_float_name(f, s)}: left empty the pipe would collapse by joint {f.joint}"
+        f"{_float_name(f, s)}: left empty the pipe would collapse by {_joint(f.joint, f.label)}"
         + (f"; never leave more than {_q(f, 'longest_empty', s, 1)} empty above the valve"
            if f.quantities['longest_empty'].known else "")),
     PlanCode.EMPTY_FLOATS: lambda f, s: (
-        f"{_float_name(f, s)}: left empty the string floats (negative hook load) from joint "
-        f"{f.joint}: fill it or it will not go down"),
+        f"{_float_name(f, s)}: left empty the string floats (negative hook load) from "
+        f"{_joint(f.joint, f.label)}: fill it or it will not go down"),
     PlanCode.EMPTY_TOO_LIGHT: lambda f, s: (
         f"{_float_name(f, s)}: left empty the string load falls below the minimum running "
-        f"weight from joint {f.joint}"),
+        f"weight from {_joint(f.joint, f.label)}"),
     PlanCode.SET_DOWN_TOO_HEAVY: lambda f, s: (
         f"the set-down weight {_q(f, 'set_down', s)} buckles a screen or overstresses a joint "
         "below the neutral point: "
