@@ -26,7 +26,7 @@ from rigplan.engine.axial import RunningLoads, neutral_point_depth, running_load
 from rigplan.engine.floatplan import (EmptyRun, FillSchedule, FillWindow, empty_run, fill_schedule,
                                fill_window, switch_point)
 from rigplan.engine.hoisting import PathCapacity, Rig, path_capacity
-from rigplan.engine.staging import StagedPlan, plan_two_stages
+from rigplan.engine.staging import StagedPlan, StageFailure, StagePhase, plan_two_stages
 from rigplan.engine.stringmodel import Closure, GroutSpec, Hole, JointArrays, Settings
 
 LANDS_OPEN = "lands open"
@@ -463,13 +463,24 @@ def plan_landing(joints: JointArrays, hole: Hole, rig: Rig, settings: Settings,
             else:
                 stages = plan_two_stages(joints, hole, limit, ls.weight_per_length,
                                          ls.tensile_rating, ls.density,
-                                         settings.design.tension, open_loads)
+                                         settings.design.tension, open_loads, dead_load=dead,
+                                         joint_length=ls.joint_length,
+                                         set_down_weight=settings.set_down_weight)
                 if stages.feasible:
-                    verdict = LANDS_STAGED
-                    chosen = check_run(joints, _staged_loads(open_loads, stages), Closure(),
+                    staged = check_run(joints, _staged_loads(open_loads, stages), Closure(),
                                        limit, settings, dead_load=dead)
+                    # hoisting is checked by the stages, step by step; the
+                    # joints' own limits by the staged run
+                    over = [lim for lim in staged.limits
+                            if lim.name != "hoisting capacity" and lim.margin < -1e-12]
+                    if over:
+                        reasons.append(f"staged setting: {over[0].name} over its limit at "
+                                       f"{over[0].where}")
+                    else:
+                        verdict = LANDS_STAGED
+                        chosen = staged
                 else:
-                    reasons.append(f"staged setting: {stages.reason}")
+                    reasons.append(f"staged setting: {_stage_failure_words(stages, joints)}")
             if verdict is None:
                 verdict = CANNOT_LAND
 
@@ -493,16 +504,23 @@ def plan_landing(joints: JointArrays, hole: Hole, rig: Rig, settings: Settings,
                        + "; ".join(unrated[:5]) + (" ..." if len(unrated) > 5 else ""))
         verdict = CANNOT_CONFIRM
     governing = _governing(chosen) if hole_limit is None else hole_limit
-    if verdict == LANDS_STAGED and stages is not None:
-        governing = Limit(stages.governing, f"split above joint {stages.split}",
-                          0.0, 0.0, stages.least_margin)
-    fill_final = 0.0
-    if chosen.closure.valve_joint is not None and best is not None:
-        fill_final = float(np.nan_to_num(best.schedule.fill_level[-1], nan=0.0))
-    prof = step_profile(joints, hole, chosen.closure, joints.n,
-                        best.fill_density if best else 0.0, fill_final,
-                        slack_off=settings.set_down_weight)
-    neutral = neutral_point_depth(prof) if settings.set_down_weight > 0 else float("nan")
+    staged_here = verdict in (LANDS_STAGED, CANNOT_CONFIRM) and stages is not None \
+        and stages.feasible and chosen.closure.is_open and best is None
+    if staged_here:
+        # the stage check with the least margin, beside the joints' own limits
+        own = [lim for lim in chosen.limits if lim.name != "hoisting capacity"]
+        governing = min([_stage_limit(stages, joints)] + own, key=lambda lim: lim.margin)
+        prof = stages.landed
+        neutral = (stages.stage2_neutral_point if np.isfinite(stages.stage2_neutral_point)
+                   else stages.stage1_neutral_point)
+    else:
+        fill_final = 0.0
+        if chosen.closure.valve_joint is not None and best is not None:
+            fill_final = float(np.nan_to_num(best.schedule.fill_level[-1], nan=0.0))
+        prof = step_profile(joints, hole, chosen.closure, joints.n,
+                            best.fill_density if best else 0.0, fill_final,
+                            slack_off=settings.set_down_weight)
+        neutral = neutral_point_depth(prof) if settings.set_down_weight > 0 else float("nan")
     grouting = None
     if grout is not None:
         from rigplan.engine.grouting import plan_grout_lifts
@@ -514,6 +532,35 @@ def plan_landing(joints: JointArrays, hole: Hole, rig: Rig, settings: Settings,
         switch_joint=switch, neutral_point=neutral, grouting=grouting, landed=prof,
         unrated=unrated, reasons=tuple(reasons), notes=tuple(dict.fromkeys(notes)),
     )
+
+
+def _stage_where(stages: StagedPlan, row: int, joints: JointArrays) -> str:
+    """Where a staged check is worst, in the step table's terms."""
+    st = stages.steps
+    k = int(st.joint[row])
+    if st.phase[row] == StagePhase.LOWERING:
+        if row == st.release_row:
+            return f"release (stage 1, joints 1-{stages.split}, on the landing string)"
+        return (f"lowering stage 1 on the landing string, joint "
+                f"{row - stages.split + 1} of the landing string")
+    return f"{st.phase[row]}, step {k} ({joints.label[k - 1]} at the floor)"
+
+
+def _stage_limit(stages: StagedPlan, joints: JointArrays) -> Limit:
+    """The governing staged check as a :class:`Limit` (real load and capacity)."""
+    c = stages.governing_check
+    return Limit(str(c.name), _stage_where(stages, c.row, joints), c.load, c.capacity,
+                 c.margin, c.kind)
+
+
+def _stage_failure_words(stages: StagedPlan, joints: JointArrays) -> str:
+    if stages.failure == StageFailure.SINGLE_JOINT:
+        return "a single joint cannot be staged"
+    if stages.failure == StageFailure.LANDING_STRING_UNRATED:
+        return "the landing string has no tensile rating"
+    c = stages.governing_check
+    return (f"{c.name} over its limit at the best split (stage 1 = joints 1-{stages.split}), "
+            f"at {_stage_where(stages, c.row, joints)}")
 
 
 def _staged_loads(open_loads: RunningLoads, stages: StagedPlan) -> RunningLoads:

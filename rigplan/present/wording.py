@@ -350,9 +350,11 @@ def running_summary(session) -> list:
     if loads is None and lp.stages is not None:
         st = lp.stages
         lines.append("Hook load per joint: not given by the planner for a staged setting")
-        lines.append(f"Peak string load: stage 1 {fmt(st.stage1_peak, 'force', sys_)}, "
-                     f"stage 2 {fmt(st.stage2_peak, 'force', sys_)} (plus "
-                     f"{fmt(lp.dead_load, 'force', sys_)} of gear on the hook)")
+        lines.append(f"Peak hook load: stage 1 at the floor "
+                     f"{fmt(st.stage1_peak_hook_load, 'force', sys_)}, at release "
+                     f"{fmt(st.release_hook_load, 'force', sys_)}, stage 2 "
+                     f"{fmt(st.stage2_peak_hook_load, 'force', sys_)} (gear on the hook "
+                     f"{fmt(lp.dead_load, 'force', sys_)} included)")
     else:
         now = session.predicted_hook_load()
         lines.append(f"Hook load now (planned): {fmt(now, 'force', sys_)}")
