@@ -34,6 +34,8 @@ def _parser() -> argparse.ArgumentParser:
                         help="hoisting path to use (default: the one with most capacity)")
         sp.add_argument("--units", choices=("us", "si"), default="us",
                         help="display units: US field or SI (default us)")
+        sp.add_argument("--both-units", action="store_true",
+                        help="show every quantity in the other unit system too, in parentheses")
         sp.add_argument("--materials", default=None,
                         help="extra materials file (TOML) to add to the library")
         sp.add_argument("--tally", default=None,
@@ -56,6 +58,8 @@ def _parser() -> argparse.ArgumentParser:
     d = sub.add_parser("demo", help="check every bundled demo job and list the verdicts")
     d.add_argument("--units", choices=("us", "si"), default="us")
     sub.add_parser("rigs", help="list the bundled rig profiles and their hoisting paths")
+    from rigplan.cli_rack import add_commands
+    add_commands(sub, job_args)
     return p
 
 
@@ -81,6 +85,19 @@ def _load(args):
     return job, landing
 
 
+def _system(args) -> str:
+    """The unit system for the presentation layer (``us``, ``si``, ``us+si``, ``si+us``)."""
+    other = {"us": "si", "si": "us"}[args.units]
+    return f"{args.units}+{other}" if getattr(args, "both_units", False) else args.units
+
+
+def _console(**kw):
+    import os
+    from rich.console import Console
+    width = None if sys.stdout.isatty() or "COLUMNS" in os.environ else 120
+    return Console(highlight=False, width=width, **kw)
+
+
 def _exit_for(landing) -> int:
     return EXIT_LANDS if landing.lands else EXIT_LIMIT
 
@@ -88,22 +105,33 @@ def _exit_for(landing) -> int:
 def cmd_check(args) -> int:
     from rigplan.present.report import plan_dict, text_renderables
     job, landing = _load(args)
+    from rigplan.cli_rack import liner_of
+    liner = liner_of(job, landing)
     if args.format == "json":
         doc = plan_dict(landing, job.plan, job.warnings, job.rig.name)
+        if liner is not None:
+            from rigplan.present.rack import liner_dict
+            doc["liner"] = {k: v for k, v in liner_dict(liner, {}).items() if k != "plan"}
         doc["exit_code"] = _exit_for(landing)
         json.dump(doc, sys.stdout, indent=1, allow_nan=False)
         sys.stdout.write("\n")
     else:
-        from rich.console import Console
-        console = Console(highlight=False, width=None if sys.stdout.isatty() else 120)
+        console = _console()
         try:
-            for r in text_renderables(landing, job.plan, args.units, job.warnings, job.rig.name,
+            for r in text_renderables(landing, job.plan, _system(args), job.warnings, job.rig.name,
                                       all_steps=not args.brief):
                 console.print(r)
+            if liner is not None:
+                from rigplan.present.rack import liner_lines
+                console.print("Liner in the old casing (rigplan liner gives the full profile):")
+                for line in liner_lines(liner, _system(args)):
+                    console.print("  " + line, markup=False)
         except SystemExit:
             # rich ends the process this way when the reader of a pipe (such
             # as `| head`) has gone: the verdict still decides the exit code
             pass
+    if liner is not None and not liner.assessment.fit.fits:
+        return EXIT_LIMIT
     return _exit_for(landing)
 
 
@@ -115,11 +143,11 @@ def cmd_report(args) -> int:
     out = Path(args.output)
     console = Console(record=True, width=110, file=open("/dev/null", "w") if sys.platform != "win32"
                       else None, highlight=False)
-    for r in text_renderables(landing, job.plan, args.units, job.warnings, job.rig.name):
+    for r in text_renderables(landing, job.plan, _system(args), job.warnings, job.rig.name):
         console.print(r)
     if out.suffix.lower() in (".html", ".htm"):
         text = console.export_html(inline_styles=True)
-        title = (f"<title>rigplan: {job.plan.name} - {landing.verdict}</title>\n"
+        title = (f"<title>rigplan: {job.plan.name} - {landing.verdict.value}</title>\n"
                  "<style>@media print { pre { font-size: 7pt; white-space: pre; } "
                  "body { margin: 1cm; } }</style>")
         text = text.replace("<head>", "<head>\n" + title, 1)
@@ -130,37 +158,45 @@ def cmd_report(args) -> int:
     except OSError as err:
         raise InputError(f"{out}", f"cannot write the report ({err.strerror or err}): expected "
                                    "a writable file path") from None
-    print(f"wrote {out} ({landing.verdict})")
+    print(f"wrote {out} ({landing.verdict.value})")
     return _exit_for(landing)
 
 
 def cmd_demo(args) -> int:
-    from rigplan.files.job import demo_jobs, load_job, plan_job
+    """Check every demo job; exit 1 when a verdict is not the one promised."""
+    from rigplan.files.job import DEMO_JOBS, demo_jobs, load_job, plan_job
+    from rigplan.present.wording import limit_place, percent
+    promised = {plan: verdict for plan, _rig, verdict in DEMO_JOBS}
     worst = EXIT_LANDS
     for plan, rig in demo_jobs():
         job = load_job(plan, rig)
         landing = plan_job(job.plan, job.rig)
         g = landing.governing
-        print(f"{plan.name:28s} on {rig.name:24s} {landing.verdict:24s}"
-              f" {g.name if g else ''} margin {100 * g.margin:.1f} %" if g else "")
-        worst = max(worst, _exit_for(landing))
-    return EXIT_LANDS
+        want = promised[plan.name]
+        line = f"{plan.name:28s} on {rig.name:24s} {landing.verdict.value:24s}"
+        if g is not None:
+            line += f" {g.name} at {limit_place(g)}, margin {percent(g.margin)}"
+        if landing.verdict != want:
+            line += f"  <- the README promises: {want}"
+            worst = EXIT_LIMIT
+        print(line)
+    return worst
 
 
 def cmd_rigs(args) -> int:
+    from rigplan.engine.findings import Kind
     from rigplan.files.formats.rigfile import read_rig
     from rigplan.engine.hoisting import path_capacity
     from rigplan.files.job import demo_dir
-    from rigplan.files import units as U
+    from rigplan.present.wording import fmt
     for f in sorted(demo_dir("rigs").glob("*.toml")):
         rig = read_rig(f)
         print(f"{f.name}: {rig.name}")
         for p in rig.paths:
             c = path_capacity(p)
-            print(f"  path {p.name!r}: string limit {U.format(c.string_limit, 'force', 'us', 0)}"
-                  f" ({U.format(c.string_limit, 'force', 'si', 1)}), hook limit "
-                  f"{U.format(c.hook_limit, 'force', 'us', 0)}, governed by {c.governing}"
-                  + (f" ({c.governing_case})" if c.governing_case else ""))
+            print(f"  path {p.name!r}: string limit {fmt(c.string_limit, Kind.FORCE, 'us+si', 0)}"
+                  f", hook limit {fmt(c.hook_limit, Kind.FORCE, 'us+si', 0)}, governed by "
+                  f"{c.governing}" + (f" ({c.governing_case})" if c.governing_case else ""))
     return EXIT_LANDS
 
 
@@ -181,6 +217,9 @@ def main(argv=None) -> int:
             from rigplan.tui.app import run_app
             run_app(plan, rig, None, "us")
             return EXIT_LANDS
+        if args.command in ("place", "liner"):
+            from rigplan import cli_rack
+            return getattr(cli_rack, f"cmd_{args.command}")(args, _load)
         return {"check": cmd_check, "open": cmd_open, "report": cmd_report,
                 "demo": cmd_demo, "rigs": cmd_rigs}[args.command](args)
     except InputError as err:

@@ -29,6 +29,7 @@ from numpy.testing import assert_allclose
 from rigplan.engine.collapse import timoshenko
 from rigplan.errors import InputError
 from rigplan.engine.grouting import (
+    GroutCode,
     annulus_pressure_with_grout,
     grout_collapse_loads,
     grout_differential_pressure,
@@ -163,7 +164,8 @@ def test_unrated_joint_gives_nan_utilization():
     assert np.all(np.isfinite(np.delete(util, 3)))
     plan = plan_grout_lifts(joints, Hole(MUD), grout, DF)
     assert plan.unrated == ("J4",)
-    assert any("J4" in w and "unrated" in w for w in plan.warnings)
+    assert any(w.code == GroutCode.UNRATED_JOINTS and "J4" in w.get("labels")
+               for w in plan.warnings)
 
 
 # ---------------------------------------------------------------------------
@@ -289,7 +291,7 @@ def test_plan_lifts_follow_hand_recursion_and_stay_within_rating():
         expected.append((b, t))
         b = t
     assert len(expected) >= 3
-    assert plan.feasible and plan.reason == ""
+    assert plan.feasible and plan.reason is None
     assert plan.n_lifts == len(expected) == len(plan.lifts)
     assert_allclose(np.array(plan.lifts), np.array(expected), rtol=1e-11, atol=1e-9)
     assert not plan.full_column_ok
@@ -333,7 +335,7 @@ def test_plan_infeasible_when_hole_fluid_alone_overloads():
     assert MUD * G * 240.0 > R16 / DF
     plan = plan_grout_lifts(joints, Hole(MUD), grout, DF)
     assert not plan.feasible and plan.n_lifts == 0 and plan.lifts == ()
-    assert "J1" in plan.reason and "before grout" in plan.reason
+    assert plan.reason.code == GroutCode.OVERLOADED_BEFORE_GROUT and plan.reason.label == "J1"
     assert plan.max_single_lift == 0.0
     assert not plan.full_column_ok
 
@@ -343,7 +345,7 @@ def test_plan_warns_when_grout_lighter_than_hole_fluid():
     # (hydrostatics: the lighter column rises); warn, do not fail.
     joints = uniform_string(n=10)
     plan = plan_grout_lifts(joints, Hole(1200.0), GroutSpec(1150.0, 20.0, WATER), DF)
-    assert any("lighter than the hole fluid" in w for w in plan.warnings)
+    assert any(w.code == GroutCode.LIGHTER_THAN_HOLE_FLUID for w in plan.warnings)
     assert plan.feasible
 
 

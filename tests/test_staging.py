@@ -4,7 +4,8 @@ import numpy as np
 from numpy.testing import assert_allclose
 
 from rigplan.engine.axial import running_loads
-from rigplan.engine.staging import StageFailure, landing_string_load, plan_two_stages
+from rigplan.engine.findings import LimitName
+from rigplan.engine.staging import StagingCode, landing_string_load, plan_two_stages
 from rigplan.engine.stringmodel import G, Closure, Hole, JointArrays
 
 INCH = 0.0254
@@ -60,7 +61,7 @@ def test_best_split_matches_brute_force_and_closed_form():
 def test_unrated_landing_string_is_refused():
     # Rule of the project: an unrated part is never assumed.
     plan = plan_two_stages(uniform(20), Hole(1100.0), 1e6, 200.0, float("nan"))
-    assert not plan.feasible and plan.failure == StageFailure.LANDING_STRING_UNRATED
+    assert not plan.feasible and plan.reason.code == StagingCode.NO_TENSILE_RATING
 
 
 def test_split_search_with_a_weak_landing_string_matches_brute_force():
@@ -88,8 +89,7 @@ def test_split_search_with_a_weak_landing_string_matches_brute_force():
 # ---------------------------------------------------------------------------
 # The staged step table, hook and string loads, the lowering, the landed state
 
-from rigplan.engine.staging import (StageLimit, StagePhase, lowering_positions,  # noqa: E402
-                                    staged_plan_at)
+from rigplan.engine.staging import StagePhase, lowering_positions, staged_plan_at  # noqa: E402
 
 
 def test_lowering_on_the_landing_string_is_in_the_step_table():
@@ -135,12 +135,12 @@ def test_lowering_on_the_landing_string_is_in_the_step_table():
     assert_allclose(st.margin, (limit + dead - st.hook_load) / (limit + dead), rtol=1e-9)
     # every check carries its real load and capacity
     by_name = {c.name: c for c in plan.checks}
-    assert_allclose(by_name[StageLimit.LOWERING_HOISTING].load, plan.release_hook_load,
+    assert_allclose(by_name[LimitName.LOWERING_HOISTING].load, plan.release_hook_load,
                     rtol=1e-12)
-    assert_allclose(by_name[StageLimit.LOWERING_HOISTING].capacity, limit + dead, rtol=1e-12)
-    assert_allclose(by_name[StageLimit.LANDING_STRING_TENSION].load, b * p + q * release,
+    assert_allclose(by_name[LimitName.LOWERING_HOISTING].capacity, limit + dead, rtol=1e-12)
+    assert_allclose(by_name[LimitName.LANDING_STRING].load, b * p + q * release,
                     rtol=1e-9)
-    assert by_name[StageLimit.LANDING_STRING_TENSION].capacity == 2e6
+    assert by_name[LimitName.LANDING_STRING].capacity == 2e6
     gov = plan.governing_check
     assert gov.name == plan.governing and gov.load > 0 and gov.capacity > 0
     assert_allclose(gov.margin, (gov.capacity - gov.load) / gov.capacity, rtol=1e-9)
@@ -224,7 +224,7 @@ def test_planner_reports_the_staged_limit_with_its_load_and_capacity():
     lp = plan_landing(j, hole, rig, Settings(float_collar_positions=()), Closure())
     assert lp.verdict == LANDS_STAGED
     gov, c = lp.governing, lp.stages.governing_check
-    assert gov.name == str(c.name) and gov.load == c.load and gov.capacity == c.capacity
+    assert gov.name == c.name and gov.load == c.load and gov.capacity == c.capacity
     assert gov.load > 0 and gov.capacity > 0
     doc = plan_dict(lp)
     rows = doc["steps"]

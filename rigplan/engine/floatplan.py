@@ -40,12 +40,14 @@ top-ups) and evaluates its candidates together.
 
 from __future__ import annotations
 
+import enum
 from bisect import bisect_right
 from dataclasses import dataclass, field
 
 import numpy as np
 
 from rigplan.engine.axial import StringGeometry, string_geometry, string_load_by_step
+from rigplan.engine.findings import Finding, LimitName, Severity
 from rigplan.engine.hydrostatics import collapse_load
 from rigplan.engine.stringmodel import G, Closure, Hole, JointArrays
 
@@ -174,7 +176,20 @@ def collapse_required_height(geo: StringGeometry, hole: Hole, fill_density: floa
 
 
 #: Names of the limits that bound the fill from below, by code.
-_LIMIT_NAMES = np.array(["", "collapse", "check valve", "running weight"], dtype=object)
+_LIMIT_NAMES = np.array(["", LimitName.COLLAPSE, LimitName.CHECK_VALVE,
+                         LimitName.RUNNING_WEIGHT], dtype=object)
+
+
+class FloatCode(enum.StrEnum):
+    """Why a fill schedule fails (``FillSchedule.failure.code``)."""
+
+    #: the fill carried down from above is over the window's upper side
+    #: (context ``limit``: that side's :class:`LimitName`, "" for the pipe full)
+    CARRIED_FILL_OVER = "float.carried_fill_over"
+    #: no fill level keeps every limit at this step (context ``empty_limit``
+    #: and ``full_limit``: the two sides that meet; ``full_limit`` is None when
+    #: the window closes against the fill a later step allows)
+    WINDOW_CLOSED = "float.window_closed"
 
 
 def _collapse_required_height(geo, hole, fill_density, allowable, valve_allowable):
@@ -381,19 +396,14 @@ def fill_window(joints: JointArrays, hole: Hole, closure: Closure, fill_density:
 
 
 #: Name of the limit that bounds the fill from above, by code.
-_FULL_NAMES = np.array(["", "hoisting capacity", "valve balance"], dtype=object)
+_FULL_NAMES = np.array(["", LimitName.HOISTING, LimitName.VALVE_BALANCE], dtype=object)
 
 #: What closes a step's window, by code: the empty-side name when the window
-#: is open (0-3), else ``4 + 3 x empty-side code + full-side code``.
+#: is open (0-3), else ``4 + 3 x empty-side code + full-side code`` written
+#: ``"<empty side>+<full side>"`` ("full pipe" where the pipe full bounds it).
 _CLOSING_NAMES = np.array(
     list(_LIMIT_NAMES)
-    + [msg for low in _LIMIT_NAMES for msg in (
-        "the string is too light (floats) even with the pipe full"
-        if low == "running weight" else f"{low} even with the pipe full",
-        f"{low} vs hoisting capacity",
-        "the string is too light (floats) even with the fill at its balance level"
-        if low == "running weight" else
-        f"{low} vs valve balance (heavier fill drains out through the check valve)")],
+    + [f"{low}+{high or 'full pipe'}" for low in _LIMIT_NAMES for high in _FULL_NAMES],
     dtype=object)
 
 
@@ -431,7 +441,8 @@ class FillSchedule:
     least_margin_step : where it occurs (1-based)
     feasible : every step inside its window
     failure_step, failure : first step that cannot be kept inside the
-        window, and why (0, "" when feasible)
+        window, and why (a :class:`Finding` with a :class:`FloatCode`;
+        0 and None when feasible)
     """
 
     fill_density: float
@@ -447,7 +458,7 @@ class FillSchedule:
     least_margin_step: int
     feasible: bool
     failure_step: int = 0
-    failure: str = ""
+    failure: Finding | None = None
     added_volume: float = 0.0
     notes: tuple = field(default_factory=tuple)
     lowered_below_window: tuple = ()
@@ -635,7 +646,7 @@ def fill_schedule(joints: JointArrays, hole: Hole, closure: Closure, fill_densit
         if through > 0 and through <= m:
             s = xv
         tops = []
-        failure_step, failure = 0, ""
+        failure_step, failure = 0, None
         k = through
         while k < n:
             # next step whose floor is above the carried fill, and the first
@@ -654,7 +665,8 @@ def fill_schedule(joints: JointArrays, hole: Hole, closure: Closure, fill_densit
                 kk = k + over
                 heights[k:kk] = s
                 failure_step = kk + 1
-                failure = f"the carried fill is over the {window.full_limit[kk] or 'window'}"
+                failure = Finding(FloatCode.CARRIED_FILL_OVER, Severity.REASON, step=kk + 1,
+                                  context={"limit": str(window.full_limit[kk])})
                 heights[kk:] = s
                 break
             heights[k:k + nxt] = s
@@ -670,8 +682,10 @@ def fill_schedule(joints: JointArrays, hole: Hole, closure: Closure, fill_densit
             ceiling = ceiling_at[at]
             if floor > ceiling + tol:
                 failure_step = k + 1
-                failure = (f"no fill level works at joint {k + 1}: "
-                           f"{window.closing_limit[k] or window.empty_limit[k]}")
+                failure = Finding(FloatCode.WINDOW_CLOSED, Severity.REASON, step=k + 1,
+                                  context={"empty_limit": str(window.empty_limit[k]),
+                                           "full_limit": None if window.feasible[k]
+                                           else str(window.full_limit[k])})
                 heights[k:] = max(s, min(floor, shoe[k]))
                 break
             new = floor + share * (ceiling - floor)

@@ -64,12 +64,14 @@ no source; the lift search is this project's own method.
 
 from __future__ import annotations
 
+import enum
 import math
 from dataclasses import dataclass
 
 import numpy as np
 
 from rigplan.errors import InputError
+from rigplan.engine.findings import Finding, Kind, Severity
 from rigplan.engine.stringmodel import G, GroutSpec, Hole, JointArrays
 
 __all__ = [
@@ -81,8 +83,21 @@ __all__ = [
     "SingleLift",
     "max_single_lift",
     "GroutPlan",
+    "GroutCode",
     "plan_grout_lifts",
 ]
+
+
+class GroutCode(enum.StrEnum):
+    """What the grouting plan has to say (``GroutPlan.reason`` and ``.warnings``)."""
+
+    LIGHTER_THAN_HOLE_FLUID = "grout.lighter_than_hole_fluid"  # grout_density, hole_fluid_density
+    DESIGN_FACTOR_BELOW_1 = "grout.design_factor_below_1"      # context design_factor
+    UNRATED_JOINTS = "grout.unrated_joints"                    # context labels (comma-separated)
+    TOO_MANY_LIFTS = "grout.too_many_lifts"                    # context lifts; height
+    OVERLOADED_BEFORE_GROUT = "grout.overloaded_before_grout"  # label; base, utilization
+    NO_LIFT_POSSIBLE = "grout.no_lift_possible"                # label; base
+    NOT_FEASIBLE = "grout.not_feasible"                        # cause: the reason
 
 #: Utilization above 1 by less than this counts as within the rating
 #: (rounding of the closed-form lift heights) [-].
@@ -625,9 +640,10 @@ class GroutPlan:
         where the lift reaches the planned height or the string top
     n_lifts : number of lifts
     feasible : the lifts reach the planned height
-    reason : why not, "" when feasible
+    reason : why not (a :class:`Finding` with a :class:`GroutCode`), None
+        when feasible
     unrated : labels of joints with no collapse rating (not checked)
-    warnings : notes for the driller (not errors)
+    warnings : findings for the driller (not errors)
     """
 
     planned_height: float
@@ -640,7 +656,7 @@ class GroutPlan:
     lift_limited_by: tuple
     n_lifts: int
     feasible: bool
-    reason: str
+    reason: Finding | None
     unrated: tuple
     warnings: tuple
 
@@ -697,36 +713,40 @@ def plan_grout_lifts(joints: JointArrays, hole: Hole, grout: GroutSpec,
 
     warnings = []
     if rho_g < rho_o:
-        warnings.append(f"grout ({rho_g:.0f} kg/m^3) is lighter than the hole fluid it displaces "
-                        f"({rho_o:.0f} kg/m^3): it will not displace it from the annulus")
+        warnings.append(Finding(GroutCode.LIGHTER_THAN_HOLE_FLUID, Severity.WARNING,
+                                quantities={"grout_density": (rho_g, Kind.DENSITY),
+                                            "hole_fluid_density": (rho_o, Kind.DENSITY)}))
     if df < 1.0:
-        warnings.append(f"collapse design factor {df:g} is below 1: the check allows loads above "
-                        "the rating")
+        warnings.append(Finding(GroutCode.DESIGN_FACTOR_BELOW_1, Severity.WARNING,
+                                quantities={"design_factor": (df, Kind.RATIO)}))
     if unrated:
-        warnings.append("no collapse rating for " + ", ".join(unrated)
-                        + ": not checked while grouting (unrated)")
+        warnings.append(Finding(GroutCode.UNRATED_JOINTS, Severity.WARNING,
+                                context={"labels": ", ".join(unrated)}))
 
-    lifts, limited, reason = [], [], ""
+    lifts, limited, reason = [], [], None
     eps = _ZERO_LIFT * z_shoe
     first = None
     b = 0.0
     while b < h_plan - eps:
         if len(lifts) >= _MAX_LIFTS:
-            reason = (f"more than {_MAX_LIFTS} lifts would be needed to reach {h_plan:.2f} m "
-                      "above the shoe")
+            reason = Finding(GroutCode.TOO_MANY_LIFTS, Severity.REASON,
+                             quantities={"height": (h_plan, Kind.LENGTH)},
+                             context={"lifts": _MAX_LIFTS})
             break
         lift = _max_lift(joints, bottom, top, z_shoe, rating, rho_o, h_o, rho_g, rho_i, h_i, df, b)
         if first is None:
             first = lift.height
         if lift.height <= eps:
-            label = joints.label[lift.limited_by]
+            j = int(lift.limited_by)
+            base = {"base": (float(b), Kind.LENGTH)}
             if lift.overloaded_at_base:
-                reason = (f"{label} is already loaded beyond its collapse rating / DF by the hole "
-                          f"fluid against the inside fluid (utilization {lift.base_utilization:.3g}) "
-                          f"before grout is placed {b:.2f} m above the shoe")
+                reason = Finding(GroutCode.OVERLOADED_BEFORE_GROUT, Severity.REASON,
+                                 joint=j + 1, label=joints.label[j],
+                                 quantities={**base, "utilization": (lift.base_utilization,
+                                                                     Kind.RATIO)})
             else:
-                reason = (f"no grout can be placed on the lift starting {b:.2f} m above the shoe: "
-                          f"{label} reaches its collapse rating / DF at once")
+                reason = Finding(GroutCode.NO_LIFT_POSSIBLE, Severity.REASON,
+                                 joint=j + 1, label=joints.label[j], quantities=base)
             break
         t = float(min(h_plan, lift.top_height))
         lifts.append((float(b), t))
@@ -736,9 +756,9 @@ def plan_grout_lifts(joints: JointArrays, hole: Hole, grout: GroutSpec,
     if first is None:
         first = _max_lift(joints, bottom, top, z_shoe, rating, rho_o, h_o, rho_g, rho_i, h_i,
                           df, 0.0).height
-    feasible = reason == ""
+    feasible = reason is None
     if not feasible:
-        warnings.append(f"grouting plan not feasible: {reason}")
+        warnings.append(Finding(GroutCode.NOT_FEASIBLE, Severity.WARNING, cause=reason))
 
     return GroutPlan(
         planned_height=h_plan, grout_top_depth=z_shoe - h_plan, collapse_load=loads,

@@ -48,6 +48,7 @@ import numpy as np
 
 from rigplan.engine.axial import (StepProfile, neutral_point_depth, running_loads, step_profile,
                                   string_geometry, string_load_by_step)
+from rigplan.engine.findings import Finding, LimitName, Severity
 from rigplan.engine.stringmodel import G, Closure, Hole, JointArrays
 
 #: Default landing-string joint length [m]: 30 ft, range 2 drill pipe
@@ -55,22 +56,19 @@ from rigplan.engine.stringmodel import G, Closure, Hole, JointArrays
 DEFAULT_JOINT_LENGTH = 9.144
 
 
-class StageLimit(enum.StrEnum):
-    """The limits a two-stage setting is checked against."""
+class StagingCode(enum.StrEnum):
+    """Why a staged setting fails (``StagedPlan.reason.code``)."""
 
-    STAGE1_HOISTING = "stage 1 hoisting"            # stage 1 run from the floor
-    LOWERING_HOISTING = "lowering hoisting"         # stage 1 on the landing string
-    LANDING_STRING_TENSION = "landing string tension"
-    STAGE2_HOISTING = "stage 2 hoisting"            # stage 2 run from the floor
+    SINGLE_JOINT = "staging.single_joint"             # one joint cannot be staged
+    NO_TENSILE_RATING = "staging.no_tensile_rating"   # the landing string is unrated
+    OVER_LIMIT = "staging.over_limit"                 # context ``limit``: the limit over at the best split
 
 
-class StageFailure(enum.StrEnum):
-    """Why no two-stage setting was found (empty when one was)."""
-
-    NONE = ""
-    SINGLE_JOINT = "single joint"                   # one joint cannot be staged
-    LANDING_STRING_UNRATED = "landing string unrated"
-    OVER_LIMIT = "over limit"                       # the best split breaks a limit
+#: The staged checks, by their names in :class:`~rigplan.engine.findings.LimitName`:
+#: stage 1 run from the floor, stage 1 lowered on the landing string, the
+#: landing string's own tension, stage 2 run from the floor.
+STAGE_LIMITS = (LimitName.STAGE1_HOISTING, LimitName.LOWERING_HOISTING,
+                LimitName.LANDING_STRING, LimitName.STAGE2_HOISTING)
 
 
 class StagePhase(enum.StrEnum):
@@ -85,7 +83,7 @@ class StagePhase(enum.StrEnum):
 class StageCheck:
     """One staged limit at its worst row, SI.
 
-    name : :class:`StageLimit`
+    name : one of :data:`STAGE_LIMITS`
     row : 0-based row of :class:`StagedSteps` where it is worst
     load : hook load [N] for the hoisting cases (dead load included); the
         design factor times the landing string's top tension [N] for its
@@ -95,7 +93,7 @@ class StageCheck:
     margin : (capacity - load) / capacity [-]
     """
 
-    name: StageLimit
+    name: LimitName
     row: int
     load: float
     capacity: float
@@ -218,9 +216,10 @@ class StagedPlan:
         running stage 2 from the floor [N]
     checks : every :class:`StageCheck`
     least_margin : smallest margin over the checks [-]
-    governing : the :class:`StageLimit` with that margin
+    governing : the :class:`~rigplan.engine.findings.LimitName` with that margin
     feasible : every check within its limit
-    failure : :class:`StageFailure` (``NONE`` when feasible)
+    reason : why no staged setting lands (a :class:`StagingCode` finding;
+        None when feasible)
     steps : :class:`StagedSteps`, every step in running order
     stage1_loads, stage2_loads : the runs of each stage from the floor
         (``RunningLoads``)
@@ -244,9 +243,9 @@ class StagedPlan:
     stage2_peak_string_load: float = float("nan")
     checks: tuple = ()
     least_margin: float = -np.inf
-    governing: StageLimit | None = None
+    governing: LimitName | None = None
     feasible: bool = False
-    failure: StageFailure = StageFailure.NONE
+    reason: Finding | None = None
     steps: StagedSteps | None = field(default=None, repr=False)
     stage1_loads: object = field(default=None, repr=False)
     stage2_loads: object = field(default=None, repr=False)
@@ -330,11 +329,12 @@ def plan_two_stages(joints: JointArrays, hole: Hole, string_limit: float,
     """
     n = joints.n
     if n < 2:
-        return StagedPlan(0, 0.0, dead_load=dead_load, failure=StageFailure.SINGLE_JOINT)
+        return StagedPlan(0, 0.0, dead_load=dead_load,
+                          reason=Finding(StagingCode.SINGLE_JOINT, Severity.REASON))
     if not np.isfinite(tensile_rating) or tensile_rating <= 0:
         return StagedPlan(0, 0.0, dead_load=dead_load,
-                          governing=StageLimit.LANDING_STRING_TENSION,
-                          failure=StageFailure.LANDING_STRING_UNRATED)
+                          governing=LimitName.LANDING_STRING,
+                          reason=Finding(StagingCode.NO_TENSILE_RATING, Severity.REASON))
     if open_loads is None:
         open_loads = running_loads(joints, hole, Closure())
     shoe_final = float(np.sum(joints.length))
@@ -428,15 +428,15 @@ def staged_plan_at(joints: JointArrays, hole: Hole, split: int, string_limit: fl
     )
     hook_limit = string_limit + dead_load
     checks = []
-    for name, rows in ((StageLimit.STAGE1_HOISTING, np.arange(p)),
-                       (StageLimit.LOWERING_HOISTING, np.arange(p, p + nl)),
-                       (StageLimit.STAGE2_HOISTING, np.arange(p + nl, p + nl + n - p))):
+    for name, rows in ((LimitName.STAGE1_HOISTING, np.arange(p)),
+                       (LimitName.LOWERING_HOISTING, np.arange(p, p + nl)),
+                       (LimitName.STAGE2_HOISTING, np.arange(p + nl, p + nl + n - p))):
         r = int(rows[np.argmax(string_load[rows])])
         checks.append(StageCheck(name, r, float(steps.hook_load[r]), hook_limit,
                                  float(steps.margin[r])))
     r = p + int(np.argmax(lowering))
     ls_load = tension_factor * float(lowering[r - p])
-    checks.append(StageCheck(StageLimit.LANDING_STRING_TENSION, r, ls_load, float(tensile_rating),
+    checks.append(StageCheck(LimitName.LANDING_STRING, r, ls_load, float(tensile_rating),
                              float((tensile_rating - ls_load) / tensile_rating)
                              if np.isfinite(tensile_rating) and tensile_rating > 0 else -np.inf))
     gov = min(checks, key=lambda c: c.margin)
@@ -462,7 +462,9 @@ def staged_plan_at(joints: JointArrays, hole: Hole, split: int, string_limit: fl
         landing_string_tension=float(np.max(lowering)),
         stage2_peak_string_load=float(np.max(loads2.string_load)),
         checks=tuple(checks), least_margin=float(gov.margin), governing=gov.name,
-        feasible=feasible, failure=StageFailure.NONE if feasible else StageFailure.OVER_LIMIT,
+        feasible=feasible,
+        reason=None if feasible else Finding(StagingCode.OVER_LIMIT, Severity.REASON, joint=p,
+                                             context={"limit": str(gov.name)}),
         steps=steps, stage1_loads=loads1, stage2_loads=loads2,
         stage1_landed=prof1, stage2_landed=prof2,
         stage1_neutral_point=float(release), stage2_neutral_point=float(np2),

@@ -11,9 +11,9 @@ import math
 
 import numpy as np
 
-from rigplan import CAUTION
-from rigplan.engine.planner import LANDS_FLOATED, LANDS_OPEN, LANDS_STAGED, closure_name
-from rigplan.files import units as U
+from rigplan.engine.findings import Kind, Verdict
+from rigplan.present import wording as W
+from rigplan.present.wording import CAUTION, closure_name, percent
 
 JSON_UNITS = "SI base units: m, N, Pa, kg/m3, m3; margins and utilizations are fractions"
 
@@ -26,59 +26,17 @@ def _f(x):
     return x if math.isfinite(x) else None
 
 
-def next_action(landing, system: str = "si") -> str:
-    """The crew's next instruction in words (from the chosen plan)."""
-    if landing.verdict == LANDS_OPEN:
-        return "run open-ended: the hole fluid fills the pipe through the shoe"
-    if landing.verdict == LANDS_STAGED and landing.stages is not None:
-        s = landing.stages
-        return (f"run joints 1-{s.split} on the landing string, release with its top at "
-                f"{U.format(s.release_depth, 'length', system, 1)}, then run the rest")
-    if landing.verdict == "cannot confirm":
-        parts = "; ".join(landing.unrated[:3]) + (" ..." if len(landing.unrated) > 3 else "")
-        return f"enter the maker's ratings ({parts}), then check again"
-    opt = landing.best_float
-    if opt is None:
-        return "no plan lands this string: see the reasons"
-    sch = opt.schedule
-    words = [f"{closure_name(opt.closure)}: fill each joint to the top through joint "
-             f"{sch.fill_to_top_through}, then stop filling"]
-    for t in sch.top_ups:
-        words.append(f"top up {U.format(t.volume, 'volume', system, 0)} at joint {t.joint}")
-    return "; ".join(words)
-
-
-def step_actions(landing, system: str = "si") -> list:
-    """What the crew does at each running step, in words (from the plan)."""
-    n = landing.joints.n
-    acts = [""] * n
-    if landing.verdict == LANDS_STAGED and landing.stages is not None:
-        p = landing.stages.split
-        acts[p - 1] = "make up the landing string, lower and release stage 1"
-        if p < n:
-            acts[p] = "stage 2: first joint"
-        return acts
-    opt = landing.best_float
-    if opt is None or landing.chosen.closure.is_open:
-        return acts
-    m = opt.closure.valve_joint or 0
-    sch = opt.schedule
-    for k in range(n):
-        if k < m:
-            acts[k] = "shoe track: fills from the hole"
-        elif k < sch.fill_to_top_through:
-            acts[k] = "fill to the top"
-        elif k == sch.fill_to_top_through:
-            acts[k] = "stop filling"
-    if m == 0 or m < n:
-        acts[m] = ("float collar on this joint's bottom; " if m else "") + acts[m]
-    for t in sch.top_ups:
-        acts[t.joint - 1] = f"top up {U.format(t.volume, 'volume', system, 0)}"
-    return acts
+def _texts_and_codes(findings, unrated=()):
+    lines = W.finding_lines(findings, "si", unrated)
+    return [t for _, t in lines], [c for c, _ in lines]
 
 
 def plan_dict(landing, plan=None, warnings=(), rig_name: str = "") -> dict:
-    """One JSON object for a plan, all values SI (see README, JSON keys)."""
+    """One JSON object for a plan, all values SI (see README, JSON keys).
+
+    Every list of findings (``reasons``, ``notes``, ``warnings``,
+    ``unrated``) has its codes beside it (``reason_codes``...), one per line.
+    """
     j = landing.joints
     chk = landing.chosen
     loads = chk.loads
@@ -95,6 +53,10 @@ def plan_dict(landing, plan=None, warnings=(), rig_name: str = "") -> dict:
     shoe = loads.shoe_depth[-1]
     top_depth = shoe - np.cumsum(j.length)
     landed = landing.landed
+    reasons, reason_codes = _texts_and_codes(landing.reasons, landing.unrated)
+    notes, note_codes = _texts_and_codes(landing.notes)
+    warns, warning_codes = _texts_and_codes(warnings)
+    unrated, unrated_codes = _texts_and_codes(landing.unrated)
     tcap = np.where(np.isnan(j.connection_rating) | np.isnan(j.body_rating), np.nan,
                     np.fmin(j.connection_rating, j.body_rating))
     connections = [{
@@ -104,8 +66,8 @@ def plan_dict(landing, plan=None, warnings=(), rig_name: str = "") -> dict:
         "capacity": _f(tcap[i]), "connection_rating": _f(j.connection_rating[i]),
         "body_rating": _f(j.body_rating[i]),
         "utilization": _f(chk.tension_utilization[i]),
-        "landed_true_force": _f(landed.true_force_top[i]) if landed is not None else None,
-        "landed_effective_tension": _f(landed.effective_top[i]) if landed is not None else None,
+        "landed_true_force": _f(landed.true_force_top[i]),
+        "landed_effective_tension": _f(landed.effective_top[i]),
     } for i in range(n)]
     joints = [{
         "joint": i + 1, "label": j.label[i], "kind": j.kind[i],
@@ -122,12 +84,12 @@ def plan_dict(landing, plan=None, warnings=(), rig_name: str = "") -> dict:
     } for i in range(n)]
     gov = landing.governing
     out = {
-        "verdict": landing.verdict,
+        "verdict": str(landing.verdict),
         "lands": landing.lands,
         "governing": None if gov is None else {
-            "name": gov.name, "where": gov.where, "load": _f(gov.load),
+            "name": str(gov.name), "where": W.limit_place(gov), "load": _f(gov.load),
             "capacity": _f(gov.capacity), "margin": _f(gov.margin),
-            "kind": getattr(gov, "kind", "force")},
+            "kind": str(gov.kind), "joint": gov.joint, "step": gov.step},
         "units": JSON_UNITS,
         "plan": None if plan is None else {
             "name": plan.name, "well": plan.well, "site": plan.site,
@@ -136,16 +98,18 @@ def plan_dict(landing, plan=None, warnings=(), rig_name: str = "") -> dict:
         "rig": {"name": rig_name, **chain_dict(landing.path)},
         "closure": closure_name(chk.closure),
         "switch_joint": landing.switch_joint,
-        "next_action": next_action(landing),
+        "next_action": W.next_action(landing, "si"),
         "steps": steps,
         "connections": connections,
         "joints": joints,
         "neutral_point": _f(landing.neutral_point),
         "fill_window": None, "fill_schedule": None, "float_options": [],
         "stages": None, "grouting": None,
-        "unrated": list(landing.unrated), "reasons": list(landing.reasons),
-        "notes": list(landing.notes),
-        "warnings": list(warnings), "cautions": list(landing.cautions),
+        "unrated": unrated, "unrated_codes": unrated_codes,
+        "reasons": reasons, "reason_codes": reason_codes,
+        "notes": notes, "note_codes": note_codes,
+        "warnings": warns, "warning_codes": warning_codes,
+        "cautions": list(W.cautions(landing)),
     }
     opt = landing.best_float
     if opt is not None:
@@ -157,8 +121,8 @@ def plan_dict(landing, plan=None, warnings=(), rig_name: str = "") -> dict:
             "volume_to_add_min": _f(add_lo[k]), "volume_to_add_max": _f(add_hi[k]),
             "joint": int(w.joint[k]), "min_fill_level": _f(w.min_fill_level[k]),
             "max_fill_level": _f(w.max_fill_level[k]), "min_volume": _f(w.min_volume[k]),
-            "max_volume": _f(w.max_volume[k]), "closing_limit": w.closing_limit[k],
-            "empty_limit": w.empty_limit[k], "full_limit": w.full_limit[k],
+            "max_volume": _f(w.max_volume[k]), "closing_limit": str(w.closing_limit[k]),
+            "empty_limit": str(w.empty_limit[k]), "full_limit": str(w.full_limit[k]),
             "feasible": bool(w.feasible[k])} for k in range(n)]
         s = opt.schedule
         out["fill_schedule"] = {
@@ -186,7 +150,7 @@ def plan_dict(landing, plan=None, warnings=(), rig_name: str = "") -> dict:
             "fill_to_top_through": o.schedule.fill_to_top_through if o.schedule else None,
             "least_margin": _f(o.schedule.least_margin)
             if o.schedule and o.schedule.feasible else None,
-            "reason": o.reason})
+            "reason": W.finding_text(o.reason, "si"), "reason_code": W.finding_code(o.reason)})
     st = landing.stages
     if st is not None:
         out["stages"] = stages_dict(st)
@@ -203,7 +167,7 @@ def _staged(landing) -> bool:
     st = landing.stages
     return (st is not None and st.steps is not None and st.feasible
             and landing.best_float is None and landing.chosen.closure.is_open
-            and landing.verdict in (LANDS_STAGED, "cannot confirm"))
+            and landing.verdict in (Verdict.LANDS_STAGED, Verdict.CANNOT_CONFIRM))
 
 
 def stages_dict(st) -> dict:
@@ -226,7 +190,8 @@ def stages_dict(st) -> dict:
                    for c in st.checks],
         "least_margin": _f(st.least_margin),
         "governing": None if st.governing is None else str(st.governing),
-        "feasible": st.feasible, "failure": str(st.failure),
+        "feasible": st.feasible, "reason": W.finding_text(st.reason, "si"),
+        "reason_code": W.finding_code(st.reason),
         "stage1_neutral_point": _f(st.stage1_neutral_point),
         "stage2_neutral_point": _f(st.stage2_neutral_point),
     }
@@ -277,7 +242,7 @@ def chain_table(chain, system: str, title: str = ""):
     from rich.table import Table
     from rich.text import Text
     from rigplan.engine.hoisting import ChainFigure as F, LoadCaseCode
-    unit = U.unit_label("force", system)
+    unit = W.unit("force", system)
     t = Table(title=Text(title or f"Hoisting chain: {chain.path}", style="bold"),
               title_justify="left", expand=False)
     t.add_column(Text(f"[{unit}]"), no_wrap=True)
@@ -319,38 +284,27 @@ def chain_table(chain, system: str, title: str = ""):
 
 
 def grouting_dict(g) -> dict:
-    """JSON view of a grouting plan (attributes read defensively)."""
-    d = {}
-    for key in ("full_column_ok", "max_single_lift", "feasible", "reason", "n_lifts"):
-        if hasattr(g, key):
-            v = getattr(g, key)
-            d[key] = _f(v) if isinstance(v, float) else v
-    if hasattr(g, "lifts"):
-        d["lifts"] = [{"base_height": _f(a), "top_height": _f(b)} for a, b in g.lifts]
-    if hasattr(g, "utilization"):
-        d["utilization"] = [_f(u) for u in np.asarray(g.utilization, dtype=float)]
-    if hasattr(g, "warnings"):
-        d["warnings"] = list(g.warnings)
-    if hasattr(g, "unrated"):
-        d["unrated"] = list(g.unrated)
-    return d
+    """JSON view of a grouting plan (:class:`rigplan.engine.grouting.GroutPlan`)."""
+    warns, codes = _texts_and_codes(g.warnings)
+    return {
+        "full_column_ok": g.full_column_ok, "max_single_lift": _f(g.max_single_lift),
+        "feasible": g.feasible, "reason": W.finding_text(g.reason, "si"),
+        "reason_code": W.finding_code(g.reason), "n_lifts": g.n_lifts,
+        "lifts": [{"base_height": _f(a), "top_height": _f(b)} for a, b in g.lifts],
+        "utilization": [_f(u) for u in np.asarray(g.utilization, dtype=float)],
+        "warnings": warns, "warning_codes": codes, "unrated": list(g.unrated),
+    }
 
 
 # ---------------------------------------------------------------------------
 # text
 
 def _pct(x) -> str:
-    if x is None or not np.isfinite(x):
-        return "unrated"
-    return f"{100 * x:.1f} %"
+    return percent(x, "unrated")
 
 
-def _q(value, kind, system, digits=None, unrated="unrated"):
-    if value is None or (isinstance(value, float) and math.isnan(value)):
-        return unrated
-    if kind == "force" and system == "si" and digits == 0 and abs(value) < 100e3:
-        digits = 1          # small loads in kN would round to nothing
-    return U.format(value, kind, system, digits)
+def _q(value, kind, system, digits=None):
+    return W.fmt(value, kind, system, digits, missing="unrated")
 
 
 def _staged_step_table(landing, system: str, all_steps: bool = True):
@@ -413,17 +367,12 @@ def text_renderables(landing, plan=None, system: str = "us", warnings=(), rig_na
         where = ", ".join(x for x in (plan.well, plan.site) if x)
         head.append(f"{plan.name}" + (f"  ({where})" if where else "") + "\n", "bold")
     head.append("Verdict: ", "bold")
-    head.append(landing.verdict.upper(), f"bold {colour}")
-    gov = landing.governing
-    if gov is not None:
-        head.append(f"\nGoverning: {gov.name} at {gov.where}, margin {_pct(gov.margin)}")
+    head.append(W.verdict_text(landing), f"bold {colour}")
+    if landing.governing is not None:
+        head.append("\n" + W.governing_text(landing, system))
     cap = landing.path
-    head.append(f"\nRig: {rig_name}, path '{cap.path}': hook limit "
-                f"{_q(cap.hook_limit, 'force', system, 0)} (string limit "
-                f"{_q(cap.string_limit, 'force', system, 0)} + dead load "
-                f"{_q(landing.dead_load, 'force', system, 0)}), governed by {cap.governing}"
-                + (f" ({cap.governing_case})" if cap.governing_case else ""))
-    head.append(f"\nNext action: {next_action(landing, system)}")
+    head.append(f"\nRig: {rig_name}. " + W.path_text(landing, system))
+    head.append(f"\nNext action: {W.next_action(landing, system)}")
     if landing.switch_joint:
         head.append(f"\nOpen-ended the string load passes the limit at joint "
                     f"{landing.switch_joint}: floating must begin before it")
@@ -433,15 +382,16 @@ def text_renderables(landing, plan=None, system: str = "us", warnings=(), rig_na
     out.append(Panel(head, title="rigplan", expand=False))
 
     out.append(chain_table(cap, system))
-    for r in landing.reasons:
+    for _, r in W.finding_lines(landing.reasons, system, landing.unrated):
         out.append(Text(f"  - {r}"))
-    for r in landing.notes:
+    for _, r in W.finding_lines(landing.notes, system):
         out.append(Text(f"  note: {r}", "cyan"))
-    for w in warnings:
+    for _, w in W.finding_lines(warnings, system):
         out.append(Text(f"  warning: {w}", "yellow"))
 
     opt = landing.best_float
-    if opt is not None and landing.verdict in (LANDS_FLOATED, LANDS_OPEN, "cannot confirm"):
+    if opt is not None and landing.verdict in (Verdict.LANDS_FLOATED, Verdict.LANDS_OPEN,
+                                               Verdict.CANNOT_CONFIRM):
         s = opt.schedule
         t = Table(title=f"Fill plan: {closure_name(opt.closure)}, fill fluid "
                         f"{_q(opt.fill_density, 'density', system, 2)}")
@@ -455,7 +405,7 @@ def text_renderables(landing, plan=None, system: str = "us", warnings=(), rig_na
                       _q(tu.level_after, "length", system, 1))
         if opt.check is not None:
             g = min(opt.check.limits, key=lambda lim: lim.margin)
-            t.caption = f"least margin kept {_pct(g.margin)}: {g.name} at {g.where}"
+            t.caption = f"least margin kept {_pct(g.margin)}: {g.name} at {W.limit_place(g)}"
         else:
             t.caption = f"least margin kept {_pct(s.least_margin)} at step {s.least_margin_step}"
         out.append(t)
@@ -469,7 +419,7 @@ def text_renderables(landing, plan=None, system: str = "us", warnings=(), rig_na
                            str(len(o.schedule.top_ups)) if o.schedule else "-",
                            _pct(o.schedule.least_margin) if o.schedule and o.schedule.feasible
                            else "-",
-                           o.reason)
+                           W.finding_text(o.reason, system))
             out.append(ft)
     st = landing.stages
     if st is not None:
@@ -500,6 +450,8 @@ def text_renderables(landing, plan=None, system: str = "us", warnings=(), rig_na
             if np.isfinite(st.stage2_neutral_point):
                 t.add_row("stage 2 landed on stage 1: neutral point",
                           _q(st.stage2_neutral_point, "length", system, 1), "")
+        if st.reason is not None:
+            t.add_row("why not", W.finding_text(st.reason, system), "")
         t.caption = ("string load: what hangs below the elevator; hook load: the string load "
                      f"plus {_q(st.dead_load, 'force', system, 0)} of hoisting gear")
         out.append(t)
@@ -516,7 +468,7 @@ def text_renderables(landing, plan=None, system: str = "us", warnings=(), rig_na
     st_t = Table(title=f"Running steps ({closure_name(chk.closure)})")
     for c in ("joint", "shoe depth", "fill level", "hook load", "hook limit", "margin"):
         st_t.add_column(c, justify="right")
-    actions = step_actions(landing, system)
+    actions = W.step_actions(landing, system)
     st_t.add_column("crew action")
     hook = landing.hook_load
     if _staged(landing):
@@ -559,20 +511,18 @@ def text_renderables(landing, plan=None, system: str = "us", warnings=(), rig_na
     out.append(jt)
     g = landing.grouting
     if g is not None:
-        gd = grouting_dict(g)
         text = Text("Grouting: ")
-        if gd.get("full_column_ok"):
+        if g.full_column_ok:
             text.append("the planned column can be placed in one lift")
         else:
-            lifts = gd.get("lifts", [])
-            text.append(f"place in {len(lifts)} lifts: " + ", ".join(
-                f"{_q(a['base_height'], 'length', system, 1)} to "
-                f"{_q(a['top_height'], 'length', system, 1)} above the shoe" for a in lifts))
-            if gd.get("reason"):
-                text.append(f" ({gd['reason']})")
+            text.append(f"place in {len(g.lifts)} lifts: " + ", ".join(
+                f"{_q(a, 'length', system, 1)} to {_q(b, 'length', system, 1)} above the shoe"
+                for a, b in g.lifts))
+            if g.reason is not None:
+                text.append(f" ({W.finding_text(g.reason, system)})")
         out.append(text)
     if landing.unrated:
-        out.append(Text("Unrated (enter the maker's rating): " + "; ".join(landing.unrated[:12]),
+        out.append(Text("Unrated (enter the maker's rating): " + W.unrated_text(landing, system, 12),
                         "yellow"))
     out.append(Text(f"CAUTION: {CAUTION}", "bold yellow"))
     return out

@@ -12,7 +12,6 @@ from textual.app import ComposeResult
 from textual.containers import Horizontal, Vertical, VerticalScroll
 from textual.widgets import DataTable, Static
 
-from rigplan.files import units as U
 from rigplan.present import wording as P
 
 
@@ -53,10 +52,7 @@ class OverviewPane(VerticalScroll):
             self.query_one("#fill-plan", Static).update(P.fill_plan_text(lp, sys_))
             self.query_one("#float-line", Static).update(P.float_text(lp, sys_))
             self.query_one("#switch-line", Static).update(P.switch_text(lp))
-            notes = (list(lp.reasons) + [f"note: {x}" for x in lp.notes]
-                     + [f"unrated: {u}" for u in lp.unrated[:8]])
-            if len(lp.unrated) > 8:
-                notes.append(f"... and {len(lp.unrated) - 8} more unrated parts")
+            notes = P.reason_lines(lp, sys_)
             self.query_one("#reasons", Static).update(
                 Text("\n".join(notes)) if notes else "")
         nxt = session.next_joint()
@@ -69,8 +65,8 @@ class OverviewPane(VerticalScroll):
             + ("   [plan edited, not saved: s on the String tab]" if session.dirty else ""))
         warnings = list(session.warnings) + [w for w in session.length_warnings
                                              if w not in session.warnings]
-        self.query_one("#warnings", Static).update(
-            Text("\n".join(warnings)) if warnings else "")
+        lines = [text for _, text in P.finding_lines(warnings, sys_)]
+        self.query_one("#warnings", Static).update(Text("\n".join(lines)) if lines else "")
 
 
 class _Grid(DataTable):

@@ -92,7 +92,8 @@ from rigplan.engine.stringmodel import (CONNECTION_KINDS, JOINT_KINDS, Closure, 
                                  Hole, JointSpec, Settings, StringPlan)
 
 TOP_KEYS = ("version", "units", "name", "well", "site", "notes", "tally", "hole", "section",
-            "joint", "float_equipment", "running", "design_factors", "grout")
+            "joint", "float_equipment", "running", "design_factors", "grout",
+            "existing_casing", "liner_fit")
 HOLE_KEYS = ("fluid_density", "fluid_level", "depth", "diameter")
 COMMON_JOINT_KEYS = ("kind", "material", "od", "wall", "connection", "weld_efficiency",
                      "connection_rating", "tensile_rating", "collapse_rating", "burst_rating",
@@ -291,7 +292,49 @@ def apply_tally(joints: list, rows, tally_source: str) -> list:
                                  f"measured wall is not less than half the od of {j.label}")
             changes["measured_wall"] = row.measured_wall
         out[i] = _replace(j, **changes)
-    return out
+    return _reorder(out, rows, tally_source)
+
+
+def _reorder(joints: list, rows, tally_source: str) -> list:
+    """Joints in the tally's ``run_order`` (when the tally gives one).
+
+    The order must name every joint of the plan once, and may only swap
+    joints of the same nominal description (the shoe, float equipment and
+    screens stay where the plan puts them): anything else is refused with
+    the row that breaks it.
+    """
+    from rigplan.engine.placement import nominal_key
+
+    ordered = [r for r in rows if r.run_order is not None]
+    if not ordered:
+        return joints
+    if len(ordered) != len(rows) or len(rows) != len(joints):
+        missing = len(joints) - len(ordered)
+        raise InputError(f"{tally_source}, run_order",
+                         f"give run_order for every joint of the plan or for none "
+                         f"({len(ordered)} of {len(joints)} given"
+                         + (f", {missing} missing)" if missing > 0 else ")"))
+    seen = {}
+    for r in ordered:
+        if r.run_order > len(joints):
+            raise InputError(f"{tally_source}: row {r.row}, run_order",
+                             f"expected 1..{len(joints)} (the joints in the plan), got {r.run_order}")
+        if r.run_order in seen:
+            raise InputError(f"{tally_source}: row {r.row}, run_order",
+                             f"position {r.run_order} is already given in row {seen[r.run_order]}")
+        seen[r.run_order] = r.row
+    by_label = {j.label: j for j in joints}
+    new = [None] * len(joints)
+    for r in ordered:
+        new[r.run_order - 1] = by_label[r.label]
+    for pos, (planned, placed) in enumerate(zip(joints, new), start=1):
+        if nominal_key(planned) != nominal_key(placed):
+            row = next(r.row for r in ordered if r.label == placed.label)
+            raise InputError(f"{tally_source}: row {row}, run_order",
+                             f"{placed.label} ({placed.kind}) cannot run at position {pos}: the "
+                             f"plan has {planned.label} ({planned.kind}) there, and only joints "
+                             "of the same kind, material, size and connection may swap")
+    return new
 
 
 def _replace(spec, **changes):
