@@ -215,8 +215,9 @@ def test_planner_reports_the_staged_limit_with_its_load_and_capacity():
     base = uniform(n)
     j = JointArrays(**{**base.__dict__, "body_rating": np.full(n, 5e6),
                        "connection_rating": np.full(n, 5e6), "burst_rating": np.full(n, 5e7),
-                       "collapse_rating": np.full(n, 0.5e6)})     # floating cannot work
-    hole = Hole(1150.0)
+                       "collapse_rating": np.full(n, 0.5e6),      # floating cannot work
+                       "modulus": np.full(n, 200e9), "yield_strength": np.full(n, 241e6)})
+    hole = Hole(1150.0, diameter=20 * INCH)
     full = running_loads(j, hole, Closure()).string_load[-1]
     dead = 12e3
     rig = Rig("test rig", (HoistPath("main", mast_rating=0.6 * full + dead, dead_load=dead),),
@@ -233,3 +234,35 @@ def test_planner_reports_the_staged_limit_with_its_load_and_capacity():
     assert_allclose(release["hook_load"], lp.stages.release_hook_load, rtol=1e-12)
     assert_allclose(release["hook_load"] - release["string_load"], dead, rtol=1e-9)
     assert doc["stages"]["release_hook_load"] == release["hook_load"]
+
+
+def test_stage1_on_bottom_is_checked_for_buckling():
+    # Released, stage 1 stands on bottom: below its top it is in effective
+    # compression up to its whole buoyed weight (Lubinski 1951), with no
+    # set-down weight at all.  A screen there above its sinusoidal buckling
+    # load (Lubinski 1950, vertical hole) makes the staged plan fail, and
+    # the reason names stage 1 on bottom, not the set-down weight.
+    from rigplan.engine.hoisting import HoistPath, LandingString, Rig
+    from rigplan.engine.planner import CANNOT_LAND, PlanCode, plan_landing
+    from rigplan.engine.stringmodel import Settings
+    n = 120
+    base = uniform(n)
+    kind = ("screen",) * 3 + ("blank",) * (n - 3)
+    j = JointArrays(**{**base.__dict__, "kind": kind, "body_rating": np.full(n, 5e6),
+                       "connection_rating": np.full(n, 5e6), "burst_rating": np.full(n, 5e7),
+                       "collapse_rating": np.full(n, 0.5e6),
+                       "modulus": np.full(n, 200e9), "yield_strength": np.full(n, 241e6)})
+    hole = Hole(1150.0, diameter=20 * INCH)
+    full = running_loads(j, hole, Closure()).string_load[-1]
+    rig = Rig("test rig", (HoistPath("main", mast_rating=0.6 * full),),
+              landing_string=LandingString("drill pipe", 220.0, 2e6))
+    lp = plan_landing(j, hole, rig, Settings(float_collar_positions=()), Closure(0))
+    assert lp.verdict == CANNOT_LAND and lp.staged
+    assert lp.stages.feasible                       # every hoisting check holds
+    assert lp.governing.name == "screen buckling" and lp.governing.joint <= 3
+    codes = [f.code for f in lp.reasons]
+    assert PlanCode.STAGE1_BUCKLES_ON_BOTTOM in codes
+    # stage 1's compression at the bottom of joint 3 is the buoyed weight of
+    # joints 3..split (effective tension gradient = buoyed weight per metre)
+    b = j.weight[0] * (1 - 1150.0 / STEEL)
+    assert_allclose(lp.buckling.compression[2], b * (lp.stages.split - 2), rtol=1e-6)

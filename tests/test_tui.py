@@ -155,7 +155,7 @@ async def test_open_shows_the_engine_verdict_and_the_hoisting_limit(job):
         e_n = (k**n - 1) / (n * k**n * (k - 1))
         limit_lbf = 15000 * n * e_n - 1500 - 3000
         text = static_text(app, "#path-line")
-        shown = float(re.search(r"string load of ([\d,]+) lbf", text).group(1).replace(",", ""))
+        shown = float(re.search(r"string limit ([\d,]+) lbf", text).group(1).replace(",", ""))
         assert_allclose(shown, limit_lbf, atol=0.5)   # shown to the pound
         assert "winch line pull" in text
         # The open-ended string's buoyed weight W_air x (1 - MW/65.4) with the

@@ -144,6 +144,8 @@ class LimitName(enum.StrEnum):
     LOWERING_HOISTING = "lowering hoisting"        # stage 1 lowered on the landing string
     LANDING_STRING = "landing string"              # the landing string's own tension
     STAGE2_HOISTING = "stage 2 hoisting"           # stage 2 run from the floor
+    SCREEN_BUCKLING = "screen buckling"     # set-down compression vs critical buckling load
+    BUCKLING_STRESS = "buckling stress"     # axial + helical bending stress vs yield
 
 
 @dataclass(frozen=True)

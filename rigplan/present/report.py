@@ -103,6 +103,7 @@ def plan_dict(landing, plan=None, warnings=(), rig_name: str = "") -> dict:
         "connections": connections,
         "joints": joints,
         "neutral_point": _f(landing.neutral_point),
+        "buckling": buckling_dict(landing),
         "fill_window": None, "fill_schedule": None, "float_options": [],
         "stages": None, "grouting": None,
         "unrated": unrated, "unrated_codes": unrated_codes,
@@ -164,10 +165,7 @@ def plan_dict(landing, plan=None, warnings=(), rig_name: str = "") -> dict:
 
 def _staged(landing) -> bool:
     """The chosen plan is the staged one (its step table has the lowering)."""
-    st = landing.stages
-    return (st is not None and st.steps is not None and st.feasible
-            and landing.best_float is None and landing.chosen.closure.is_open
-            and landing.verdict in (Verdict.LANDS_STAGED, Verdict.CANNOT_CONFIRM))
+    return bool(getattr(landing, "staged", False)) and landing.stages.steps is not None
 
 
 def stages_dict(st) -> dict:
@@ -211,6 +209,26 @@ def staged_steps_dict(landing) -> list:
         "hook_load": _f(st.hook_load[r]), "string_load": _f(st.string_load[r]),
         "hook_limit": _f(hook_limit), "margin": _f(st.margin[r]), "fill_level": None,
     } for r in range(st.n)]
+
+
+def buckling_dict(landing) -> dict | None:
+    """JSON view of the buckling check below the neutral point (None when
+    nothing is set down); per joint only those in effective compression."""
+    b = landing.buckling
+    if b is None:
+        return None
+    j = landing.joints
+    rows = [{"joint": i + 1, "label": j.label[i], "mode": W.BUCKLING_MODES[int(b.mode[i])],
+             "compression": _f(b.compression[i]), "sinusoidal_load": _f(b.sinusoidal_load[i]),
+             "helical_load": _f(b.helical_load[i]), "clearance": _f(b.clearance[i]),
+             "axial_stress": _f(b.axial_stress[i]), "bending_stress": _f(b.bending_stress[i]),
+             "stress_utilization": _f(b.stress_utilization[i])}
+            for i in range(len(b.compression)) if b.compression[i] > 0]
+    return {"set_down": _f(landing.settings.set_down_weight),
+            "compressed_length": _f(b.compressed_length),
+            "sinusoidal_length": _f(b.sinusoidal_length),
+            "helical_length": _f(b.helical_length), "max_set_down": _f(b.max_set_down),
+            "design_factor": _f(b.design_factor), "joints": rows}
 
 
 def chain_dict(chain) -> dict:
@@ -379,6 +397,8 @@ def text_renderables(landing, plan=None, system: str = "us", warnings=(), rig_na
     if np.isfinite(landing.neutral_point):
         head.append(f"\nNeutral point when landed with the set-down weight: "
                     f"{_q(landing.neutral_point, 'length', system, 1)}")
+    if landing.buckling is not None:
+        head.append("\n" + W.set_down_text(landing, system))
     out.append(Panel(head, title="rigplan", expand=False))
 
     out.append(chain_table(cap, system))
