@@ -19,7 +19,7 @@ from rigplan.engine.stringmodel import JointSpec, StringPlan
 #: Where the bundled demo lives: the repository's ``rigs/`` and ``strings/``
 #: (an editable install from the checkout), else those of the current folder.
 _PACKAGE = Path(__file__).resolve().parent
-_REPO = _PACKAGE.parent
+_REPO = _PACKAGE.parent.parent
 
 
 def demo_dir(kind: str) -> Path:
@@ -250,7 +250,7 @@ def rated_joints(plan: StringPlan):
     if not specs:
         raise InputError(plan.source or plan.name, "the string has no joints to run")
     try:
-        return rate_joints(specs)
+        return rate_joints(specs, temperature=plan.hole.temperature)
     except InputError:
         raise
     except (ValueError, KeyError) as err:

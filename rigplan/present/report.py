@@ -81,6 +81,8 @@ def plan_dict(landing, plan=None, warnings=(), rig_name: str = "") -> dict:
         "collapse_utilization": _f(chk.collapse_utilization[i]),
         "burst_rating": _f(j.burst_rating[i]), "max_burst_load": _f(loads.burst_max[i]),
         "burst_utilization": _f(chk.burst_utilization[i]),
+        "rating_basis": _rating_basis(j, i),
+        "rating_flags": [str(f.code) for f in j.findings if f.joint == i + 1],
     } for i in range(n)]
     gov = landing.governing
     out = {
@@ -96,7 +98,7 @@ def plan_dict(landing, plan=None, warnings=(), rig_name: str = "") -> dict:
             "hole_fluid_density": _f(plan.hole.fluid_density),
             "hole_fluid_level": _f(plan.hole.fluid_level), "hole_depth": _f(plan.hole.depth)},
         "rig": {"name": rig_name, **chain_dict(landing.path)},
-        "closure": closure_name(chk.closure),
+        "closure": closure_name(chk.closure, landing.joints.label),
         "switch_joint": landing.switch_joint,
         "next_action": W.next_action(landing, "si"),
         "steps": steps,
@@ -127,7 +129,7 @@ def plan_dict(landing, plan=None, warnings=(), rig_name: str = "") -> dict:
             "feasible": bool(w.feasible[k])} for k in range(n)]
         s = opt.schedule
         out["fill_schedule"] = {
-            "closure": closure_name(opt.closure), "valve_joint": opt.closure.valve_joint,
+            "closure": closure_name(opt.closure, landing.joints.label), "valve_joint": opt.closure.valve_joint,
             "fill_density": _f(opt.fill_density),
             "fill_to_top_through": s.fill_to_top_through,
             "top_ups": [{"joint": t.joint, "before_joint": t.before_joint or None,
@@ -145,7 +147,7 @@ def plan_dict(landing, plan=None, warnings=(), rig_name: str = "") -> dict:
         }
     for o in landing.float_options:
         out["float_options"].append({
-            "closure": closure_name(o.closure), "valve_joint": o.closure.valve_joint,
+            "closure": closure_name(o.closure, landing.joints.label), "valve_joint": o.closure.valve_joint,
             "fill_density": _f(o.fill_density), "lands": o.lands,
             "top_ups": len(o.schedule.top_ups) if o.schedule else None,
             "fill_to_top_through": o.schedule.fill_to_top_through if o.schedule else None,
@@ -317,6 +319,41 @@ def grouting_dict(g) -> dict:
 # ---------------------------------------------------------------------------
 # text
 
+def _rating_basis(j, i) -> dict:
+    """What joint ``i``'s collapse, burst and tension ratings rest on."""
+    def pick(basis):
+        return basis[i] if basis else None
+    return {"collapse": pick(j.collapse_basis), "burst": pick(j.burst_basis),
+            "tension": pick(j.tension_basis)}
+
+
+#: Short labels of the rating bases for the per-joint table.
+_BASIS_LABEL = {"specified wall": "specified", "minimum wall": "minimum", "measured wall": "measured",
+                "maker's figure": "maker", "unrated": "-"}
+
+
+def _rating_flag_lines(joints, system) -> list:
+    """One line per rating finding (measured wall, ellipticity, temperature)."""
+    out = []
+    for f in joints.findings:
+        q = f.quantities
+        if "measured_wall" in q:
+            what = (f"measured wall {_q(f.value('measured_wall'), 'diameter', system, 3)} is under "
+                    f"the standard's minimum {_q(f.value('minimum_wall'), 'diameter', system, 3)}: "
+                    "rated on the measured wall")
+        elif "ellipticity" in q:
+            what = (f"measured ellipticity {100 * f.value('ellipticity'):.2f} % is above the "
+                    f"{100 * f.value('assumed_ellipticity'):.2f} % the plan assumed: rated at the "
+                    "measured one")
+        elif "temperature" in q:
+            what = (f"{f.value('temperature'):.0f} C is above its temperature-derating table: "
+                    "pressure and collapse unrated")
+        else:
+            what = str(f.code)
+        out.append(f"joint {f.joint} ({f.label}): {what}")
+    return out
+
+
 def _pct(x) -> str:
     return percent(x, "unrated")
 
@@ -413,7 +450,7 @@ def text_renderables(landing, plan=None, system: str = "us", warnings=(), rig_na
     if opt is not None and landing.verdict in (Verdict.LANDS_FLOATED, Verdict.LANDS_OPEN,
                                                Verdict.CANNOT_CONFIRM):
         s = opt.schedule
-        t = Table(title=f"Fill plan: {closure_name(opt.closure)}, fill fluid "
+        t = Table(title=f"Fill plan: {closure_name(opt.closure, landing.joints.label)}, fill fluid "
                         f"{_q(opt.fill_density, 'density', system, 2)}")
         t.add_column("action")
         t.add_column("joint", justify="right")
@@ -434,7 +471,7 @@ def text_renderables(landing, plan=None, system: str = "us", warnings=(), rig_na
             for c in ("equipment", "fill", "lands", "top-ups", "least margin", "why not"):
                 ft.add_column(c)
             for o in landing.float_options:
-                ft.add_row(closure_name(o.closure), _q(o.fill_density, "density", system, 2),
+                ft.add_row(closure_name(o.closure, landing.joints.label), _q(o.fill_density, "density", system, 2),
                            "yes" if o.lands else "no",
                            str(len(o.schedule.top_ups)) if o.schedule else "-",
                            _pct(o.schedule.least_margin) if o.schedule and o.schedule.feasible
@@ -485,7 +522,7 @@ def text_renderables(landing, plan=None, system: str = "us", warnings=(), rig_na
                            Text(_pct(c.margin), "red" if c.margin < 0 else ""))
             out.append(ct)
 
-    st_t = Table(title=f"Running steps ({closure_name(chk.closure)})")
+    st_t = Table(title=f"Running steps ({closure_name(chk.closure, landing.joints.label)})")
     for c in ("joint", "shoe depth", "fill level", "hook load", "hook limit", "margin"):
         st_t.add_column(c, justify="right")
     actions = W.step_actions(landing, system)
@@ -514,21 +551,24 @@ def text_renderables(landing, plan=None, system: str = "us", warnings=(), rig_na
                         f"{loads.envelope_step[i]}, utilization {_pct(tu[i])} "
                         f"(design factor {landing.settings.design.tension})"))
     jt = Table(title="Per joint: tension, collapse and burst utilization (design factors applied)",
-               caption="Ratings are on the minimum wall (the specified wall less the standard's "
-                       "under-tolerance) unless a measured wall is given, so API-grade figures "
-                       "sit below the API tables, which use the specified wall.")
+               caption="Rated on: API grades on the specified wall (API TR 5C3); other steel "
+                       "and PVC on the minimum wall the standard allows; a measured wall or the "
+                       "maker's figure where given. PVC derated for the job temperature.")
     for c in ("joint", "kind", "max tension", "tension", "collapse load", "collapse rating",
-              "collapse", "burst"):
+              "rated on", "collapse", "burst"):
         jt.add_column(c, justify="right")
     for i in range(n):
         jt.add_row(f"{i + 1} {j.label[i]}", j.kind[i],
                    _q(loads.envelope_max[i], "force", system, 0), _pct(tu[i]),
                    _q(loads.collapse_max[i], "pressure", system, 0),
                    _q(j.collapse_rating[i], "pressure", system, 0),
+                   _BASIS_LABEL.get(j.collapse_basis[i], "") if j.collapse_basis else "",
                    _pct(chk.collapse_utilization[i]) if loads.collapse_max[i] > 0 or
                    np.isfinite(chk.collapse_utilization[i]) else "unrated",
                    _pct(chk.burst_utilization[i]))
     out.append(jt)
+    for line in _rating_flag_lines(j, system):
+        out.append(Text(f"Rack measurement: {line}", "yellow"))
     g = landing.grouting
     if g is not None:
         text = Text("Grouting: ")
