@@ -726,7 +726,7 @@ def run_cells(session) -> list:
         step = "" if k is None else str(k + 1)
         if lp is not None and k is not None:
             shoe = number(lp.chosen.loads.shoe_depth[k], "length", sys_)
-            hook = number(loads[k], "force", sys_) if loads is not None else "staged"
+            hook = number(loads[k], "force", sys_)
             fill = fill_marker(lp, k + 1)
         else:
             shoe = hook = fill = ""
@@ -786,19 +786,9 @@ def running_summary(session) -> list:
     shoe = float(lp.chosen.loads.shoe_depth[k - 1]) if k >= 1 else 0.0
     lines.append(f"Shoe depth: {fmt(shoe, 'length', sys_)}")
     loads = session.step_hook_loads()
-    if loads is None and lp.stages is not None:
-        st = lp.stages
-        lines.append("Hook load per joint: not given by the planner for a staged setting")
-        lines.append(f"Peak hook load: stage 1 at the floor "
-                     f"{fmt(st.stage1_peak_hook_load, 'force', sys_)}, at release "
-                     f"{fmt(st.release_hook_load, 'force', sys_)}, stage 2 "
-                     f"{fmt(st.stage2_peak_hook_load, 'force', sys_)} (gear on the hook "
-                     f"{fmt(lp.dead_load, 'force', sys_)} included)")
-    else:
-        now = session.predicted_hook_load()
-        lines.append(f"Hook load now (planned): {fmt(now, 'force', sys_)}")
-        if k < n:
-            lines.append(f"After the next joint: {fmt(loads[k], 'force', sys_)}")
+    lines.append(f"Hook load now (planned): {fmt(session.predicted_hook_load(), 'force', sys_)}")
+    if k < n:
+        lines.append(f"After the next joint: {fmt(loads[k], 'force', sys_)}")
     lines.append(f"Hook limit ({lp.path.path}): {fmt(lp.path.hook_limit, 'force', sys_)}")
     if k >= 1:
         lines.append(f"Capacity margin now: {percent(lp.chosen.capacity_margin[k - 1])}")
