@@ -166,10 +166,7 @@ class ChartsView(Vertical):
         f_unit = P.unit("force", sys_)
         l_unit = P.unit("length", sys_)
         shoe = P.to_display(np.asarray(lp.chosen.loads.shoe_depth, dtype=float), "length", sys_)
-        loads = session.step_hook_loads()
-        staged = loads is None
-        load = P.to_display(np.asarray(lp.hook_load if staged else loads, dtype=float),
-                            "force", sys_)
+        load = P.to_display(np.asarray(session.step_hook_loads(), dtype=float), "force", sys_)
         k = session.step
 
         # -- hook load against shoe depth
@@ -178,8 +175,7 @@ class ChartsView(Vertical):
         hook.set_x_formatter(FittedFormatter(hook, "x"))
         hook.set_y_formatter(FittedFormatter(hook, "y", depth=True))
         legend = []
-        planned_label = "one-piece run (not the staged plan)" if staged else "planned"
-        planned_style = "grey50" if staged else "bright_cyan"
+        planned_label, planned_style = "planned", "bright_cyan"
         hook.plot(load, -shoe, line_style=planned_style, hires_mode=HiResMode.BRAILLE,
                   label=planned_label)
         legend.append(("───", planned_style, planned_label))
@@ -258,8 +254,6 @@ class ChartsView(Vertical):
         unrated_t = int(np.isnan(t_u).sum())
         unrated_c = int(np.isnan(c_u).sum())
         parts = [f"Verdict: {lp.verdict.value}"]
-        if staged:
-            parts.append("staged setting: the planner gives stage peaks, not a hook load per joint")
         if unrated_t or unrated_c:
             parts.append(f"unrated (not drawn): tension {unrated_t} joints, collapse {unrated_c} joints")
         if self.single:
