@@ -218,6 +218,11 @@ def _cover(ctx: Context) -> Section:
         ("Date", info.date or "not given"),
         ("Units", "US field units" if W.primary(ctx.system) == "us" else "SI units"),
     ]
+    if ctx.as_run is not None:
+        st = ctx.as_run.state
+        items.append(("Record of the run", f"included: {len(st.run)} of "
+                                           f"{ctx.as_run.landing.joints.n} joints in the hole, "
+                                           f"{len(st.rejected)} set aside"))
     sec.blocks.append(Facts("", tuple(items)))
     if lp.reasons or lp.unrated:
         head = "Options set aside: " if lp.lands else "Why it cannot be confirmed: " \
