@@ -3,7 +3,9 @@
 Exit codes: 0 the string lands within every limit; 1 a limit is exceeded
 (or a loaded part is unrated, so landing cannot be confirmed); 2 an input
 error (one line on stderr naming the file, the key or row, and what was
-expected).  Textual is imported only by ``open`` and the bare command.
+expected); 3 an internal error of rigplan (one line; a bug to report, never
+read as a verdict).  Textual is imported only by ``open`` and the bare
+command.  No command writes onto a file it reads.
 """
 
 from __future__ import annotations
@@ -15,11 +17,19 @@ from pathlib import Path
 
 from rigplan.errors import InputError
 
-EXIT_LANDS, EXIT_LIMIT, EXIT_INPUT = 0, 1, 2
+EXIT_LANDS, EXIT_LIMIT, EXIT_INPUT, EXIT_INTERNAL = 0, 1, 2, 3
+
+
+class _Parser(argparse.ArgumentParser):
+    """argparse with its errors on one line (exit 2), like every input error."""
+
+    def error(self, message):
+        from rigplan.errors import one_line
+        self.exit(EXIT_INPUT, f"{self.prog}: {one_line(message)} (see {self.prog} --help)\n")
 
 
 def _parser() -> argparse.ArgumentParser:
-    p = argparse.ArgumentParser(
+    p = _Parser(
         prog="rigplan",
         description="Hoisting, running-load, float and fill planning for water-well casing "
                     "and screen strings. With no command, opens the terminal app on the "
@@ -68,11 +78,12 @@ def _load(args):
         plan = apply_tally_file(plan, args.tally)
     fixed = False
     if getattr(args, "as_run", False):
+        from rigplan.files.runlog import log_path_for
         state = read_run_state(job.plan_path)
         if state is None:
             raise InputError(f"{job.plan_path}: --as-run", "no run log beside the plan: the "
                                                            "job has not been run in the app")
-        plan = apply_run_state(plan, state)
+        plan = apply_run_state(plan, state, str(log_path_for(job.plan_path)))
         fixed = bool(state.run)
     from rigplan.files.job import length_warnings
     extra = [w for w in length_warnings(plan) if w not in job.warnings]
@@ -107,12 +118,49 @@ def cmd_check(args) -> int:
     return _exit_for(landing)
 
 
+def _input_files(args, job) -> list:
+    """(role, path) of every file a job command reads."""
+    from rigplan.files.runlog import log_path_for
+    files = [("string plan", job.plan_path), ("rig profile", job.rig_path)]
+    if getattr(job, "tally_path", None) is not None:
+        files.append(("tally named in the plan", job.tally_path))
+    if getattr(args, "tally", None):
+        files.append(("tally", Path(args.tally)))
+    if getattr(args, "materials", None):
+        files.append(("materials file", Path(args.materials)))
+    log = log_path_for(job.plan_path)
+    files += [("run log", log), ("run log", Path(str(log) + "-wal")),
+              ("run log", Path(str(log) + "-shm"))]
+    return [(role, Path(p)) for role, p in files if p is not None]
+
+
+def _same_file(a: Path, b: Path) -> bool:
+    import os
+    try:
+        if os.path.realpath(a) == os.path.realpath(b):
+            return True
+        return a.exists() and b.exists() and os.path.samefile(a, b)
+    except (OSError, ValueError):
+        return False
+
+
+def refuse_overwrite(out: Path, inputs, option: str = "-o") -> None:
+    """InputError when ``out`` is one of the ``(role, path)`` inputs: no
+    command writes onto a file it reads."""
+    for role, path in inputs:
+        if _same_file(Path(out), Path(path)):
+            raise InputError(f"{option} {out}", f"this is the {role} {str(path)!r}, which the "
+                                                "command reads: it is never written over; "
+                                                "choose another output file")
+
+
 def cmd_report(args) -> int:
     from rich.console import Console
     from rigplan.files.atomicio import atomic_write_text
     from rigplan.present.report import text_renderables
-    job, landing = _load(args)
     out = Path(args.output)
+    job, landing = _load(args)
+    refuse_overwrite(out, _input_files(args, job))
     console = Console(record=True, width=110, file=open("/dev/null", "w") if sys.platform != "win32"
                       else None, highlight=False)
     for r in text_renderables(landing, job.plan, args.units, job.warnings, job.rig.name):
@@ -127,8 +175,9 @@ def cmd_report(args) -> int:
         text = console.export_text()
     try:
         atomic_write_text(out, text)
-    except OSError as err:
-        raise InputError(f"{out}", f"cannot write the report ({err.strerror or err}): expected "
+    except (OSError, ValueError) as err:
+        reason = getattr(err, "strerror", None) or err
+        raise InputError(f"{out}", f"cannot write the report ({reason}): expected "
                                    "a writable file path") from None
     print(f"wrote {out} ({landing.verdict})")
     return _exit_for(landing)
@@ -163,15 +212,53 @@ def cmd_rigs(args) -> int:
 
 
 def cmd_open(args) -> int:
-    from rigplan.files.job import load_job
+    from rigplan.files.job import apply_tally_file, load_job, read_run_state
     job = load_job(args.plan, args.rig, args.path, args.materials)   # fail fast, one line
+    options = {}
+    if args.tally:
+        apply_tally_file(job.plan, args.tally)     # a bad tally: one line, before the app
+        options["tally"] = args.tally
+    if args.as_run:
+        # the app always applies the run log beside the plan; --as-run asks
+        # that there is one (a damaged one is offered to be set aside)
+        from rigplan.files.runlog import RunLogDamaged, log_path_for
+        try:
+            state = read_run_state(job.plan_path)
+        except RunLogDamaged:
+            state = True
+        if state is None:
+            raise InputError(f"{log_path_for(job.plan_path)}: --as-run",
+                             "no run log beside the plan: the job has not been run in the app "
+                             "(leave --as-run out to start running it)")
     from rigplan.tui.app import run_app
-    run_app(job.plan_path, job.rig_path, args.path, args.units)
+    run_app(job.plan_path, job.rig_path, args.path, args.units, **options)
     return EXIT_LANDS
 
 
 def main(argv=None) -> int:
-    args = _parser().parse_args(argv)
+    try:
+        args = _parser().parse_args(argv)
+    except SystemExit as exc:       # --help (0) or a usage error (2, one line)
+        return exc.code if isinstance(exc.code, int) else EXIT_INPUT
+    try:
+        return _run(args)
+    except (KeyboardInterrupt, SystemExit):
+        raise
+    except Exception as exc:      # a bug of ours: one line, never read as a verdict
+        import os
+        import traceback
+        from rigplan.errors import one_line
+        frame = traceback.extract_tb(exc.__traceback__)[-1] if exc.__traceback__ else None
+        at = f" at {Path(frame.filename).name}:{frame.lineno}" if frame else ""
+        print(f"rigplan: internal error{at}: {type(exc).__name__}: {one_line(exc)[:300]} "
+              "(a bug in rigplan, not in your files: please report it with the files used; "
+              "set RIGPLAN_DEBUG=1 for the traceback)", file=sys.stderr)
+        if os.environ.get("RIGPLAN_DEBUG"):
+            traceback.print_exc()
+        return EXIT_INTERNAL
+
+
+def _run(args) -> int:
     try:
         if args.command is None:
             from rigplan.files.job import demo_paths

@@ -45,10 +45,12 @@ __all__ = [
     "Event",
     "Observation",
     "RunLog",
+    "RunLogDamaged",
     "RunLogWriteError",
     "RunState",
     "SchemaVersionError",
     "log_path_for",
+    "set_aside_damaged",
 ]
 
 #: Schema version written to ``PRAGMA user_version``.
@@ -112,6 +114,7 @@ ORDER BY e.id DESC LIMIT 1
 """
 
 _COLUMNS = "id, ts, kind, label, value, note, ref, step, predicted"
+_COLUMN_NAMES = tuple(c.strip() for c in _COLUMNS.split(","))
 
 
 class SchemaVersionError(InputError):
@@ -120,6 +123,24 @@ class SchemaVersionError(InputError):
 
 class RunLogWriteError(OSError):
     """An entry could not be committed; it was NOT recorded (keep it and retry)."""
+
+
+class RunLogDamaged(InputError):
+    """The run log file is damaged (not readable as a rigplan run log).
+
+    The file is never changed or deleted by rigplan.  ``path`` is the file;
+    :func:`set_aside_damaged` renames it (and its ``-wal``/``-shm``
+    companions) so that a new log can be started, keeping the old one.
+    """
+
+    def __init__(self, path, detail: str):
+        self.path = Path(path)
+        self.detail = detail
+        super().__init__(str(path), (
+            f"the run log is damaged ({detail}); it was left unchanged. To go on, open the job "
+            f"in the app, which offers to set it aside (renamed to "
+            f"{Path(path).stem}.damaged-<time>.sqlite, kept) and start a new log; its entries "
+            "may be recovered with the sqlite3 tool's .recover command"))
 
 
 @dataclass(frozen=True)
@@ -231,28 +252,87 @@ class RunLog:
     open the same file.
     """
 
-    def __init__(self, path: str | os.PathLike):
+    def __init__(self, path: str | os.PathLike, readonly: bool = False):
         self.path = Path(path)
+        self.readonly = bool(readonly)
         self._lock = threading.RLock()
         self._conn = None
         where = str(self.path)
-        if self.path.is_dir():
-            raise InputError(where, "expected a run-log file, found a directory")
+        try:
+            if self.path.is_dir():
+                raise InputError(where, "expected a run-log file, found a directory")
+            if readonly and not self.path.is_file():
+                raise InputError(where, "no run log here: the job has not been run in the app")
+        except OSError as exc:
+            raise InputError(where, f"cannot open the run log ({exc.strerror or exc})") from None
+        if readonly:
+            self._conn = self._open_readonly()
+            return
         try:
             conn = sqlite3.connect(where, isolation_level=None, timeout=10.0,
                                    check_same_thread=False)
         except sqlite3.Error as exc:
-            raise InputError(where, f"cannot open the run log ({exc})") from exc
+            raise InputError(where, f"cannot open the run log ({_one_line(exc)}): "
+                                    "expected a writable folder beside the plan") from None
         try:
             self._open(conn)
         except sqlite3.DatabaseError as exc:
             conn.close()
-            raise InputError(where, f"expected a rigplan run log (SQLite file), "
-                                    f"cannot read it ({exc})") from exc
+            raise self._open_error(exc) from None
+        except UnicodeDecodeError as exc:
+            conn.close()
+            raise RunLogDamaged(self.path, f"text that is not UTF-8 ({exc.reason})") from None
         except BaseException:
             conn.close()
             raise
         self._conn = conn
+
+    def _open_error(self, exc: sqlite3.Error) -> InputError:
+        """The one-line error for a log that cannot be opened for writing."""
+        text = _one_line(exc)
+        low = text.lower()
+        if "malformed" in low or "not a database" in low or "no such" in low:
+            return RunLogDamaged(self.path, text)
+        return InputError(str(self.path), f"cannot write the run log ({text}): the folder "
+                                          "beside the plan must be writable to record the "
+                                          "run; rigplan check --as-run reads it as it is")
+
+    def _open_readonly(self) -> sqlite3.Connection:
+        """A read-only connection: no file is created or changed (a sound log
+        in a read-only folder is read as it is)."""
+        from urllib.parse import quote
+        base = "file:" + quote(str(self.path.resolve()))
+        last = None
+        for options in ("?mode=ro", "?mode=ro&immutable=1"):
+            try:
+                conn = sqlite3.connect(base + options, uri=True, isolation_level=None,
+                                       timeout=10.0, check_same_thread=False)
+            except sqlite3.Error as exc:
+                last = exc
+                continue
+            try:
+                version, app_id, n_tables = self._header(conn)
+                if version == 0 and n_tables == 0:
+                    raise RunLogDamaged(self.path, "an empty file, not a run log")
+                self._check_header(version, app_id, n_tables)
+                self._check_tables(conn)
+                return conn
+            except sqlite3.DatabaseError as exc:
+                conn.close()
+                last = exc
+                if "malformed" in str(exc).lower() or "not a database" in str(exc).lower():
+                    break
+            except UnicodeDecodeError as exc:
+                conn.close()
+                raise RunLogDamaged(self.path, f"text that is not UTF-8 ({exc.reason})") from None
+            except BaseException:
+                conn.close()
+                raise
+        text = _one_line(last) if last is not None else "cannot open"
+        low = text.lower()
+        if "malformed" in low or "not a database" in low or "no such" in low:
+            raise RunLogDamaged(self.path, text)
+        raise InputError(str(self.path), f"cannot read the run log ({text})")
 
     @classmethod
     def for_plan(cls, plan_path: str | os.PathLike) -> "RunLog":
@@ -267,6 +347,8 @@ class RunLog:
         conn.execute("PRAGMA foreign_keys=ON")
         version, app_id, n_tables = self._header(conn)
         self._check_header(version, app_id, n_tables)
+        if version >= 1:
+            self._check_tables(conn)
         mode = conn.execute("PRAGMA journal_mode=WAL").fetchone()[0]
         if str(mode).lower() != "wal":
             raise InputError(where, f"cannot use write-ahead logging for the run log "
@@ -297,6 +379,19 @@ class RunLog:
         app_id = conn.execute("PRAGMA application_id").fetchone()[0]
         n_tables = conn.execute("SELECT count(*) FROM sqlite_master").fetchone()[0]
         return version, app_id, n_tables
+
+    def _check_tables(self, conn) -> None:
+        """The events table has the columns this rigplan reads, and the file
+        passes SQLite's quick check; else RunLogDamaged."""
+        columns = tuple(r[1] for r in conn.execute("PRAGMA table_info(events)"))
+        missing = [c for c in _COLUMN_NAMES if c not in columns]
+        if missing:
+            raise RunLogDamaged(self.path, f"the events table lacks the column"
+                                           f"{'s' if len(missing) > 1 else ''} "
+                                           f"{', '.join(missing)}")
+        problems = [r[0] for r in conn.execute("PRAGMA quick_check(3)")]
+        if problems != ["ok"]:
+            raise RunLogDamaged(self.path, f"SQLite quick check: {_one_line(problems[0])}")
 
     def _check_header(self, version, app_id, n_tables) -> None:
         where = str(self.path)
@@ -467,11 +562,20 @@ class RunLog:
     # -- reading -----------------------------------------------------------
 
     def events(self) -> list:
-        """Every event in the order recorded."""
+        """Every event in the order recorded (RunLogDamaged when the file
+        cannot be read back)."""
         with self._lock:
-            rows = self._connection().execute(
-                f"SELECT {_COLUMNS} FROM events ORDER BY id").fetchall()
-        return [_event(r) for r in rows]
+            try:
+                rows = self._connection().execute(
+                    f"SELECT {_COLUMNS} FROM events ORDER BY id").fetchall()
+            except sqlite3.DatabaseError as exc:
+                raise RunLogDamaged(self.path, _one_line(exc)) from None
+            except UnicodeDecodeError as exc:
+                raise RunLogDamaged(self.path, f"text that is not UTF-8 ({exc.reason})") from None
+        events = [_event(r) for r in rows]
+        for e in events:
+            _check_event(e, self.path)
+        return events
 
     def state(self) -> RunState:
         """Replay the log into the present state of the run."""
@@ -554,6 +658,61 @@ class RunLog:
 
     def __repr__(self) -> str:
         return f"RunLog({str(self.path)!r})"
+
+
+def _one_line(exc) -> str:
+    return " ".join(str(exc).split())
+
+
+def _check_event(e: Event, path) -> None:
+    """An event read back has the types and values the writer gives it."""
+    ok = (isinstance(e.id, int) and e.kind in EVENT_KINDS
+          and (e.label is None or isinstance(e.label, str))
+          and (e.value is None or (isinstance(e.value, (int, float))
+                                   and math.isfinite(e.value)))
+          and isinstance(e.note, str)
+          and (e.ref is None or isinstance(e.ref, int))
+          and (e.step is None or (isinstance(e.step, int) and e.step >= 0))
+          and (e.predicted is None or (isinstance(e.predicted, (int, float))
+                                       and math.isfinite(e.predicted))))
+    if ok and e.kind == "run" and e.value is not None and not e.value > 0:
+        ok = False
+    if not ok:
+        raise RunLogDamaged(path, f"entry {e.id!r} holds values no rigplan writes")
+
+
+def set_aside_damaged(path: str | os.PathLike) -> Path:
+    """Rename a damaged run log (and its ``-wal`` and ``-shm`` files) out of
+    the way, keeping every byte; return the new path of the log.
+
+    The new name is ``<stem>.damaged-<UTC time>.sqlite`` beside it (with
+    ``-2``, ``-3`` ... when taken).  Nothing is deleted or overwritten, so a
+    new log can be started under the old name and the old one recovered
+    later (e.g. with the sqlite3 tool's ``.recover``).
+    """
+    src = Path(path)
+    stamp = datetime.now(timezone.utc).strftime("%Y%m%dT%H%M%SZ")
+    stem = src.name[:-len(".sqlite")] if src.name.endswith(".sqlite") else src.name
+    n = 1
+    while True:
+        name = f"{stem}.damaged-{stamp}{'' if n == 1 else f'-{n}'}.sqlite"
+        dst = src.with_name(name)
+        if not any(Path(str(dst) + sfx).exists() for sfx in ("", "-wal", "-shm")):
+            break
+        n += 1
+    try:
+        # the companions first: the log itself moves last, so a crash in
+        # between leaves it under its own name
+        for sfx in ("-wal", "-shm"):
+            if Path(str(src) + sfx).exists():
+                os.rename(str(src) + sfx, str(dst) + sfx)
+        os.rename(src, dst)
+        from rigplan.files.atomicio import fsync_directory
+        fsync_directory(src.parent)
+    except OSError as exc:
+        raise InputError(str(src), f"cannot set the damaged run log aside "
+                                   f"({exc.strerror or exc}): rename it yourself") from None
+    return dst
 
 
 class _NothingToUndo(Exception):
