@@ -119,8 +119,17 @@ def cmd_check(args) -> int:
 
 
 def _input_files(args, job) -> list:
-    """(role, path) of every file a job command reads."""
+    """(role, path) of every file a job command reads (``job`` None: those
+    named on the command line, before any is read)."""
     from rigplan.files.runlog import log_path_for
+    if job is None:
+        from types import SimpleNamespace
+        from rigplan.files.job import resolve_rig
+        try:
+            rig = resolve_rig(args.rig, Path(args.plan))
+        except InputError:
+            rig = None
+        job = SimpleNamespace(plan_path=Path(args.plan), rig_path=rig, tally_path=None)
     files = [("string plan", job.plan_path), ("rig profile", job.rig_path)]
     if getattr(job, "tally_path", None) is not None:
         files.append(("tally named in the plan", job.tally_path))
@@ -159,10 +168,11 @@ def cmd_report(args) -> int:
     from rigplan.files.atomicio import atomic_write_text
     from rigplan.present.report import text_renderables
     out = Path(args.output)
+    refuse_overwrite(out, _input_files(args, None))      # before any work
     job, landing = _load(args)
-    refuse_overwrite(out, _input_files(args, job))
-    console = Console(record=True, width=110, file=open("/dev/null", "w") if sys.platform != "win32"
-                      else None, highlight=False)
+    refuse_overwrite(out, _input_files(args, job))       # the plan's own tally too
+    import io
+    console = Console(record=True, width=110, file=io.StringIO(), highlight=False)
     for r in text_renderables(landing, job.plan, args.units, job.warnings, job.rig.name):
         console.print(r)
     if out.suffix.lower() in (".html", ".htm"):

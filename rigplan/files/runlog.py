@@ -435,10 +435,11 @@ class RunLog:
                     if conn.in_transaction:
                         conn.execute("ROLLBACK")
                     raise
-            except sqlite3.Error as exc:
+            except (sqlite3.Error, UnicodeDecodeError) as exc:
                 raise RunLogWriteError(
                     f"{self.path}: could not save the {kind} entry"
-                    f"{f' for {label!r}' if label else ''} ({exc}); it was NOT recorded") from exc
+                    f"{f' for {label!r}' if label else ''} ({_one_line(exc)}); it was NOT "
+                    "recorded") from exc
             return event_id
 
     def _where(self, what: str) -> str:
@@ -676,6 +677,12 @@ def _check_event(e: Event, path) -> None:
           and (e.predicted is None or (isinstance(e.predicted, (int, float))
                                        and math.isfinite(e.predicted))))
     if ok and e.kind == "run" and e.value is not None and not e.value > 0:
+        ok = False
+    if ok and e.kind in ("run", "reject") and not (e.label and e.label.strip()):
+        ok = False
+    if ok and e.kind == "undo" and e.ref is None:
+        ok = False
+    if ok and e.kind == "observe" and (e.step is None or e.value is None):
         ok = False
     if not ok:
         raise RunLogDamaged(path, f"entry {e.id!r} holds values no rigplan writes")

@@ -254,6 +254,8 @@ _MARKS = {"\u2032": "'", "\u2019": "'", "\u2018": "'", "\u2033": '"', "\u201c": 
 
 def _normalize_marks(text: str) -> str:
     """Typographic feet/inch marks and vulgar fractions (9\u215d) to plain text."""
+    if text.isascii():
+        return text
     for mark, plain in _MARKS.items():
         text = text.replace(mark, plain)
     for frac, plain in _VULGAR_FRACTIONS.items():

@@ -483,7 +483,7 @@ class JobSession:
             else:
                 ref = low.removeprefix("float collar").removeprefix("collar").strip()
                 labels = [j.label for j in running]
-                if ref.isdigit():
+                if ref.isascii() and ref.isdigit():
                     m = int(ref)
                 elif ref.upper() in [x.upper() for x in labels]:
                     m = [x.upper() for x in labels].index(ref.upper()) + 1
