@@ -262,7 +262,7 @@ BAD_PLANS = [
     ("negative density", MINIMAL.replace('"9.0 ppg"', '"-9 ppg"'),
      "strings/x.toml: hole.fluid_density", "greater than zero"),
     ("implausible density (unit slip)", MINIMAL.replace('"9.0 ppg"', "1100"),
-     "strings/x.toml: hole.fluid_density", "(600 to 3000 kg/m3)"),
+     "strings/x.toml: hole.fluid_density", "(600 to 3,000 kg/m3)"),
     ("ellipticity 1", MINIMAL + "ellipticity = 1.0\n",
      "strings/x.toml: section[1].ellipticity", "in [0, 1) [-]"),
     ("ellipticity negative", MINIMAL + "ellipticity = -0.01\n",

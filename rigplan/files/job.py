@@ -17,7 +17,7 @@ from rigplan.engine.stringmodel import JointSpec, StringPlan
 #: Where the bundled demo lives: the repository's ``rigs/`` and ``strings/``
 #: (an editable install from the checkout), else those of the current folder.
 _PACKAGE = Path(__file__).resolve().parent
-_REPO = _PACKAGE.parent
+_REPO = _PACKAGE.parents[1]      # rigplan/files -> the repository
 
 
 def demo_dir(kind: str) -> Path:

@@ -71,18 +71,20 @@ class Range:
         return above and below
 
     def _bounds(self, system: str | None):
-        if self.kind in ("count", "dimensionless"):
-            return f"{self.lo:g}", f"{self.hi:g}", "[-]" if self.kind == "dimensionless" else ""
+        if self.kind == "count":
+            return f"{int(self.lo):,}", f"{int(self.hi):,}", ""
+        if self.kind == "dimensionless":
+            return f"{self.lo:g}", f"{self.hi:g}", "[-]"
         system = system or "si"
         lo = units.to_display(self.lo, self.kind, system)
         hi = units.to_display(self.hi, self.kind, system)
-        return f"{lo:.4g}", f"{hi:.4g}", units.unit_label(self.kind, system)
+        return _number(lo), _number(hi), units.unit_label(self.kind, system)
 
     def interval_text(self, system: str | None = None) -> str:
         """The range in words or interval notation, in one unit system.
 
         >>> RANGES["fluid_density"].interval_text("si")
-        'between 600 and 3000 kg/m3'
+        'between 600 and 3,000 kg/m3'
         """
         lo, hi, label = self._bounds(system)
         tail = f" {label}" if label else ""
@@ -119,6 +121,21 @@ class Range:
         else:
             got_text = repr(got)
         raise InputError(where, f"expected {self.expected(system)}, got {got_text}")
+
+
+def _number(value: float) -> str:
+    """A bound for a message: 4 significant digits, thousands separated.
+
+    >>> _number(11240447.0), _number(0.328084), _number(3000.0)
+    ('11,240,000', '0.3281', '3,000')
+    """
+    if value == 0:
+        return "0"
+    digits = 3 - math.floor(math.log10(abs(value)))
+    rounded = round(value, digits)
+    if abs(rounded) >= 1000:
+        return f"{rounded:,.0f}"
+    return f"{rounded:.{max(digits, 0)}f}".rstrip("0").rstrip(".")
 
 
 def _ranges(*items: Range) -> dict:

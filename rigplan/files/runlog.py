@@ -211,6 +211,8 @@ def log_path_for(plan_path: str | os.PathLike) -> Path:
     'plans/well-7.rigrun.sqlite'
     """
     p = Path(plan_path)
+    if not p.name or p.name in (".", ".."):
+        raise InputError(str(plan_path), "expected the file name of a string plan, got a folder")
     return p.with_name(p.stem + LOG_SUFFIX)
 
 
@@ -303,7 +305,14 @@ class RunLog:
         from urllib.parse import quote
         base = "file:" + quote(str(self.path.resolve()))
         last = None
-        for options in ("?mode=ro", "?mode=ro&immutable=1"):
+        # At rest (no -wal file: no writer has it open, nothing waits to be
+        # checkpointed) the file is the whole log and is read as immutable,
+        # which leaves no -wal/-shm behind and works in a read-only folder.
+        # A -wal beside it (the app has it open, or was killed) is read
+        # through SQLite's read-only WAL mode, then immutable as a fallback.
+        at_rest = not Path(str(self.path) + "-wal").exists()
+        tries = ("?mode=ro&immutable=1",) if at_rest else ("?mode=ro", "?mode=ro&immutable=1")
+        for options in tries:
             try:
                 conn = sqlite3.connect(base + options, uri=True, isolation_level=None,
                                        timeout=10.0, check_same_thread=False)
