@@ -7,15 +7,19 @@ Layers (each may import only the ones listed before it):
    ``burst``, ``connections``, ``materials``, ``rating``, ``hydrostatics``,
    ``axial``, ``hoisting``, ``floatplan``, ``staging``, ``grouting``,
    ``planner``, ``stringmodel``, ``errors``).
-2. formats -- ``rigplan.files.units`` (pint) and ``rigplan.files.formats.*`` readers and
-   writers, ``rigplan.files.runlog`` (sqlite tally log).
-3. front ends -- ``rigplan.cli`` and ``rigplan.tui``.
+2. files -- ``rigplan.files.units`` (pint) and ``rigplan.files.formats.*`` readers and
+   writers, ``rigplan.files.runlog`` (sqlite tally log), ``rigplan.files.job``.
+3. present -- ``rigplan.present``: the words and display units of every output.
+4. front ends -- ``rigplan.cli`` and ``rigplan.tui``.
 """
 
 __version__ = "0.1.0"
 
-CAUTION = (
-    "Planning aid only: verify every figure against the rig maker's load chart "
-    "and the pipe and screen makers' ratings; local well codes and licensed "
-    "practice govern."
-)
+
+def __getattr__(name):
+    # The caution is presentation (rigplan.present.wording); re-exported here
+    # lazily so that importing the engine does not import the presentation.
+    if name == "CAUTION":
+        from rigplan.present.wording import CAUTION
+        return CAUTION
+    raise AttributeError(f"module 'rigplan' has no attribute {name!r}")

@@ -36,14 +36,21 @@ def _parser() -> argparse.ArgumentParser:
                     "bundled demo job.")
     sub = p.add_subparsers(dest="command")
 
-    def job_args(sp, need_rig=True):
+    def job_args(sp, need_rig=True, many_rigs=False):
         sp.add_argument("plan", help="string plan file (strings/*.toml)")
-        sp.add_argument("--rig", required=need_rig,
-                        help="rig capacity profile (rigs/*.toml, or a bundled rig's name)")
+        if many_rigs:
+            sp.add_argument("--rig", required=need_rig, action="append",
+                            help="rig capacity profile (rigs/*.toml, a bundled rig's name, or "
+                                 "a folder of profiles); repeat to weigh several rigs")
+        else:
+            sp.add_argument("--rig", required=need_rig,
+                            help="rig capacity profile (rigs/*.toml, or a bundled rig's name)")
         sp.add_argument("--path", default=None,
                         help="hoisting path to use (default: the one with most capacity)")
         sp.add_argument("--units", choices=("us", "si"), default="us",
                         help="display units: US field or SI (default us)")
+        sp.add_argument("--both-units", action="store_true",
+                        help="show every quantity in the other unit system too, in parentheses")
         sp.add_argument("--materials", default=None,
                         help="extra materials file (TOML) to add to the library")
         sp.add_argument("--tally", default=None,
@@ -53,26 +60,44 @@ def _parser() -> argparse.ArgumentParser:
                              "lengths, rejections): the plan as run so far")
 
     c = sub.add_parser("check", help="check whether the rig can land the string")
-    job_args(c)
+    job_args(c, many_rigs=True)
     c.add_argument("--format", choices=("text", "json"), default="text")
     c.add_argument("--brief", action="store_true",
                    help="text: show only the first and last steps and the summary")
     o = sub.add_parser("open", help="open the terminal app on a job")
     job_args(o)
-    r = sub.add_parser("report", help="write the printable job plan (HTML or text)")
-    job_args(r)
+    r = sub.add_parser("report", help="write the job packet (PDF, HTML, Markdown, CSV or JSON)")
+    job_args(r, many_rigs=True)
     r.add_argument("-o", "--output", required=True,
-                   help="output file: .html for a printable page, anything else for text")
+                   help="output file; its suffix picks the format: .pdf, .html, .md, "
+                        ".csv (running schedule and tally) or .json")
+    r.add_argument("--revision", default=None, help="revision shown on the cover "
+                                                    "(default: the plan's [report] revision)")
+    r.add_argument("--date", default=None, help="date shown on the cover "
+                                                "(default: the plan's [report] date)")
+    r.add_argument("--prepared-by", default=None, help="name in the prepared-by block")
+    r.add_argument("--reviewed-by", default=None, help="name in the reviewed-by block")
+    r.add_argument("--paper", choices=("letter", "a4"), default=None,
+                   help="PDF paper size (default: letter for US units, A4 for SI)")
+    r.add_argument("--band", type=float, default=None,
+                   help="weight band on the crew sheet, percent of the predicted hook load "
+                        "(default 10)")
+    r.add_argument("--stamp", action="store_true",
+                   help="print the time of writing in the page footer (the file then differs "
+                        "from run to run)")
     d = sub.add_parser("demo", help="check every bundled demo job and list the verdicts")
     d.add_argument("--units", choices=("us", "si"), default="us")
     sub.add_parser("rigs", help="list the bundled rig profiles and their hoisting paths")
+    from rigplan.cli_rack import add_commands
+    add_commands(sub, job_args)
     return p
 
 
 def _load(args):
     import dataclasses
     from rigplan.files.job import apply_run_state, apply_tally_file, load_job, plan_job, read_run_state
-    job = load_job(args.plan, args.rig, args.path, args.materials)
+    rig = args.rig[0] if isinstance(args.rig, list) else args.rig
+    job = load_job(args.plan, rig, args.path, args.materials)
     plan = job.plan
     if getattr(args, "tally", None):
         plan = apply_tally_file(plan, args.tally)
@@ -92,55 +117,156 @@ def _load(args):
     return job, landing
 
 
+def _system(args) -> str:
+    """The unit system for the presentation layer (``us``, ``si``, ``us+si``, ``si+us``)."""
+    other = {"us": "si", "si": "us"}[args.units]
+    return f"{args.units}+{other}" if getattr(args, "both_units", False) else args.units
+
+
+def _console(**kw):
+    import os
+    from rich.console import Console
+    width = None if sys.stdout.isatty() or "COLUMNS" in os.environ else 120
+    return Console(highlight=False, width=width, **kw)
+
+
 def _exit_for(landing) -> int:
     return EXIT_LANDS if landing.lands else EXIT_LIMIT
 
 
+def _many_rigs(args) -> bool:
+    rigs = args.rig if isinstance(args.rig, list) else [args.rig]
+    return len(rigs) > 1 or any(Path(r).is_dir() for r in rigs)
+
+
 def cmd_check(args) -> int:
     from rigplan.present.report import plan_dict, text_renderables
+    if _many_rigs(args):
+        return cmd_check_rigs(args)
     job, landing = _load(args)
+    from rigplan.cli_rack import liner_of
+    liner = liner_of(job, landing)
     if args.format == "json":
         doc = plan_dict(landing, job.plan, job.warnings, job.rig.name)
+        if liner is not None:
+            from rigplan.present.rack import liner_dict
+            doc["liner"] = {k: v for k, v in liner_dict(liner, {}).items() if k != "plan"}
         doc["exit_code"] = _exit_for(landing)
         json.dump(doc, sys.stdout, indent=1, allow_nan=False)
         sys.stdout.write("\n")
     else:
-        from rich.console import Console
-        console = Console(highlight=False, width=None if sys.stdout.isatty() else 120)
+        console = _console()
         try:
-            for r in text_renderables(landing, job.plan, args.units, job.warnings, job.rig.name,
+            for r in text_renderables(landing, job.plan, _system(args), job.warnings, job.rig.name,
                                       all_steps=not args.brief):
                 console.print(r)
+            if liner is not None:
+                from rigplan.present.rack import liner_lines
+                console.print("Liner in the old casing (rigplan liner gives the full profile):")
+                for line in liner_lines(liner, _system(args)):
+                    console.print("  " + line, markup=False)
         except SystemExit:
             # rich ends the process this way when the reader of a pipe (such
             # as `| head`) has gone: the verdict still decides the exit code
             pass
+    if liner is not None and not liner.assessment.fit.fits:
+        return EXIT_LIMIT
     return _exit_for(landing)
 
 
+def _weigh(args, plan_override=None):
+    """(job, candidates) for every rig and path named on the command line."""
+    from rigplan.present.packet.rigs import expand_rigs, weigh_rigs
+    job, landing = _load(_with_first_rig(args))
+    plan = plan_override or job.plan
+    rigs = expand_rigs(args.rig if isinstance(args.rig, list) else [args.rig], job.plan_path)
+    fixed = False
+    if getattr(args, "as_run", False):
+        from rigplan.files.job import read_run_state
+        state = read_run_state(job.plan_path)
+        fixed = bool(state is not None and state.run)
+    return job, weigh_rigs(plan, rigs, args.path, fixed_closure=fixed)
+
+
+def _with_first_rig(args):
+    import copy
+    from rigplan.present.packet.rigs import expand_rigs
+    one = copy.copy(args)
+    rigs = args.rig if isinstance(args.rig, list) else [args.rig]
+    one.rig = str(expand_rigs(rigs[:1], args.plan)[0]) if Path(rigs[0]).is_dir() else rigs[0]
+    return one
+
+
+def cmd_check_rigs(args) -> int:
+    """``check`` with several rigs: one table of every rig path's verdict and margin."""
+    from rigplan.present.packet.content import rig_choice_table
+    job, cands = _weigh(args)
+    choices = [c.choice for c in cands]
+    if args.format == "json":
+        doc = {"plan": job.plan.name, "rigs": [
+            {"rig": c.rig, "path": c.path, "verdict": c.verdict, "lands": c.lands,
+             "governing": c.governing, "margin": c.margin if c.margin == c.margin else None,
+             "string_limit": c.string_limit if c.string_limit == c.string_limit else None,
+             "hook_limit": c.hook_limit if c.hook_limit == c.hook_limit else None,
+             "chosen": c.chosen} for c in choices],
+            "units": "SI base units: N; margins are fractions"}
+        doc["exit_code"] = EXIT_LANDS if any(c.lands for c in choices) else EXIT_LIMIT
+        json.dump(doc, sys.stdout, indent=1, allow_nan=False)
+        sys.stdout.write("\n")
+    else:
+        from rich.table import Table
+        t = rig_choice_table(choices, _system(args), mark="* lands with the largest margin")
+        rt = Table(title=f"{job.plan.name}: {t.title.lower()}", caption=t.note or None)
+        for col, a in zip(t.columns, t.align):
+            rt.add_column(col, justify="right" if a == "r" else "left")
+        for row in t.rows:
+            rt.add_row(*row)
+        console = _console()
+        console.print(rt)
+        from rigplan import CAUTION
+        console.print(f"CAUTION: {CAUTION}")
+    return EXIT_LANDS if any(c.lands for c in choices) else EXIT_LIMIT
+
+
 def _input_files(args, job) -> list:
-    """(role, path) of every file a job command reads (``job`` None: those
-    named on the command line, before any is read)."""
+    """(role, path) of every file the command reads (a report may be written
+    onto none of them); ``job`` None: those named on the command line,
+    before any is read."""
     from rigplan.files.runlog import log_path_for
+    rigs = args.rig if isinstance(args.rig, list) else [args.rig]
     if job is None:
         from types import SimpleNamespace
         from rigplan.files.job import resolve_rig
+        resolved = []
+        for r in rigs:
+            try:
+                resolved.append(resolve_rig(r, Path(args.plan)))
+            except InputError:
+                pass
+        job = SimpleNamespace(plan_path=Path(args.plan), rig_path=resolved[0] if resolved
+                              else None, tally_path=None)
+    files = [("string plan", args.plan), ("string plan", job.plan_path),
+             ("rig profile", job.rig_path),
+             ("tally named in the plan", getattr(job, "tally_path", None)),
+             ("tally", getattr(args, "tally", None)),
+             ("materials file", getattr(args, "materials", None))]
+    files += [("rig profile", r) for r in rigs if r and _exists(r)]
+    if job.plan_path is not None:
         try:
-            rig = resolve_rig(args.rig, Path(args.plan))
+            log = log_path_for(job.plan_path)
         except InputError:
-            rig = None
-        job = SimpleNamespace(plan_path=Path(args.plan), rig_path=rig, tally_path=None)
-    files = [("string plan", job.plan_path), ("rig profile", job.rig_path)]
-    if getattr(job, "tally_path", None) is not None:
-        files.append(("tally named in the plan", job.tally_path))
-    if getattr(args, "tally", None):
-        files.append(("tally", Path(args.tally)))
-    if getattr(args, "materials", None):
-        files.append(("materials file", Path(args.materials)))
-    log = log_path_for(job.plan_path)
-    files += [("run log", log), ("run log", Path(str(log) + "-wal")),
-              ("run log", Path(str(log) + "-shm"))]
-    return [(role, Path(p)) for role, p in files if p is not None]
+            log = None
+        if log is not None:
+            files += [("run log", log), ("run log", Path(str(log) + "-wal")),
+                      ("run log", Path(str(log) + "-shm"))]
+    return [(role, Path(f)) for role, f in files if f]
+
+
+def _exists(path) -> bool:
+    try:
+        return Path(path).exists()
+    except (OSError, ValueError):
+        return False
 
 
 def _same_file(a: Path, b: Path) -> bool:
@@ -153,9 +279,9 @@ def _same_file(a: Path, b: Path) -> bool:
         return False
 
 
-def refuse_overwrite(out: Path, inputs, option: str = "-o") -> None:
-    """InputError when ``out`` is one of the ``(role, path)`` inputs: no
-    command writes onto a file it reads."""
+def refuse_input_overwrite(out: Path, inputs, option: str = "-o") -> None:
+    """An output path that is one of the ``(role, path)`` inputs is refused
+    (exit 2), naming both: no command writes onto a file it reads."""
     for role, path in inputs:
         if _same_file(Path(out), Path(path)):
             raise InputError(f"{option} {out}", f"this is the {role} {str(path)!r}, which the "
@@ -164,60 +290,104 @@ def refuse_overwrite(out: Path, inputs, option: str = "-o") -> None:
 
 
 def cmd_report(args) -> int:
-    from rich.console import Console
-    from rigplan.files.atomicio import atomic_write_text
-    from rigplan.present.report import text_renderables
+    import dataclasses
+    from rigplan.files.atomicio import atomic_write_bytes
+    from rigplan.files.job import apply_run_state, read_run_state
+    from rigplan.present.packet import FORMATS, format_for, render
+    from rigplan.present.packet.content import AsRun, DEFAULT_BAND, ReportInfo
     out = Path(args.output)
-    refuse_overwrite(out, _input_files(args, None))      # before any work
-    job, landing = _load(args)
-    refuse_overwrite(out, _input_files(args, job))       # the plan's own tally too
-    import io
-    console = Console(record=True, width=110, file=io.StringIO(), highlight=False)
-    for r in text_renderables(landing, job.plan, args.units, job.warnings, job.rig.name):
-        console.print(r)
-    if out.suffix.lower() in (".html", ".htm"):
-        text = console.export_html(inline_styles=True)
-        title = (f"<title>rigplan: {job.plan.name} - {landing.verdict}</title>\n"
-                 "<style>@media print { pre { font-size: 7pt; white-space: pre; } "
-                 "body { margin: 1cm; } }</style>")
-        text = text.replace("<head>", "<head>\n" + title, 1)
+    refuse_input_overwrite(out, _input_files(args, None))      # before any work
+    fmt = format_for(out)
+    if fmt is None:
+        raise InputError(f"{out}", "unknown report format: expected a file name ending in "
+                         + ", ".join(sorted(FORMATS)))
+    # the plan as planned (a tally CSV applied), planned on the chosen rig
+    import copy
+    plain = copy.copy(args)
+    plain.as_run = False
+    if _many_rigs(args):
+        job, cands = _weigh(plain)
+        best = next(c for c in cands if c.choice.chosen)
+        choices = [c.choice for c in cands]
+        job = dataclasses.replace(best.job, plan_path=job.plan_path, warnings=job.warnings)
+        landing = best.landing
+        path_name = best.job.path_name
     else:
-        text = console.export_text()
+        job, landing = _load(plain)
+        choices, path_name = [], args.path
+    refuse_input_overwrite(out, _input_files(args, job))
+    meta = dict(job.plan.report)
+    band = DEFAULT_BAND if args.band is None else args.band / 100.0
+    if not 0 < band < 1:
+        raise InputError("--band", f"expected a percent between 0 and 100, got {args.band}")
+    stamp = ""
+    if args.stamp:
+        from datetime import datetime, timezone
+        stamp = datetime.now(timezone.utc).strftime("%Y-%m-%d %H:%M UTC")
+    info = ReportInfo(revision=args.revision if args.revision is not None else meta.get("revision", ""),
+                      date=args.date if args.date is not None else meta.get("date", ""),
+                      prepared_by=args.prepared_by if args.prepared_by is not None
+                      else meta.get("prepared_by", ""),
+                      reviewed_by=args.reviewed_by if args.reviewed_by is not None
+                      else meta.get("reviewed_by", ""),
+                      paper=args.paper or "", band=band, stamp=stamp)
+    as_run = None
+    if args.as_run:
+        from rigplan.files.job import plan_job
+        state = read_run_state(job.plan_path)
+        if state is None:
+            raise InputError(f"{job.plan_path}: --as-run", "no run log beside the plan: the "
+                                                           "job has not been run in the app")
+        from rigplan.files.runlog import log_path_for
+        run_plan = apply_run_state(job.plan, state, str(log_path_for(job.plan_path)))
+        run_landing = plan_job(run_plan, job.rig, path_name, fixed_closure=bool(state.run))
+        as_run = AsRun(job.plan, landing, state, run_plan, run_landing)
+    data = render(fmt, job, landing, _system(args), info, choices, as_run, job.rig.name)
     try:
-        atomic_write_text(out, text)
+        atomic_write_bytes(out, data)
     except (OSError, ValueError) as err:
         reason = getattr(err, "strerror", None) or err
         raise InputError(f"{out}", f"cannot write the report ({reason}): expected "
                                    "a writable file path") from None
-    print(f"wrote {out} ({landing.verdict})")
+    print(f"wrote {out} ({landing.verdict.value})")
     return _exit_for(landing)
 
 
 def cmd_demo(args) -> int:
-    from rigplan.files.job import demo_jobs, load_job, plan_job
+    """Check every demo job; exit 1 when a verdict is not the one promised."""
+    from rigplan.files.job import DEMO_JOBS, demo_jobs, load_job, plan_job
+    from rigplan.present.wording import limit_place, percent
+    promised = {plan: verdict for plan, _rig, verdict in DEMO_JOBS}
     worst = EXIT_LANDS
     for plan, rig in demo_jobs():
         job = load_job(plan, rig)
         landing = plan_job(job.plan, job.rig)
         g = landing.governing
-        print(f"{plan.name:28s} on {rig.name:24s} {landing.verdict:24s}"
-              f" {g.name if g else ''} margin {100 * g.margin:.1f} %" if g else "")
-        worst = max(worst, _exit_for(landing))
-    return EXIT_LANDS
+        want = promised[plan.name]
+        line = f"{plan.name:28s} on {rig.name:24s} {landing.verdict.value:24s}"
+        if g is not None:
+            line += f" {g.name} at {limit_place(g)}, margin {percent(g.margin)}"
+        if landing.verdict != want:
+            line += f"  <- the README promises: {want}"
+            worst = EXIT_LIMIT
+        print(line)
+    return worst
 
 
 def cmd_rigs(args) -> int:
+    from rigplan.engine.findings import Kind
     from rigplan.files.formats.rigfile import read_rig
     from rigplan.engine.hoisting import path_capacity
     from rigplan.files.job import demo_dir
-    from rigplan.files import units as U
+    from rigplan.present.wording import fmt
     for f in sorted(demo_dir("rigs").glob("*.toml")):
         rig = read_rig(f)
         print(f"{f.name}: {rig.name}")
         for p in rig.paths:
             c = path_capacity(p)
-            print(f"  path {p.name!r}: string limit {U.format(c.string_limit, 'force', 'us', 0)}"
-                  f" ({U.format(c.string_limit, 'force', 'si', 1)}), governed by {c.governing}")
+            print(f"  path {p.name!r}: string limit {fmt(c.string_limit, Kind.FORCE, 'us+si', 0)}"
+                  f", hook limit {fmt(c.hook_limit, Kind.FORCE, 'us+si', 0)}, governed by "
+                  f"{c.governing}" + (f" ({c.governing_case})" if c.governing_case else ""))
     return EXIT_LANDS
 
 
@@ -276,6 +446,9 @@ def _run(args) -> int:
             from rigplan.tui.app import run_app
             run_app(plan, rig, None, "us")
             return EXIT_LANDS
+        if args.command in ("place", "liner"):
+            from rigplan import cli_rack
+            return getattr(cli_rack, f"cmd_{args.command}")(args, _load)
         return {"check": cmd_check, "open": cmd_open, "report": cmd_report,
                 "demo": cmd_demo, "rigs": cmd_rigs}[args.command](args)
     except InputError as err:

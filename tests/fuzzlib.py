@@ -682,7 +682,7 @@ def fuzz_runlogs(n: int, seed: int) -> Stats:
         readonly = rng.random() < 0.6
 
         def run():
-            with RunLog(target, readonly=readonly) as rl:
+            with RunLog(target, snapshot=readonly) as rl:
                 state = rl.state()
                 if not readonly:
                     try:

@@ -50,7 +50,7 @@ def test_json_keys_and_si_values(capsys):
                 "fill_schedule", "stages", "grouting", "cautions"):
         assert key in doc
     step = doc["steps"][-1]
-    for key in ("joint", "shoe_depth", "hook_load", "capacity"):
+    for key in ("joint", "shoe_depth", "hook_load", "hook_limit"):
         assert key in step
     con = doc["connections"][0]
     for key in ("joint", "depth", "max_true_tension", "capacity", "utilization"):
@@ -141,7 +141,7 @@ def test_report_html(tmp_path, capsys):
     assert main(["report", str(STRINGS / "cv7-16in-floated.toml"), "--rig", "mw80",
                  "-o", str(out)]) == 0
     text = out.read_text()
-    assert "<html" in text.lower() and "CAUTION" in text
+    assert "<html" in text.lower() and "caution" in text.lower()
 
 
 def test_engine_imports_without_textual_or_rich():

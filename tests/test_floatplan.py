@@ -208,3 +208,116 @@ def test_fill_cannot_stand_above_its_balance_with_the_hole():
     assert all(w.full_limit[k] == "valve balance" for k in np.flatnonzero(deep))
     w2 = fill_window(j, Hole(1100.0), Closure(0), 1300.0, 1e9, -1e12)
     assert_allclose(w2.min_fill_level, z * (1 - 1100.0 / 1300.0), rtol=1e-12)
+
+
+# ---------------------------------------------------------------------------
+# Limits a crew can follow: a low hole-fluid level, and when top-ups go in.
+
+LBF = 4.4482216152605      # N per lbf (NIST SP 811)
+FT = 0.3048                # m per ft (NIST SP 811)
+
+
+def _carried_heights(schedule, shoe, valve_height):
+    """Fill height above the shoe each joint is lowered with: what the
+    step before left in the pipe (the valve height before any fill)."""
+    height = shoe - np.nan_to_num(schedule.fill_level, nan=np.inf)
+    height = np.maximum(height, valve_height)
+    return np.concatenate(([valve_height], height[:-1])), height
+
+
+def test_low_fluid_level_float_shoe_lands_without_filling_dry_pipe():
+    # 16 in x 0.375 in casing in 20 ft joints (plain-end weight 62.58 lb/ft,
+    # ASTM A53 Table X2 / the plain-end formula: 1,252 lbf a joint), a float
+    # shoe, 9.6 ppg (1,150 kg/m3) mud standing 300 ft below the floor, water
+    # fill, a 2,000 lbf minimum running weight (common practice, no source)
+    # and an 80,000 lbf string limit, so the string cannot run open-ended.
+    # Checks derived from hydrostatics and the pressure-area method
+    # (Bourgoyne et al., Applied Drilling Engineering, 1986, ch. 7):
+    # * a joint in air weighs its air weight whatever the valve: never refused;
+    # * fill stands no higher than its balance with the hole at the valve
+    #   (U-tube), so no fill is asked for while the shoe is above the mud;
+    # * every joint is lowered with the fill carried from the step before,
+    #   and that run is inside every limit (recomputed by the pressure-area
+    #   engine, not by the schedule).
+    from rigplan.engine.hoisting import HoistPath, Rig
+    from rigplan.engine.planner import LANDS_FLOATED, plan_landing
+    from rigplan.engine.stringmodel import Settings
+    rating = float(timoshenko(16 * INCH, 0.875 * 0.375 * INCH, 35000 * PSI, 0.01))
+    j = uniform(100, length=20 * FT, collapse=rating)
+    j = JointArrays(**{**j.__dict__, "body_rating": np.full(100, 1e7),
+                       "connection_rating": np.full(100, 1e7),
+                       "burst_rating": np.full(100, 1e8)})
+    assert_allclose(j.weight[0] / LBF, 62.58 * 20, rtol=2e-3)
+    hole = Hole(1150.0, fluid_level=300 * FT)
+    limit, w_min = 80000 * LBF, 2000 * LBF
+    rig = Rig("test rig", (HoistPath("top head", top_head_pullup=limit, mast_rating=limit),))
+    settings_ = Settings(fill_density=RHO_W, min_running_weight=w_min)
+    lp = plan_landing(j, hole, rig, settings_, Closure(0))
+    assert lp.verdict == LANDS_FLOATED
+    assert lp.chosen.closure.valve_joint == 0          # the planned shoe, not a substitute
+    s = lp.best_float.schedule
+    shoe = np.cumsum(j.length)
+    dry = shoe <= hole.fluid_level + 1e-9
+    assert dry.sum() == 15                               # 300 ft of 20 ft joints
+    # no fill instruction for dry pipe
+    assert_allclose(s.fill_volume[dry], 0.0, atol=0.0)
+    assert s.fill_to_top_through == 0 or s.fill_to_top_through > dry.sum()
+    assert all(not dry[t.joint - 1] for t in s.top_ups)
+    assert len(s.top_ups) >= 1
+    # a joint in air is not held to the minimum running weight
+    assert lp.best_float.window.feasible.all()
+    # every joint lowered inside its window, by the pressure-area engine
+    carried, after = _carried_heights(s, shoe, 0.0)
+    assert s.lowered_below_window == ()
+    for height in (carried, after):
+        loads = running_loads(j, hole, Closure(0), RHO_W, shoe - height)
+        wet = ~dry
+        assert np.all(loads.string_load[wet] >= w_min * (1 - 1e-9))
+        assert np.all(loads.string_load <= limit * (1 + 1e-9))
+        assert np.all(loads.collapse_max * 1.125 <= rating * (1 + 1e-9))
+    # fill never stands above its balance with the mud at the shoe:
+    # rho_w (Z - h) <= rho_m (Z - h_o)
+    assert np.all(RHO_W * after <= 1150.0 * np.maximum(shoe - hole.fluid_level, 0) + 1e-6)
+
+
+def test_top_up_goes_in_before_the_joint_that_needs_it():
+    # Hand-computed window, uniform string, float shoe, hole full of mud,
+    # water fill, no collapse rating (pressure-area method, Bourgoyne et al.
+    # 1986, ch. 7): with fill height s above the shoe at shoe depth Z,
+    #   F(Z, s) = (w - rho_m g A_o) Z + rho_w g A_i s
+    # so the running weight W_min and the limit give
+    #   lo(Z) = (W_min - (w - rho_m g A_o) Z) / (rho_w g A_i)
+    #   hi(Z) = min(Z, (limit - (w - rho_m g A_o) Z) / (rho_w g A_i)).
+    # The crew fills each joint to the top while the full string stays
+    # under the limit at every later step (through joint t), then carries
+    # s = Z_t.  The first joint k with lo(Z_k) > Z_t needs a top-up: it must
+    # go in with joint k-1 at the floor, before joint k is lowered.
+    n, length = 160, 6.0
+    j = uniform(n, length=length)
+    hole = Hole(RHO_MUD)
+    limit, w_min = 240e3, 10e3
+    a_o = np.pi / 4 * j.od[0] ** 2
+    a_i = np.pi / 4 * j.bore[0] ** 2
+    net = j.weight[0] / length - RHO_MUD * G * a_o          # empty, per metre [N/m]
+    per_fill = RHO_W * G * a_i                               # fill, per metre [N/m]
+    assert net < 0 < net + per_fill                          # floats empty, sinks full
+    z = length * np.arange(1, n + 1)
+    lo = (w_min - net * z) / per_fill
+    hi = np.minimum(z, (limit - net * z) / per_fill)
+    full_ok = z <= np.minimum.accumulate(hi[::-1])[::-1]
+    t = int(np.flatnonzero(~full_ok)[0])                     # joints 1..t full
+    k = int(np.flatnonzero(lo > z[t - 1])[0]) + 1            # first joint needing more
+    s = fill_schedule(j, hole, Closure(0), RHO_W, limit, w_min, 1.0, shares=(1.0,))
+    assert s.feasible
+    assert s.fill_to_top_through == t
+    first = s.top_ups[0]
+    assert first.joint == k - 1 and first.before_joint == k
+    # the fill carried into joint k is inside its window, and the level
+    # after the top-up is inside the window of joint k-1
+    height_after = z[k - 2] - first.level_after
+    assert lo[k - 1] <= height_after + 1e-9 <= hi[k - 2] + 2e-9
+    # volume: the bore between the old and new fill surface
+    assert_allclose(first.volume, a_i * (height_after - z[t - 1]), rtol=1e-9)
+    carried, _ = _carried_heights(s, z, 0.0)
+    assert np.all(carried[t:] >= lo[t:] - 1e-9)
+    assert s.lowered_below_window == ()

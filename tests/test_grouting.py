@@ -29,6 +29,7 @@ from numpy.testing import assert_allclose
 from rigplan.engine.collapse import timoshenko
 from rigplan.errors import InputError
 from rigplan.engine.grouting import (
+    GroutCode,
     annulus_pressure_with_grout,
     grout_collapse_loads,
     grout_differential_pressure,
@@ -163,7 +164,8 @@ def test_unrated_joint_gives_nan_utilization():
     assert np.all(np.isfinite(np.delete(util, 3)))
     plan = plan_grout_lifts(joints, Hole(MUD), grout, DF)
     assert plan.unrated == ("J4",)
-    assert any("J4" in w and "unrated" in w for w in plan.warnings)
+    assert any(w.code == GroutCode.UNRATED_JOINTS and "J4" in w.get("labels")
+               for w in plan.warnings)
 
 
 # ---------------------------------------------------------------------------
@@ -289,7 +291,7 @@ def test_plan_lifts_follow_hand_recursion_and_stay_within_rating():
         expected.append((b, t))
         b = t
     assert len(expected) >= 3
-    assert plan.feasible and plan.reason == ""
+    assert plan.feasible and plan.reason is None
     assert plan.n_lifts == len(expected) == len(plan.lifts)
     assert_allclose(np.array(plan.lifts), np.array(expected), rtol=1e-11, atol=1e-9)
     assert not plan.full_column_ok
@@ -333,7 +335,7 @@ def test_plan_infeasible_when_hole_fluid_alone_overloads():
     assert MUD * G * 240.0 > R16 / DF
     plan = plan_grout_lifts(joints, Hole(MUD), grout, DF)
     assert not plan.feasible and plan.n_lifts == 0 and plan.lifts == ()
-    assert "J1" in plan.reason and "before grout" in plan.reason
+    assert plan.reason.code == GroutCode.OVERLOADED_BEFORE_GROUT and plan.reason.label == "J1"
     assert plan.max_single_lift == 0.0
     assert not plan.full_column_ok
 
@@ -343,7 +345,7 @@ def test_plan_warns_when_grout_lighter_than_hole_fluid():
     # (hydrostatics: the lighter column rises); warn, do not fail.
     joints = uniform_string(n=10)
     plan = plan_grout_lifts(joints, Hole(1200.0), GroutSpec(1150.0, 20.0, WATER), DF)
-    assert any("lighter than the hole fluid" in w for w in plan.warnings)
+    assert any(w.code == GroutCode.LIGHTER_THAN_HOLE_FLUID for w in plan.warnings)
     assert plan.feasible
 
 
@@ -444,3 +446,58 @@ def test_max_lift_agrees_with_brute_force(case, rho_g):
         # Just above the returned top some joint is over its rating / DF.
         step = 1e-6 * z
         assert worst(min(z, lift.top_height + step)) > 1.0 - 1e-9
+
+
+# ---------------------------------------------------------------------------
+# heat of hydration: thermoplastic casing derated while the grout sets
+
+
+def test_pvc_collapse_derated_for_the_heat_of_hydration():
+    # PVC derating table (Uni-Bell Handbook of PVC Pipe, from memory): 1.00 at
+    # 73.4 F, 0.62 at 100 F.  A PVC string rated at the 73.4 F job temperature
+    # and a rise of 26.6 F (100 F while the grout sets) keeps 0.62 of its
+    # collapse rating; steel keeps all of it.  Tallest single lift from the
+    # shoe, uniform string, both fluids full (hydrostatics, module docstring):
+    # H = (P/DF - rho_o g Z + rho_i g Z) / ((rho_g - rho_o) g).
+    from rigplan.engine.grouting import grouting_collapse_ratings
+    from rigplan.engine.rating import rate_joints
+    from rigplan.engine.stringmodel import JointSpec
+    od = 8.625 * INCH
+    pvc = [JointSpec(f"P{i}", "blank", "pvc", od=od, wall=od / 17, length=6.0,
+                     connection="spline") for i in range(20)]
+    steel = JointSpec("S", "blank", "a53b", od=od, wall=0.25 * INCH, length=6.0)
+    joints = rate_joints(pvc + [steel])
+    rise = (100.0 - 73.4) / 1.8
+    rated = grouting_collapse_ratings(joints, rise)
+    assert_allclose(rated[:20], 0.62 * joints.collapse_rating[:20], rtol=1e-12)
+    assert rated[20] == joints.collapse_rating[20]
+    assert_allclose(grouting_collapse_ratings(joints, 0.0), joints.collapse_rating, rtol=0)
+    only_pvc = rate_joints(pvc)
+    z = 120.0
+    p = 0.62 * only_pvc.collapse_rating[0]
+    expected = (p / DF - MUD * G * z + WATER * G * z) / ((GROUT - MUD) * G)
+    plan = plan_grout_lifts(only_pvc, Hole(fluid_density=MUD),
+                            GroutSpec(density=GROUT, height=z, inside_density=WATER,
+                                      temperature_rise=rise), DF)
+    assert_allclose(plan.max_single_lift, expected, rtol=1e-9)
+    cool = plan_grout_lifts(only_pvc, Hole(fluid_density=MUD),
+                            GroutSpec(density=GROUT, height=z, inside_density=WATER), DF)
+    assert cool.max_single_lift > plan.max_single_lift
+
+
+def test_pvc_past_its_table_while_grouting_is_unrated():
+    # PVC is not rated above 140 F (derating table, from memory): a job at
+    # 110 F with a 40 F rise leaves no collapse rating: unrated, never assumed,
+    # and the grouting plan lists the joints it could not check.
+    from rigplan.engine.grouting import grouting_collapse_ratings
+    from rigplan.engine.rating import rate_joints
+    from rigplan.engine.stringmodel import JointSpec
+    od = 8.625 * INCH
+    pvc = [JointSpec(f"P{i}", "blank", "pvc", od=od, wall=od / 17, length=6.0,
+                     connection="spline") for i in range(5)]
+    joints = rate_joints(pvc, temperature=(110 - 32) / 1.8)
+    assert np.all(np.isnan(grouting_collapse_ratings(joints, 40 / 1.8)))
+    plan = plan_grout_lifts(joints, Hole(fluid_density=MUD),
+                            GroutSpec(density=GROUT, height=10.0, inside_density=WATER,
+                                      temperature_rise=40 / 1.8), DF)
+    assert plan.unrated == tuple(f"P{i}" for i in range(5))

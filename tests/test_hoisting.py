@@ -238,16 +238,34 @@ def test_path_capacity_mast_governs_with_stronger_elevator():
     assert_allclose(cap.hook_limit, 130e3, rtol=1e-12)
 
 
-def test_path_capacity_dynamic_factor_divides_ratings():
-    # dynamic factor 1.25 (kN):
-    #   winch 160/1.25 = 128 - 30 = 98;  rope 240/1.25 = 192 - 30 = 162
-    #   mast  150/1.25 = 120 - 30 = 90;  elevator 120/1.25 = 96 - 20 = 76
+def test_shock_and_overpull_are_separate_load_cases():
+    # Hand arithmetic (kN), dynamic factor 1.25, overpull reserve 20, gear 10;
+    # shock: R/1.25 - gear, overpull: R - gear - 20 (common practice, no
+    # source, for the dynamic factor; API RP 7G margin of overpull, from
+    # memory, for the static pull), each part the smaller of the two:
+    #   winch    160/1.25 - 10 = 118   160 - 10 - 20 = 130  -> 118 shock
+    #   rope     240/1.25 - 10 = 182   240 - 10 - 20 = 210  -> 182 shock
+    #   mast     150/1.25 - 10 = 110   150 - 10 - 20 = 120  -> 110 shock
+    #   elevator 120/1.25      =  96   120      - 20 = 100  ->  96 shock
+    # Not stacked: the old rule (R/1.25 - 20 - gear) would give 76 for the
+    # elevator.
     cap = path_capacity(_main_path(dynamic_factor=1.25))
     assert cap.governing == "casing elevator"
-    assert_allclose(cap.string_limit, 76e3, rtol=1e-12)
-    allowed = {c[0]: c[3] for c in cap.components}
-    assert_allclose(allowed["winch line pull"], 98e3, rtol=1e-12)
-    assert_allclose(allowed["mast"], 90e3, rtol=1e-12)
+    assert cap.governing_case == "shock"
+    assert_allclose(cap.string_limit, 96e3, rtol=1e-12)
+    assert_allclose(cap.hook_limit, 106e3, rtol=1e-12)
+    parts = {p.name: p for p in cap.parts}
+    assert_allclose([parts[k].shock_limit for k in ("winch line pull", "wire rope", "mast",
+                                                     "casing elevator")],
+                    [118e3, 182e3, 110e3, 96e3], rtol=1e-12)
+    assert_allclose([parts[k].overpull_limit for k in ("winch line pull", "wire rope", "mast",
+                                                        "casing elevator")],
+                    [130e3, 210e3, 120e3, 100e3], rtol=1e-12)
+    # With a small dynamic factor the overpull case governs instead:
+    # elevator 120/1.1 = 109.1 > 120 - 20 = 100 -> overpull, 100 kN.
+    cap = path_capacity(_main_path(dynamic_factor=1.1))
+    assert cap.governing == "casing elevator" and cap.governing_case == "overpull"
+    assert_allclose(cap.string_limit, 100e3, rtol=1e-12)
 
 
 def test_dead_load_makes_stronger_hook_part_govern_over_weaker_tool():
@@ -452,3 +470,240 @@ def test_unrated_parts_in_use_on_a_path():
     assert set(cap.unrated_on_path) == {"spider", "wire rope", "mast"}
     head = HoistPath("t", top_head_pullup=200e3, dead_load=1e3)
     assert path_capacity(head).unrated_on_path == ()
+
+
+# ---------------------------------------------------------------------------
+# the hoisting chain on a constructed rig, read from a rig file
+
+CONSTRUCTED_RIG = """
+units = "si"
+name = "constructed rig"
+
+[[path]]
+name = "main line"
+lines = 4
+sheave_factor = 1.04
+winch_line_pull = "50 kN"
+rope_breaking_force = "240 kN"
+rope_design_factor = 3
+mast_rating = "200 kN"
+dead_load = "15 kN"
+overpull_reserve = "30 kN"
+dynamic_factor = 1.2
+
+[[path.tool]]
+name = "elevator"
+kind = "elevator"
+rating = "150 kN"
+
+[[path]]
+name = "top head"
+top_head_pullup = "120 kN"
+top_head_pullup_basis = "net"
+top_head_pullup_net_of = "10 kN"
+dead_load = "12 kN"
+overpull_reserve = "20 kN"
+dynamic_factor = 1.1
+
+[[path.tool]]
+name = "clamp"
+kind = "clamp"
+rating = "130 kN"
+"""
+
+
+def _constructed_chains():
+    from rigplan.files.formats.rigfile import parse_rig
+    return rig_capacity(parse_rig(CONSTRUCTED_RIG, "rigs/constructed.toml"))
+
+
+def test_chain_main_line_by_hand():
+    # Block efficiency, 4 lines, K = 1.04 (API RP 9B form, ADE ch. 1):
+    # E = (1.04^4 - 1) / (4 x 1.04^4 x 0.04) = 0.16985856 / 0.18717737 = 0.907473
+    # n E = 3.629893.  Rated at hook (kN):
+    #   winch    50 x 3.629893        = 181.495
+    #   rope     240 / 3 x 3.629893   = 290.391
+    #   mast     200 (gross), elevator 150 (net: holds the string only)
+    # Gear counted: 15 for winch, rope and mast; 0 for the elevator.
+    # Shock, dynamic factor 1.2 (common practice, no source): R/1.2 - gear
+    #   winch 136.246, rope 226.993, mast 151.667, elevator 125.000
+    # Overpull, 30 kN (API RP 7G margin of overpull, from memory): R - gear - 30
+    #   winch 136.495, rope 245.391, mast 155.000, elevator 120.000
+    # -> elevator in overpull governs: string limit 120, hook limit 135.
+    main = _constructed_chains()[0]
+    kn = 1e3
+    e4 = 0.16985856 / 0.18717737
+    assert_allclose(main.block_efficiency, e4, rtol=1e-6)
+    parts = {p.name: p for p in main.parts}
+    assert [p.name for p in main.parts] == ["winch line pull", "wire rope", "mast", "elevator"]
+    assert_allclose([parts[k].rated_at_hook / kn for k in parts],
+                    [50 * 4 * e4, 80 * 4 * e4, 200, 150], rtol=1e-6)
+    assert_allclose([parts[k].rating / kn for k in parts], [50, 240, 200, 150], rtol=1e-12)
+    assert_allclose([parts[k].gear_counted / kn for k in parts], [15, 15, 15, 0], rtol=1e-12)
+    assert_allclose([parts[k].shock_limit / kn for k in parts],
+                    [50 * 4 * e4 / 1.2 - 15, 80 * 4 * e4 / 1.2 - 15, 200 / 1.2 - 15, 125],
+                    rtol=1e-6)
+    assert_allclose([parts[k].overpull_limit / kn for k in parts],
+                    [50 * 4 * e4 - 45, 80 * 4 * e4 - 45, 155, 120], rtol=1e-6)
+    assert_allclose(parts["winch line pull"].shock_limit / kn, 136.246, atol=5e-3)
+    assert main.governing == "elevator" and main.governing_case == "overpull"
+    assert_allclose(main.string_limit / kn, 120, rtol=1e-12)
+    assert_allclose(main.hook_limit / kn, 135, rtol=1e-12)
+    assert_allclose(main.dead_load / kn, 15, rtol=1e-12)
+    shock, overpull = main.cases
+    assert (shock.code, shock.factor, shock.source) == ("shock", 1.2, "common practice, no source")
+    assert overpull.code == "overpull" and "API RP 7G" in overpull.source
+    assert_allclose(overpull.allowance / kn, 30, rtol=1e-12)
+
+
+def test_chain_top_head_net_of_its_own_weight_is_not_reduced_again():
+    # Pull-up 120 kN net of the head's own 10 kN; the path's dead load 12 kN
+    # (head 10 + sub and clamp 2): the rating still carries 2 kN of gear.
+    #   shock 120/1.1 - 2 = 107.091, overpull 120 - 2 - 20 = 98   -> 98
+    #   clamp (holds the string only): 130/1.1 = 118.18, 130 - 20 = 110
+    # string limit 98 kN (head, overpull), hook limit 98 + 12 = 110 kN.
+    # Counting the head's weight again and stacking the cases, as a rating
+    # read as gross would, gives 120/1.1 - 20 - 12 = 77.09 kN.
+    head = _constructed_chains()[1]
+    kn = 1e3
+    parts = {p.name: p for p in head.parts}
+    hp = parts["top head pull-up"]
+    assert hp.basis == "net"
+    assert_allclose(hp.gear_counted / kn, 2, rtol=1e-12)
+    assert_allclose(hp.shock_limit / kn, 120 / 1.1 - 2, rtol=1e-12)
+    assert_allclose(hp.overpull_limit / kn, 98, rtol=1e-12)
+    assert_allclose(parts["clamp"].string_limit / kn, 110, rtol=1e-12)
+    assert head.governing == "top head pull-up" and head.governing_case == "overpull"
+    assert_allclose(head.string_limit / kn, 98, rtol=1e-12)
+    assert_allclose(head.hook_limit / kn, 110, rtol=1e-12)
+
+
+def test_net_rating_of_all_the_gear_takes_no_dead_load():
+    # Mast 100 kN net of all the gear (no net_of given), 15 kN dead load,
+    # no shock or overpull: the string may use all 100 kN; gross, 85 kN.
+    net = path_capacity(HoistPath("p", mast_rating=100e3, mast_basis="net", dead_load=15e3))
+    gross = path_capacity(HoistPath("p", mast_rating=100e3, dead_load=15e3))
+    assert_allclose(net.string_limit, 100e3, rtol=1e-12)
+    assert_allclose(net.hook_limit, 115e3, rtol=1e-12)
+    assert_allclose(gross.string_limit, 85e3, rtol=1e-12)
+
+
+def test_other_tool_can_be_declared_net():
+    # a hook ("other", gross by default) rated net of the 5 kN block above it
+    p = HoistPath("p", tools=(("hook", "other", 100e3, "net", 5e3),), dead_load=8e3)
+    cap = path_capacity(p)
+    assert_allclose(cap.parts[0].gear_counted, 3e3, rtol=1e-12)
+    assert_allclose(cap.string_limit, 97e3, rtol=1e-12)
+
+
+@pytest.mark.parametrize("change, key, fragment", [
+    (("lines = 4", "lines = 25"), "path[1].lines", "from 1 to 24"),
+    (("lines = 4", "lines = 100000"), "path[1].lines", "from 1 to 24"),
+    (("lines = 4", "lines = 0"), "path[1].lines", ">= 1"),
+    (("sheave_factor = 1.04", "sheave_factor = 1.5"), "path[1].sheave_factor", "from 1 to 1.2"),
+    (("sheave_factor = 1.04", "sheave_factor = 0.9"), "path[1].sheave_factor", "from 1 to 1.2"),
+    (("sheave_factor = 1.04", 'sheave_factor = "nan"'), "path[1].sheave_factor", ""),
+    (("rope_design_factor = 3", "rope_design_factor = 0.5"), "path[1].rope_design_factor",
+     "from 1 to 20"),
+    (("dynamic_factor = 1.2", "dynamic_factor = 12"), "path[1].dynamic_factor", "from 1 to 3"),
+    (('top_head_pullup_basis = "net"', 'top_head_pullup_basis = "nett"'),
+     "path[2].top_head_pullup_basis", "gross, net"),
+    (('top_head_pullup_basis = "net"', 'top_head_pullup_basis = "gross"'),
+     "path[2].top_head_pullup_net_of", "gross rating"),
+    (('top_head_pullup_net_of = "10 kN"', 'top_head_pullup_net_of = "13 kN"'),
+     "path[2].top_head_pullup_net_of", "dead_load"),
+    (('rating = "130 kN"', 'rating = "130 kN"\nbasis = "heavy"'), "path[2].tool[1].basis",
+     "gross, net"),
+])
+def test_bad_chain_keys_are_one_line_input_errors(change, key, fragment):
+    from rigplan.files.formats.rigfile import parse_rig
+    text = CONSTRUCTED_RIG.replace(*change, 1)
+    assert text != CONSTRUCTED_RIG
+    with pytest.raises(InputError) as err:
+        parse_rig(text, "rigs/constructed.toml")
+    msg = str(err.value)
+    assert msg.startswith(f"rigs/constructed.toml: {key}:"), msg
+    assert fragment in msg and "\n" not in msg
+
+
+def test_engine_rejects_lines_and_sheave_factor_that_would_give_nan():
+    # K^n overflows for huge n or K: E_n = inf/inf = nan; refused instead.
+    with pytest.raises(InputError, match="lines"):
+        HoistPath("p", lines=100000, winch_line_pull=1e3)
+    with pytest.raises(InputError, match="sheave factor"):
+        HoistPath("p", lines=4, sheave_factor=1e300)
+    with pytest.raises(InputError, match="lines"):
+        block_efficiency(np.array([4, 20000]))
+
+
+def test_chain_figure_names_are_defined_once():
+    from rigplan.engine.hoisting import ChainFigure
+    # each figure of ChainPart / HoistChain is named by one member
+    assert ChainFigure.RATED_AT_HOOK.key == "rated_at_hook"
+    assert str(ChainFigure.HOOK_LIMIT) == "hook limit"
+    fields = {"rating", "to_hook", "rated_at_hook", "gear_counted", "shock_limit",
+              "overpull_limit", "string_limit"}
+    import dataclasses as dc
+    from rigplan.engine.hoisting import ChainPart
+    assert fields <= {f.name for f in dc.fields(ChainPart)}
+    assert fields <= {f.key for f in ChainFigure}
+
+
+def test_check_json_and_text_show_the_chain(tmp_path, capsys):
+    # The constructed rig's chain (hand arithmetic in test_chain_main_line_by_hand)
+    # reaches `rigplan check` JSON under the ChainFigure keys, and the text
+    # table names the same figures.
+    import json
+    from pathlib import Path
+    from rigplan.cli import main
+    rig = tmp_path / "constructed.toml"
+    rig.write_text(CONSTRUCTED_RIG, encoding="utf-8")
+    plan = Path(__file__).resolve().parents[1] / "strings" / "cv3-8in-a53b.toml"
+    main(["check", str(plan), "--rig", str(rig), "--path", "main line", "--format", "json"])
+    doc = json.loads(capsys.readouterr().out)
+    r = doc["rig"]
+    assert r["path"] == "main line" and r["governing_component"] == "elevator"
+    assert r["governing_case"] == "overpull"
+    assert_allclose([r["string_limit"], r["hook_limit"], r["dead_load"]],
+                    [120e3, 135e3, 15e3], rtol=1e-9)
+    elev = [c for c in r["components"] if c["name"] == "elevator"][0]
+    assert elev["basis"] == "net"
+    assert_allclose([elev["rating"], elev["rated_at_hook"], elev["gear_counted"],
+                     elev["shock_limit"], elev["overpull_limit"], elev["string_limit"]],
+                    [150e3, 150e3, 0.0, 125e3, 120e3, 120e3], rtol=1e-9)
+    assert [c["case"] for c in r["cases"]] == ["shock", "overpull"]
+    assert r["cases"][0]["source"] == "common practice, no source"
+    assert all(s["hook_limit"] == r["hook_limit"] for s in doc["steps"])
+    main(["check", str(plan), "--rig", str(rig), "--path", "main line", "--units", "si"])
+    text = capsys.readouterr().out
+    for label in ("rated at hook", "gear counted", "shock limit", "overpull limit",
+                  "string limit", "hook limit", "API RP 7G"):
+        assert label in text, label
+
+
+async def test_app_rig_screen_shows_the_chain(tmp_path):
+    # The app's rig screen shows each path's chain with the same figure names
+    # (values: the constructed rig, worked by hand above).
+    from pathlib import Path
+    from rigplan.tui.app import build_app
+    rig = tmp_path / "constructed.toml"
+    rig.write_text(CONSTRUCTED_RIG, encoding="utf-8")
+    import shutil
+    strings = Path(__file__).resolve().parents[1] / "strings"
+    for name in ("cv3-8in-a53b.toml", "cv3-8in-a53b.tally.csv"):   # the run log goes beside
+        shutil.copy(strings / name, tmp_path / name)
+    plan = tmp_path / "cv3-8in-a53b.toml"
+    app = build_app(plan, rig, units="si")
+    app.animation_level = "none"
+    async with app.run_test(size=(160, 60)) as pilot:
+        await pilot.press("5")
+        await pilot.pause()
+        from rich.console import Console
+        import io
+        console = Console(width=160, record=True, file=io.StringIO())
+        console.print(app.query_one("#rig-view").content)
+        text = console.export_text()
+    for label in ("rated at hook", "gear counted", "shock limit", "overpull limit",
+                  "string limit", "hook limit", "governs (overpull)", "string limit 120 kN",
+                  "hook limit 135 kN", "hook limit 110 kN"):
+        assert label in text, label

@@ -4,7 +4,7 @@ import numpy as np
 from numpy.testing import assert_allclose
 
 from rigplan.engine.axial import running_loads
-from rigplan.engine.staging import landing_string_load, plan_two_stages
+from rigplan.engine.staging import StagingCode, landing_string_load, plan_two_stages
 from rigplan.engine.stringmodel import G, Closure, Hole, JointArrays
 
 INCH = 0.0254
@@ -60,7 +60,7 @@ def test_best_split_matches_brute_force_and_closed_form():
 def test_unrated_landing_string_is_refused():
     # Rule of the project: an unrated part is never assumed.
     plan = plan_two_stages(uniform(20), Hole(1100.0), 1e6, 200.0, float("nan"))
-    assert not plan.feasible and "no tensile rating" in plan.reason
+    assert not plan.feasible and plan.reason.code == StagingCode.NO_TENSILE_RATING
 
 
 def test_split_search_with_a_weak_landing_string_matches_brute_force():

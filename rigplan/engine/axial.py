@@ -14,7 +14,9 @@ axial force at the cut is::
          + sum_{i<=j} [ P_o(z_i) (A_o,i-1 - A_o,i)
                         + P_in,i(z_i) A_b,i - P_in,i-1(z_i) A_b,i-1 ]
 
-with ``A_o = pi D^2/4`` the outside and ``A_b = pi d^2/4`` the bore area,
+with ``A_o`` the outer area (``JointArrays.pressure_outside_area``: the bore
+plus the joint's own material, so each joint is buoyed by the fluid its
+material displaces) and ``A_b = pi d^2/4`` the bore area,
 ``A_o,0 = A_b,0 = 0``, ``P_o`` the annulus pressure and ``P_in,i`` the
 pressure of whatever fills the bore of joint ``i`` (hole fluid below the
 check valve, fill fluid above it).  A check valve is simply an interface
@@ -28,18 +30,41 @@ Practice (1951) (effective force); Bourgoyne et al., *Applied Drilling
 Engineering* (1986), ch. 7 (pressure-area method, buoyancy); the project's
 string mechanics (ADE 1986) for the sign conventions (depth down, tension positive).
 
-Cost
-----
-Only interfaces where something changes (the bottom end, an OD or bore
-change, the check valve) carry a pressure force.  Between two such
-"active" interfaces the force differs only by the air weight of the joints
-between, so the true force at every connection at every step needs
-``O(N x I)`` work, ``N`` joints and ``I`` active interfaces, not
-``O(N^2)``.  It is quadratic only when every joint changes cross-section.
-The collapse envelope evaluates every joint above the valve at the ends of
-each run of steps with a constant fill level or height: ``O(N x E)`` for
-``E`` runs, quadratic only when the fill changes at every joint (a top-up
-with each joint).  Memory is bounded by processing the steps in blocks.
+Running-sum form
+----------------
+Heights ``x`` are measured up from the shoe.  At step ``k`` the shoe is at
+``Z_k``, the annulus fluid reaches up to height ``U_k = Z_k - h_o`` and the
+fill inside up to ``H_k = Z_k - h_k`` (``h_o``, ``h_k`` the depths of the two
+surfaces).  With ``P_o = rho_o g (U_k - x)+`` and ``P_f = rho_f g (H_k - x)+``
+the interface sum telescopes (the area steps of neighbouring interfaces
+cancel) into two integrals of the string's areas::
+
+    F(j, k) = sum_{i<=j} W_i - rho_o g S_j(U_k) + rho_f g Y_j(H_k)
+
+    S(y) = int_0^y A_p(x) dx,   A_p = A_o above the valve, A_o - A_b below it
+    Y(y) = int_{x_v}^y A_b(x) dx (the fill-side bore volume below height y)
+    S_j(y) = S(min(y, T_j)) + A_p,j (y - T_j)+   (T_j: top of joint j)
+    Y_j(y) = Y(min(y, T_j)) + A_b,j (y - T_j)+   (0 below the valve)
+
+(the pressure below the cut acts as if the cut joint's section went on up
+to the fluid surface).  ``S`` and ``Y`` are running sums over the joints, so
+each force costs O(1) after O(N) set-up, the string load at every step
+O(N), whatever the number of section changes.
+
+The force envelope of a joint, the largest and least ``F(j, k)`` over
+``k >= j``, follows from how ``F`` depends on ``U_k`` (rising with ``k``)
+and ``H_k``: below the valve ``F`` does not depend on the fill and falls as
+``U_k`` rises, so its extremes sit at ``k = j`` and ``k = N``.  Above the
+valve, with the fill height never falling (fluid cannot leave through a
+check valve), the steps ``k >= j`` split into at most four runs by whether
+``U_k`` and ``H_k`` have passed ``T_j``; in each run ``F`` is a fixed
+function of the step plus a constant per joint, so a range-maximum query
+(sparse table, O(N log N)) per distinct cross-section gives each run's
+extreme step, and the joint's envelope is the best of those few steps,
+evaluated exactly.  The collapse and burst envelopes (``P_o - P_in`` over
+each joint's length and the steps) are found the same way.  Fill heights
+that fall between steps (no plan makes them) are evaluated at every
+(joint, step) pair instead, O(N^2) in bounded blocks.
 """
 
 from __future__ import annotations
@@ -63,11 +88,15 @@ _GEOMETRY_CACHE_SIZE = 8
 
 @dataclass(frozen=True)
 class StringGeometry:
-    """Derived geometry of a string in running order [m, m^2].
+    """Derived geometry of a string in running order [m, m^2, m^3, N].
 
     ``bottom`` and ``top`` are heights of each joint's bottom and top face
     above the shoe; the shoe depth at step k (1-based) is ``top[k-1]``.
-    ``fill_side`` marks the bores above the check valve.
+    ``fill_side`` marks the bores above the check valve.  ``knots`` are the
+    heights 0, top[0], ..., top[-1]; ``pressure_volume`` and ``fill_volume``
+    the running sums ``S`` and ``Y`` of the module docstring at the knots;
+    ``pressure_area`` and ``fill_area`` the per-joint ``A_p`` and ``A_b``
+    (0 below the valve).
     """
 
     bottom: np.ndarray
@@ -79,6 +108,11 @@ class StringGeometry:
     active: np.ndarray        # indices of active interfaces (sorted)
     section: np.ndarray       # per joint: index into ``active`` of its section
     valve_height: float       # height of the check valve above the shoe [m] (nan: open)
+    knots: np.ndarray = None
+    pressure_area: np.ndarray = None
+    fill_area: np.ndarray = None
+    pressure_volume: np.ndarray = None
+    fill_volume: np.ndarray = None
 
 
 def string_geometry(joints: JointArrays, closure: Closure) -> StringGeometry:
@@ -96,14 +130,16 @@ def string_geometry(joints: JointArrays, closure: Closure) -> StringGeometry:
     for the same, unchanged string.
     """
     valve = closure.valve_joint
-    inputs = (joints.length, joints.od, joints.bore, joints.weight)
+    inputs = (joints.length, joints.od, joints.bore, joints.weight,
+              joints.od if joints.displaced_area is None else joints.displaced_area)
     for entry in tuple(_GEOMETRY_CACHE):
         if entry[0] is joints and entry[1] == valve and all(
                 a.shape == np.shape(b) and bool((a == b).all()) for a, b in zip(entry[2], inputs)):
             return entry[3]
     geo = _build_geometry(joints, closure)
     for name in ("bottom", "top", "outside_area", "bore_area", "fill_side", "cum_weight",
-                 "active", "section"):
+                 "active", "section", "knots", "pressure_area", "fill_area",
+                 "pressure_volume", "fill_volume"):
         getattr(geo, name).flags.writeable = False
     _GEOMETRY_CACHE.insert(0, (joints, valve, tuple(np.array(a, dtype=float) for a in inputs),
                                geo))
@@ -121,7 +157,7 @@ def _build_geometry(joints: JointArrays, closure: Closure) -> StringGeometry:
         raise ValueError("every joint length must be positive [m]")
     top = np.cumsum(length)
     bottom = np.concatenate(([0.0], top[:-1]))
-    ao = 0.25 * np.pi * np.asarray(joints.od, dtype=float) ** 2
+    ao = np.asarray(joints.pressure_outside_area, dtype=float)   # bore + own material (Archimedes)
     ab = 0.25 * np.pi * np.asarray(joints.bore, dtype=float) ** 2
     if np.any(ab >= ao):
         raise ValueError("each joint's bore must be smaller than its outside diameter")
@@ -142,38 +178,55 @@ def _build_geometry(joints: JointArrays, closure: Closure) -> StringGeometry:
     active_mask[0] = True
     active = np.flatnonzero(active_mask)
     section = np.cumsum(active_mask) - 1     # index of the last active interface <= j
+    pressure_area = np.where(fill_side, ao, ao - ab)
+    fill_area = np.where(fill_side, ab, 0.0)
     return StringGeometry(
         bottom=bottom, top=top, outside_area=ao, bore_area=ab, fill_side=fill_side,
         cum_weight=np.cumsum(np.asarray(joints.weight, dtype=float)),
         active=active, section=section, valve_height=valve_height,
+        knots=np.concatenate(([0.0], top)), pressure_area=pressure_area, fill_area=fill_area,
+        pressure_volume=np.concatenate(([0.0], np.cumsum(pressure_area * length))),
+        fill_volume=np.concatenate(([0.0], np.cumsum(fill_area * length))),
     )
 
 
-def _interface_terms(geo: StringGeometry, rows: np.ndarray, hole: Hole,
-                     fill_density: float, fill_level: np.ndarray) -> np.ndarray:
-    """Pressure force [N] on each active interface at the given steps.
+@dataclass(frozen=True)
+class _Surfaces:
+    """The two fluid surfaces at every step, as heights above the shoe [m],
+    and the running sums up to them: ``rho_o g S(U_k)`` and
+    ``rho_f g Y(H_k)`` [N] (module docstring)."""
 
-    ``rows`` are 0-based step indices; interfaces not yet in the hole (above
-    the floor at that step) contribute zero.  Shape (I, len(rows)): the
-    steps run along the last axis, so each operation loops over steps.
-    """
-    act = geo.active
-    shoe = geo.top[rows]
-    z = shoe[None, :] - geo.bottom[act][:, None]
-    p_out = hole.fluid_density * G * np.maximum(0.0, z - hole.fluid_level)
-    p_fill = fill_density * G * np.maximum(0.0, z - fill_level[rows][None, :])
-    up_fill = geo.fill_side[act]
-    low_fill = np.where(act > 0, geo.fill_side[np.maximum(act - 1, 0)], False)
-    ao_up = geo.outside_area[act]
-    ab_up = geo.bore_area[act]
-    ao_low = np.where(act > 0, geo.outside_area[np.maximum(act - 1, 0)], 0.0)
-    ab_low = np.where(act > 0, geo.bore_area[np.maximum(act - 1, 0)], 0.0)
-    p_up = np.where(up_fill[:, None], p_fill, p_out)
-    p_low = np.where(low_fill[:, None], p_fill, p_out)
-    terms = (p_out * (ao_low - ao_up)[:, None] + p_up * ab_up[:, None]
-             - p_low * ab_low[:, None])
-    terms[act[:, None] > rows[None, :]] = 0.0
-    return terms
+    outside: np.ndarray       # U_k
+    fill: np.ndarray          # H_k
+    outside_force: np.ndarray
+    fill_force: np.ndarray
+    grad_o: float             # rho_o g [N/m^3]
+    grad_f: float             # rho_f g [N/m^3]
+
+
+def _surfaces(geo: StringGeometry, hole: Hole, fill_density: float,
+              level: np.ndarray) -> _Surfaces:
+    u = geo.top - hole.fluid_level
+    h = geo.top - level
+    grad_o = hole.fluid_density * G
+    grad_f = fill_density * G
+    return _Surfaces(u, h, grad_o * np.interp(u, geo.knots, geo.pressure_volume),
+                     grad_f * np.interp(h, geo.knots, geo.fill_volume), grad_o, grad_f)
+
+
+def _force(geo: StringGeometry, surf: _Surfaces, j, k) -> np.ndarray:
+    """True force at the top of joints ``j`` at steps ``k`` (0-based,
+    broadcast, ``j <= k``) [N]: ``F(j, k)`` of the module docstring."""
+    top = geo.top[j]
+    u = surf.outside[k]
+    h = surf.fill[k]
+    out = np.where(u >= top,
+                   surf.grad_o * (geo.pressure_volume[j + 1] + geo.pressure_area[j] * (u - top)),
+                   surf.outside_force[k])
+    fill = np.where(h >= top,
+                    surf.grad_f * (geo.fill_volume[j + 1] + geo.fill_area[j] * (h - top)),
+                    surf.fill_force[k])
+    return geo.cum_weight[j] - out + fill
 
 
 def true_force_at(joints: JointArrays, hole: Hole, closure: Closure, fill_density: float,
@@ -181,8 +234,8 @@ def true_force_at(joints: JointArrays, hole: Hole, closure: Closure, fill_densit
     """True axial force at the top of joint ``joint`` at running step ``step`` [N].
 
     ``joint`` and ``step`` are arrays of 0-based indices of equal length
-    with ``joint <= step``.  The pressure-area sum of the module docstring
-    over the interfaces below each joint's top, ``O(I x distinct steps)``.
+    with ``joint <= step``.  ``F(j, k)`` of the module docstring (the
+    pressure-area sum in running-sum form), O(1) per pair after O(N) set-up.
     """
     geo = string_geometry(joints, closure)
     level = _fill_levels(geo, closure, fill_level)
@@ -190,12 +243,7 @@ def true_force_at(joints: JointArrays, hole: Hole, closure: Closure, fill_densit
     k = np.asarray(step, dtype=int)
     if np.any(j > k):
         raise ValueError("a joint's top is loaded only from the step it enters the hole")
-    # Many joints share a step (the last, or the step before a top-up):
-    # sum the interface forces once per distinct step, then pick each
-    # joint's section (the last active interface at or below its top).
-    steps, where = np.unique(k, return_inverse=True)
-    q = np.cumsum(_interface_terms(geo, steps, hole, fill_density, level), axis=0)
-    return geo.cum_weight[j] + q[geo.section[j], where]
+    return _force(geo, _surfaces(geo, hole, fill_density, level), j, k)
 
 
 def _fill_levels(geo: StringGeometry, closure: Closure, fill_level) -> np.ndarray:
@@ -215,7 +263,8 @@ def string_load_by_step(geo: StringGeometry, hole: Hole, fill_density: float,
     ``F_k = sum_{i<=k} W_i + sum_{active i<=k} [ P_o(z_i) (A_o,i-1 - A_o,i)
     + P_in,i(z_i) A_b,i - P_in,i-1(z_i) A_b,i-1 ]`` at step k, the
     pressure-area sum of the module docstring taken at the string top
-    (the hook load less the dead load of the hoisting gear).
+    (the hook load less the dead load of the hoisting gear), evaluated in
+    its running-sum form ``F(k, k)``.
 
     Parameters
     ----------
@@ -232,21 +281,14 @@ def string_load_by_step(geo: StringGeometry, hole: Hole, fill_density: float,
     Returns
     -------
     ndarray of N
-        ``running_loads(...).string_load`` [N], computed the same way (same
-        operations, same order) but without the envelopes: ``O(N x I)``
-        work for ``I`` active interfaces.  Static, vertical hole; sources as
-        the module docstring.
+        ``running_loads(...).string_load`` [N], the same formula, without
+        the envelopes: O(N).  Static, vertical hole; sources as the module
+        docstring.
     """
     n = len(geo.top)
-    block = max(1, _BLOCK_ELEMENTS // max(1, len(geo.active)))
     level = np.broadcast_to(np.asarray(fill_level, dtype=float), (n,))
-    out = np.empty(n)
-    steps = np.arange(n)
-    for r0 in range(0, n, block):
-        rows = steps[r0:r0 + block]
-        q = np.cumsum(_interface_terms(geo, rows, hole, fill_density, level), axis=0)
-        out[rows] = geo.cum_weight[rows] + q[geo.section[rows], rows - r0]
-    return out
+    k = np.arange(n)
+    return _force(geo, _surfaces(geo, hole, fill_density, level), k, k)
 
 
 @dataclass(frozen=True)
@@ -305,51 +347,40 @@ def running_loads(joints: JointArrays, hole: Hole, closure: Closure,
 
     Notes
     -----
-    Pressure-area method (module docstring).  Static: no drag, no
-    acceleration, no surge.  The reductions to the buoyancy factor
-    (open end, one fluid) and to ``W_air - P_shoe A_o`` (closed, empty) are
-    checked in the tests.
+    Pressure-area method (module docstring), O(N log N) for fill heights
+    that never fall.  Static: no drag, no acceleration, no surge.  The
+    reductions to the buoyancy factor (open end, one fluid) and to
+    ``W_air - P_shoe A_o`` (closed, empty) are checked in the tests.
     """
     geo = string_geometry(joints, closure)
     n = len(geo.top)
     level = _fill_levels(geo, closure, fill_level)
-    n_act = len(geo.active)
-    block = max(1, _BLOCK_ELEMENTS // max(1, n_act))
+    surf = _surfaces(geo, hole, fill_density, level)
+    steps = np.arange(n)
+    string_load = _force(geo, surf, steps, steps)
 
-    string_load = np.empty(n)
     env_max = np.empty(n)
     env_step = np.empty(n, dtype=int)
     env_min = np.empty(n)
     env_min_step = np.empty(n, dtype=int)
-    carry_max = np.full(n_act, -np.inf)
-    carry_max_at = np.full(n_act, n, dtype=int)
-    carry_min = np.full(n_act, np.inf)
-    carry_min_at = np.full(n_act, n, dtype=int)
-    steps = np.arange(n)
-    # Walk the steps from the last block to the first so that suffix maxima
-    # (largest force at a connection from the step it enters the hole on)
-    # can be carried between blocks.
-    for r1 in range(n, 0, -block):
-        r0 = max(0, r1 - block)
-        rows = steps[r0:r1]
-        # q[i, r]: pressure forces on the active interfaces 0..i at step
-        # rows[r] (interfaces along the first axis, steps along the last)
-        q = np.cumsum(_interface_terms(geo, rows, hole, fill_density, level), axis=0)
-        sec = geo.section[rows]
-        string_load[rows] = geo.cum_weight[rows] + q[sec, rows - r0]
-        for sign, carry, carry_at, out, out_step in (
-                (1.0, carry_max, carry_max_at, env_max, env_step),
-                (-1.0, carry_min, carry_min_at, env_min, env_min_step)):
-            v = sign * q
-            suffix = np.maximum.accumulate(v[:, ::-1], axis=1)[:, ::-1]
-            suffix = np.maximum(suffix, sign * carry[:, None])
-            at = np.where(v == suffix, rows[None, :], n)
-            at = np.minimum.accumulate(at[:, ::-1], axis=1)[:, ::-1]
-            at = np.where(at == n, carry_at[:, None], at)
-            out[rows] = geo.cum_weight[rows] + sign * suffix[sec, rows - r0]
-            out_step[rows] = at[sec, rows - r0] + 1
-            carry[:] = sign * suffix[:, 0]
-            carry_at[:] = at[:, 0]
+    # Below the valve F(j, k) does not depend on the fill and falls as the
+    # annulus surface rises past the joint (strictly once U_k > 0).
+    below = np.flatnonzero(~geo.fill_side)
+    if len(below):
+        env_max[below] = string_load[below]
+        env_step[below] = below + 1
+        last = np.full(len(below), n - 1)
+        env_min[below] = _force(geo, surf, below, last)
+        falls = surf.grad_o > 0 and surf.outside[-1] > 0
+        env_min_step[below] = n if falls else below + 1
+    above = np.flatnonzero(geo.fill_side)
+    rising = _rising_fill(surf.fill, above)
+    if len(above):
+        if rising is None:
+            envelopes = _fill_side_envelopes_everywhere(geo, surf, above)
+        else:
+            envelopes = _fill_side_envelopes(geo, surf, above, rising)
+        (env_max[above], env_step[above], env_min[above], env_min_step[above]) = envelopes
 
     shoe = geo.top
     top_depth = 0.0
@@ -367,31 +398,157 @@ def running_loads(joints: JointArrays, hole: Hole, closure: Closure,
     )
 
 
-def _step_segments(geo: StringGeometry, hole: Hole, level: np.ndarray):
-    """Split the steps into runs with a constant fill level (level held by
-    topping up) or a constant fill height above the shoe (fluid carried down
-    with the pipe).  Returns a list of (first, last, mode) 0-based steps."""
-    n = len(level)
-    if n == 1:
-        return [(0, 0, 0)]
-    scale = 1e-9 * max(1.0, float(geo.top[-1]))
-    height = geo.top - level
-    same_level = np.abs(np.diff(level)) <= scale
-    same_height = np.abs(np.diff(height)) <= scale
-    mode = np.where(same_level, 1, np.where(same_height, 2, 0))
-    change = np.flatnonzero(np.diff(mode) != 0) + 1
+def _rising_fill(fill: np.ndarray, above: np.ndarray):
+    """The fill heights made non-decreasing from the valve's first step on
+    (``-inf`` before it), or None when they fall by more than round-off
+    (fluid leaving through the valve, which no plan makes)."""
+    if len(above) == 0:
+        return None
+    m = int(above[0])
+    tail = fill[m:]
+    scale = 1e-9 * max(1.0, float(np.max(np.abs(tail))) if len(tail) else 1.0)
+    rising = np.full(len(fill), -np.inf)
+    rising[m:] = np.maximum.accumulate(tail)
+    if np.any(rising[m:] - tail > scale):
+        return None
+    return rising
+
+
+def _range_arg(values: np.ndarray, lo: np.ndarray, hi: np.ndarray, largest: bool) -> np.ndarray:
+    """First index of the largest (``largest``) or least value in
+    ``values[lo:hi]`` for each query (``lo`` where the range is empty).
+
+    A sparse table of arg-extremes over the span the queries touch:
+    ``O(L log L)`` to build for a span of ``L`` steps, O(1) per query.
+    """
+    out = np.array(lo, dtype=int, copy=True)
+    ok = hi > lo
+    if not np.any(ok):
+        return out
+    lo_, hi_ = lo[ok], hi[ok]
+    s0, s1 = int(lo_.min()), int(hi_.max())
+    v = values[s0:s1] if largest else -values[s0:s1]
+    length = hi_ - lo_
+    p = np.floor(np.log2(length)).astype(int)
+    p += (np.left_shift(1, p + 1) <= length)
+    p -= (np.left_shift(1, p) > length)
+    found = np.empty(len(lo_), dtype=int)
+    level = np.arange(len(v))
+    top = int(p.max())
+    for q in range(top + 1):
+        sel = np.flatnonzero(p == q)
+        if len(sel):
+            i1 = level[lo_[sel] - s0]
+            i2 = level[hi_[sel] - s0 - (1 << q)]
+            found[sel] = np.where(v[i2] > v[i1], i2, i1)
+        if q < top:
+            half = 1 << q
+            a, b = level[:len(level) - half], level[half:]
+            level = np.where(v[b] > v[a], b, a)
+    out[ok] = found + s0
+    return out
+
+
+def _suffix_arg(values: np.ndarray, largest: bool) -> np.ndarray:
+    """Per start ``s``: the first index of the largest (least) of
+    ``values[s:]``."""
+    n = len(values)
+    v = values if largest else -values
+    best = np.maximum.accumulate(v[::-1])[::-1]
+    at = np.where(v == best, np.arange(n), n)
+    return np.minimum.accumulate(at[::-1])[::-1]
+
+
+def _pick(values: np.ndarray, steps: np.ndarray, largest: bool, n: int):
+    """The extreme of each column of ``values`` (candidates x joints) and
+    the first step that gives it."""
+    best = values.max(axis=0) if largest else values.min(axis=0)
+    step = np.where(values == best, steps, n).min(axis=0)
+    return best, step
+
+
+def _groups(first: np.ndarray, second: np.ndarray):
+    """Indices of the joints with equal ``(first, second)`` pairs, group by
+    group (runs of equal pairs found first: strings come in sections)."""
+    if len(first) == 0:
+        return []
+    change = np.flatnonzero((np.diff(first) != 0) | (np.diff(second) != 0)) + 1
     starts = np.concatenate(([0], change))
-    ends = np.concatenate((change, [n - 1]))
-    segments = []
-    covered = np.zeros(n, dtype=bool)
-    for s, e in zip(starts, ends):
-        m = int(mode[s])
-        if m:
-            segments.append((int(s), int(e), m))
-            covered[s:e + 1] = True
-    for k in np.flatnonzero(~covered):
-        segments.append((int(k), int(k), 0))
-    return segments
+    runs = np.diff(np.concatenate((starts, [len(first)])))
+    _, inverse = np.unique(np.stack((first[starts], second[starts]), axis=1), axis=0,
+                           return_inverse=True)
+    label = np.repeat(inverse.ravel(), runs)
+    order = np.argsort(label, kind="stable")
+    bounds = np.flatnonzero(np.diff(label[order])) + 1
+    return np.split(order, bounds)
+
+
+def _fill_side_envelopes(geo: StringGeometry, surf: _Surfaces, above: np.ndarray,
+                         rising: np.ndarray):
+    """Largest and least ``F(j, k)`` over ``k >= j`` for joints above the
+    valve, the fill height never falling (``rising``), and their first
+    steps (1-based).
+
+    ``a_j`` is the first step with ``U_k >= T_j`` (the joint's top under the
+    annulus surface), ``b_j`` the first with ``H_k >= T_j`` (under the fill).
+    On ``[j, min(a, b))`` the force is ``W_j - rho_o g S(U_k) + rho_f g
+    Y(H_k)``; on ``[a, b)`` ``const - rho_o g A_p,j U_k + rho_f g Y(H_k)``;
+    on ``[b, a)`` ``const - rho_o g S(U_k) + rho_f g A_b,j H_k``; from
+    ``max(a, b)`` on ``const - rho_o g A_p,j U_k + rho_f g A_b,j H_k``.  The
+    step part of each depends on the joint only through its areas, so one
+    range query per distinct cross-section finds each run's extreme step
+    (an empty run gives a step of another run).  The four candidates are
+    evaluated exactly.
+    """
+    n = len(geo.top)
+    j = above
+    top = geo.top[j]
+    a = np.maximum(np.searchsorted(surf.outside, top, side="left"), j)
+    b = np.maximum(np.searchsorted(rising, top, side="left"), j)
+    ab_lo, ab_hi = np.minimum(a, b), np.maximum(a, b)
+    base = -surf.outside_force + surf.fill_force                       # on [j, min(a, b))
+    area_p, area_b = geo.pressure_area[j], geo.fill_area[j]
+    groups = _groups(area_p, area_b)
+    results = []
+    for largest in (True, False):
+        cands = [_range_arg(base, j, ab_lo, largest)]
+        run_ab = np.empty(len(j), dtype=int)        # [a, b): per distinct A_p
+        run_ba = np.empty(len(j), dtype=int)        # [b, a): per distinct A_b
+        tail = np.empty(len(j), dtype=int)          # [max(a, b), n): per (A_p, A_b)
+        for g in groups:
+            ap, fb = area_p[g[0]], area_b[g[0]]
+            v_ab = -surf.grad_o * ap * surf.outside + surf.fill_force
+            run_ab[g] = _range_arg(v_ab, a[g], b[g], largest)
+            v_ba = -surf.outside_force + surf.grad_f * fb * surf.fill
+            run_ba[g] = _range_arg(v_ba, b[g], a[g], largest)
+            v_tail = -surf.grad_o * ap * surf.outside + surf.grad_f * fb * surf.fill
+            tail[g] = _suffix_arg(v_tail, largest)[np.minimum(ab_hi[g], n - 1)]
+        cands += [np.clip(x, j, n - 1) for x in (run_ab, run_ba, tail)]
+        steps = np.stack(cands)
+        values = _force(geo, surf, j[None, :], steps)
+        best, step = _pick(values, steps, largest, n)
+        results += [best, step + 1]
+    return results
+
+
+def _fill_side_envelopes_everywhere(geo: StringGeometry, surf: _Surfaces, above: np.ndarray):
+    """:func:`_fill_side_envelopes` by evaluating every (joint, step) pair,
+    in blocks of joints: for fill heights that fall between steps."""
+    n = len(geo.top)
+    out = [np.empty(len(above)), np.empty(len(above), dtype=int),
+           np.empty(len(above)), np.empty(len(above), dtype=int)]
+    block = max(1, _BLOCK_ELEMENTS // n)
+    k = np.arange(n)[:, None]
+    for i0 in range(0, len(above), block):
+        j = above[i0:i0 + block][None, :]
+        values = _force(geo, surf, np.minimum(j, k), k)
+        steps = np.broadcast_to(k, values.shape)
+        for slot, (largest, fill) in enumerate(((True, -np.inf), (False, np.inf))):
+            v = np.where(k >= j, values, fill)
+            best, step = _pick(v, steps, largest, n)
+            out[2 * slot][i0:i0 + block] = best
+            out[2 * slot + 1][i0:i0 + block] = step + 1
+    return out
 
 
 def _loads_at(geo, hole, fill_density, level, k, j):
@@ -423,15 +580,22 @@ def collapse_envelope(geo: StringGeometry, hole: Hole, fill_density: float,
                       level: np.ndarray):
     """Largest collapse and burst load on each joint over all steps.
 
-    Within one joint at one step the load ``P_o - P_in`` is piecewise linear
-    in height with breaks at the fill surface and the annulus fluid top, so
-    its extremes lie at the joint's ends or those breaks.  Over a run of
-    steps with a constant fill height above the shoe (fluid carried down
-    with the pipe) it is monotone in shoe depth, so the run's first and last
-    steps and each joint's entry step bound it.  Over a run with a constant
-    fill level it is piecewise linear in shoe depth with breaks where a
-    face passes a fluid surface, so the steps either side of each break are
-    added.  Exact for the static model.
+    At step k the load at height x is ``dP = rho_o g (U_k - x)+ - rho_f g
+    (H_k - x)+`` (heights above the shoe, ``U_k`` and ``H_k`` the annulus
+    and fill surfaces).  Along a joint ``[x_0, x_1]`` it is piecewise linear
+    with a convex kink at ``U_k`` and a concave one at ``H_k``, so its
+    largest value lies at ``x_0``, ``x_1`` or ``H_k``, its least at ``x_0``,
+    ``x_1`` or ``U_k``.  Over the steps, with the fill height never falling:
+    at a fixed ``x`` the load is 0 until a surface passes ``x``, then rises
+    with ``U_k`` alone, or falls with ``H_k`` alone, then follows
+    ``rho_o g U_k - rho_f g H_k``, whose extremes over the remaining steps
+    are suffix extremes of one array; at ``x = H_k`` it is
+    ``rho_o g (U_k - H_k)+`` over the steps whose fill surface lies in the
+    joint (a range maximum), and at ``x = U_k`` likewise.  The candidate
+    steps are evaluated at all the points with
+    :func:`rigplan.engine.hydrostatics.collapse_load`.  Exact for the static
+    model; O(N log N).  Fill heights that fall between steps are evaluated at
+    every (joint, step) pair instead.
 
     Returns (collapse_max [Pa], step of it (1-based), burst_max [Pa]).
     """
@@ -442,70 +606,77 @@ def collapse_envelope(geo: StringGeometry, hole: Hole, fill_density: float,
     fill_j = np.flatnonzero(geo.fill_side)
     if len(fill_j) == 0:
         return cmax, cstep, bmax
-    segments = _step_segments(geo, hole, level)
-    ends = np.unique([e for seg in segments for e in seg[:2]])
-    wmax = np.full(len(fill_j), -np.inf)
-    wstep = np.zeros(len(fill_j), dtype=int)
-    bbest = np.full(len(fill_j), -np.inf)
-
-    def take(k, worst, best):
-        nonlocal wmax, wstep, bbest
+    u = geo.top - hole.fluid_level
+    h = geo.top - level
+    rising = _rising_fill(h, fill_j)
+    if rising is None:
+        wmax, wstep, bbest = _collapse_everywhere(geo, hole, fill_density, level, fill_j)
+    else:
+        j = fill_j
+        x0, x1 = geo.bottom[j], geo.top[j]
+        last = n - 1
+        clip = lambda x: np.clip(x, j, last)  # noqa: E731
+        d = hole.fluid_density * G * u - fill_density * G * h
+        gap = u - h
+        worst_k, worst_x, best_k, best_x = [], [], [], []
+        for steps, faces, suffix, largest in ((worst_k, worst_x, _suffix_arg(d, True), True),
+                                              (best_k, best_x, _suffix_arg(d, False), False)):
+            # at a face: 0 until a surface passes it; then rising with U
+            # alone (largest just before the fill passes), or falling with H
+            # alone (least just before the annulus passes); then d + const
+            for face in (x0, x1):
+                a_u = np.searchsorted(u, face, side="right")
+                a_h = np.searchsorted(rising, face, side="right")
+                edge = a_h if largest else a_u
+                both = np.minimum(np.maximum(np.maximum(a_u, a_h), j), last)
+                for k in (j, clip(edge - 1), clip(edge), suffix[both]):
+                    steps.append(k)
+                    faces.append(face)
+            # at a surface inside the joint: rho_o g (U - H)+ at the fill
+            # surface (largest), -rho_f g (H - U)+ at the annulus one (least)
+            surface = rising if largest else u
+            lo = np.maximum(np.searchsorted(surface, x0, side="left"), j)
+            hi = np.searchsorted(surface, x1, side="right")
+            k = clip(_range_arg(gap, lo, hi, largest))
+            steps.append(k)
+            faces.append(np.clip(geo.top[k] - (level[k] if largest else hole.fluid_level),
+                                 x0, x1))
+        loads = []
+        for ks, xs in ((worst_k, worst_x), (best_k, best_x)):
+            k = np.stack(ks)
+            zs = geo.top[k]
+            loads.append((k, collapse_load(zs - np.stack(xs), hole.fluid_density,
+                                           hole.fluid_level, fill_density, level[k],
+                                           overwrite=True)))
+        (k, worst), (_, best) = loads
         worst = np.where(np.isfinite(worst), worst, -np.inf)
-        pick = np.argmax(worst, axis=0)
-        cols = np.arange(worst.shape[1])
-        wv = worst[pick, cols]
-        better = wv > wmax
-        wmax = np.where(better, wv, wmax)
-        wstep = np.where(better, np.broadcast_to(k, worst.shape)[pick, cols], wstep)
-        bbest = np.maximum(bbest, np.where(np.isfinite(best), -best, -np.inf).max(axis=0))
-
-    # Run ends and single steps, all joints at once (in blocks of steps).
-    block = max(1, _BLOCK_ELEMENTS // (4 * len(fill_j)))
-    for i0 in range(0, len(ends), block):
-        k = ends[i0:i0 + block][:, None]
-        jj = fill_j[None, :]
-        worst, best = _loads_at(geo, hole, fill_density, level, k, jj)
-        outside = jj > k                      # joints not yet in the hole
-        worst[outside] = -np.inf
-        best[outside] = np.inf
-        take(k, worst, best)
-    # Each joint's entry step (it is then the top joint).
-    k = fill_j[None, :]
-    worst, best = _loads_at(geo, hole, fill_density, level, k, fill_j[None, :])
-    take(k, worst, best)
-    # Breaks inside runs of constant fill level.
-    h_o = hole.fluid_level
-    for first, last, mode in segments:
-        if mode != 1 or last - first < 2:
-            continue
-        sel = np.flatnonzero(fill_j <= last)
-        j = fill_j[sel]
-        lo = np.maximum(first, j)
-        hf = level[first]
-        cands = []
-        for surface in ((h_o,) if hf == h_o else (h_o, hf)):
-            for b in (geo.bottom[j] + surface, geo.top[j] + surface):
-                kk = np.searchsorted(geo.top, b)
-                cands += [np.clip(kk - 1, lo, last), np.clip(kk, lo, last)]
-        k = np.stack(cands, axis=0)
-        # A joint whose candidates are all its entry step (taken above)
-        # adds nothing: a repeated step never beats itself.
-        new = np.any(k != j[None, :], axis=0)
-        if not np.any(new):
-            continue
-        sel, j, k = sel[new], j[new], k[:, new]
-        worst, best = _loads_at(geo, hole, fill_density, level, k, j[None, :])
-        full_w = np.full((k.shape[0], len(fill_j)), -np.inf)
-        full_b = np.full((k.shape[0], len(fill_j)), np.inf)
-        full_k = np.zeros((k.shape[0], len(fill_j)), dtype=int)
-        full_w[:, sel] = worst
-        full_b[:, sel] = best
-        full_k[:, sel] = k
-        take(full_k, full_w, full_b)
+        wmax, wstep = _pick(worst, k, True, n)
+        bbest = np.where(np.isfinite(best), -best, -np.inf).max(axis=0)
     cmax[fill_j] = wmax
     cstep[fill_j] = wstep + 1
     bmax[fill_j] = bbest
     return cmax, cstep, bmax
+
+
+def _collapse_everywhere(geo, hole, fill_density, level, fill_j):
+    """:func:`collapse_envelope`'s extremes from every (joint, step) pair, in
+    blocks of joints: for fill heights that fall between steps."""
+    n = len(geo.top)
+    wmax = np.empty(len(fill_j))
+    wstep = np.empty(len(fill_j), dtype=int)
+    bbest = np.empty(len(fill_j))
+    block = max(1, _BLOCK_ELEMENTS // (4 * n))
+    k = np.arange(n)[:, None]
+    for i0 in range(0, len(fill_j), block):
+        j = fill_j[i0:i0 + block][None, :]
+        worst, best = _loads_at(geo, hole, fill_density, level, np.maximum(k, j), j)
+        worst = np.where(k >= j, np.where(np.isfinite(worst), worst, -np.inf), -np.inf)
+        best = np.where(k >= j, best, np.inf)
+        v, s = _pick(worst, np.broadcast_to(k, worst.shape), True, n)
+        wmax[i0:i0 + block] = v
+        wstep[i0:i0 + block] = s
+        bbest[i0:i0 + block] = np.where(np.isfinite(best), -best, -np.inf).max(axis=0)
+    return wmax, wstep, bbest
 
 
 @dataclass(frozen=True)

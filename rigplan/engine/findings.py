@@ -102,7 +102,8 @@ class Finding:
     quantities : named SI quantities, e.g. ``{"length": Quantity(185.6, Kind.LENGTH)}``;
         plain ``(value, kind)`` tuples are accepted and converted
     context : other named facts that are not quantities (a path name, a
-        limit name, a closure description); values are str, int or bool
+        limit name, a valve joint); values are str, int, bool or None
+    cause : the finding that explains this one (why an option fails)
     """
 
     code: str
@@ -112,6 +113,7 @@ class Finding:
     label: str | None = None
     quantities: Mapping[str, Quantity] = field(default_factory=dict)
     context: Mapping[str, object] = field(default_factory=dict)
+    cause: Finding | None = None
 
     def __post_init__(self) -> None:
         object.__setattr__(self, "severity", Severity(self.severity))
@@ -121,3 +123,56 @@ class Finding:
     def value(self, name: str) -> float:
         """The SI value of the named quantity."""
         return self.quantities[name].value
+
+    def get(self, name: str, default=None):
+        """A context value (or ``default``)."""
+        return self.context.get(name, default)
+
+
+class LimitName(enum.StrEnum):
+    """The limits the planner checks (the value appears in the JSON output)."""
+
+    HOISTING = "hoisting capacity"
+    CONNECTION_TENSION = "connection tension"
+    COLLAPSE = "collapse"
+    BURST = "burst"
+    RUNNING_WEIGHT = "running weight"
+    HOLE_DEPTH = "hole depth"
+    CHECK_VALVE = "check valve"
+    VALVE_BALANCE = "valve balance"
+    STAGE1_HOISTING = "stage 1 hoisting"
+    LANDING_STRING = "landing string"
+    STAGE2_HOISTING = "stage 2 hoisting"
+    SCREEN_BUCKLING = "screen buckling"     # set-down compression vs critical buckling load
+    BUCKLING_STRESS = "buckling stress"     # axial + helical bending stress vs yield
+
+
+@dataclass(frozen=True)
+class Limit:
+    """One checked limit: what, where, load against capacity, margin.
+
+    margin = (capacity - load) / capacity [-], utilization = load / capacity
+    (design factors already applied to the load).  Where it occurs is the
+    1-based running ``step`` (hoisting limits: step k, joint k at the floor)
+    or the 1-based ``joint`` (limits of one joint), with that joint's
+    ``label``; a staged limit gives the split (stage 1 is joints 1..joint).
+    ``load`` and ``capacity`` are SI values of ``kind``; both are nan when
+    the limit is a margin only (a staged setting).
+    """
+
+    name: LimitName
+    load: float
+    capacity: float
+    margin: float
+    kind: Kind = Kind.FORCE
+    joint: int | None = None
+    step: int | None = None
+    label: str | None = None
+
+    def __post_init__(self) -> None:
+        object.__setattr__(self, "name", LimitName(self.name))
+        object.__setattr__(self, "kind", Kind(self.kind))
+
+    @property
+    def utilization(self) -> float:
+        return 1.0 - self.margin

@@ -40,12 +40,14 @@ top-ups) and evaluates its candidates together.
 
 from __future__ import annotations
 
+import enum
 from bisect import bisect_right
 from dataclasses import dataclass, field
 
 import numpy as np
 
 from rigplan.engine.axial import StringGeometry, string_geometry, string_load_by_step
+from rigplan.engine.findings import Finding, LimitName, Severity
 from rigplan.engine.hydrostatics import collapse_load
 from rigplan.engine.stringmodel import G, Closure, Hole, JointArrays
 
@@ -174,7 +176,20 @@ def collapse_required_height(geo: StringGeometry, hole: Hole, fill_density: floa
 
 
 #: Names of the limits that bound the fill from below, by code.
-_LIMIT_NAMES = np.array(["", "collapse", "check valve", "running weight"], dtype=object)
+_LIMIT_NAMES = np.array(["", LimitName.COLLAPSE, LimitName.CHECK_VALVE,
+                         LimitName.RUNNING_WEIGHT], dtype=object)
+
+
+class FloatCode(enum.StrEnum):
+    """Why a fill schedule fails (``FillSchedule.failure.code``)."""
+
+    #: the fill carried down from above is over the window's upper side
+    #: (context ``limit``: that side's :class:`LimitName`, "" for the pipe full)
+    CARRIED_FILL_OVER = "float.carried_fill_over"
+    #: no fill level keeps every limit at this step (context ``empty_limit``
+    #: and ``full_limit``: the two sides that meet; ``full_limit`` is None when
+    #: the window closes against the fill a later step allows)
+    WINDOW_CLOSED = "float.window_closed"
 
 
 def _collapse_required_height(geo, hole, fill_density, allowable, valve_allowable):
@@ -239,6 +254,13 @@ class FillWindow:
     low_height / high_height : the window as fill heights above the shoe [m]
     empty_limit : what stops the pipe being left emptier ("collapse",
         "check valve", "running weight", or "" when it may run empty)
+    weight_floor : the running-weight floor at each step [N]: the
+        minimum running weight once the shoe hangs in fluid, never more than
+        the string can weigh with all the fill it holds (``-inf`` while the
+        string hangs in air)
+    hold_height : the highest fill the pipe can hold at each step, as a
+        height above the shoe [m]: its top, or the fill's balance with the
+        hole at the valve (the valve height when nothing stays in)
     full_limit : what stops it being fuller ("hoisting capacity", "valve
         balance" -- fill whose head at the valve exceeds the hole's drains
         out through it -- or "")
@@ -262,6 +284,7 @@ class FillWindow:
     full_limit: tuple
     closing_limit: tuple
     feasible: np.ndarray
+    hold_height: np.ndarray | None = None
 
 
 def fill_window(joints: JointArrays, hole: Hole, closure: Closure, fill_density: float,
@@ -303,12 +326,33 @@ def fill_window(joints: JointArrays, hole: Hole, closure: Closure, fill_density:
     s_cap = np.where(vol_cap >= full_vol, shoe,
                      np.where(vol_cap < 0, -np.inf,
                               np.interp(v_valve + np.maximum(vol_cap, 0), vols, knots)))
-    # A string lighter than the minimum running weight even when full must
-    # be kept full; it is impossible only when it would float full.
-    full_load = empty + grad * full_vol
-    vol_w = np.where((vol_w > full_vol) & (full_load > 0), full_vol, vol_w)
+    # A check valve holds pressure from below only: fill whose head at the
+    # valve exceeds the hole's there drains out through it until the two
+    # balance (U-tube), so the fill can stand no higher than that.
+    p_valve = hole.fluid_density * G * np.maximum(0.0, shoe - xv - hole.fluid_level)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        s_drain = np.where(grad > 0, xv + p_valve / (grad if grad > 0 else 1.0), np.inf)
+    # The heaviest the string can be made at each step: the fill as high as
+    # the pipe holds it (to the top, or to its balance with the hole at the
+    # valve; nothing while the valve hangs above the hole fluid).
+    hold = np.where(valve_in, np.maximum(np.minimum(shoe, s_drain), xv), xv)
+    hold_vol = np.maximum(np.interp(hold, knots, vols) - v_valve, 0.0)
+    heaviest = empty + grad * hold_vol
+    # The minimum running weight is there so that the string goes down: it
+    # applies once the string hangs in fluid (the shoe below the fluid
+    # level) and asks no more than the string can be made to weigh (a joint
+    # is never refused for weighing what it weighs).  It cannot be met only
+    # when the string floats with all the fill it can hold.
+    in_fluid = shoe > hole.fluid_level
+    floor = np.where(in_fluid, np.minimum(min_running_weight, np.maximum(heaviest, 0.0)),
+                     -np.inf)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        vol_w = np.where(grad > 0, (floor - empty) / (grad if grad > 0 else 1.0),
+                         np.where(empty >= floor, -np.inf, np.inf))
+    tol_v = 1e-12 * max(1.0, float(np.max(full_vol, initial=0.0)))
+    vol_w = np.where((vol_w > hold_vol) & (vol_w <= hold_vol + tol_v), hold_vol, vol_w)
     s_w = np.where(vol_w <= 0, -np.inf,
-                   np.where(vol_w > full_vol, np.inf,
+                   np.where(vol_w > hold_vol, np.inf,
                             np.interp(v_valve + np.maximum(vol_w, 0), vols, knots)))
     allowable = np.asarray(joints.collapse_rating, dtype=float) / collapse_factor
     s_col, col_code = _collapse_required_height(geo, hole, fill_density, allowable,
@@ -321,12 +365,6 @@ def fill_window(joints: JointArrays, hole: Hole, closure: Closure, fill_density:
     use = s_w > lo
     lo = np.where(use, s_w, lo)
     empty_code = np.where(use, 3, empty_code)                  # running weight
-    # A check valve holds pressure from below only: fill whose head at the
-    # valve exceeds the hole's there drains out through it until the two
-    # balance (U-tube), so the fill can stand no higher than that.
-    p_valve = hole.fluid_density * G * np.maximum(0.0, shoe - xv - hole.fluid_level)
-    with np.errstate(divide="ignore", invalid="ignore"):
-        s_drain = np.where(grad > 0, xv + p_valve / (grad if grad > 0 else 1.0), np.inf)
     tol_h = 1e-9 * max(1.0, float(shoe[-1]))
     hi = np.minimum(np.minimum(shoe, s_cap), s_drain)
     full_code = np.where(s_drain < np.minimum(shoe, s_cap) - tol_h, 2,
@@ -348,7 +386,8 @@ def fill_window(joints: JointArrays, hole: Hole, closure: Closure, fill_density:
         min_fill_level=min_level, max_fill_level=max_level,
         min_volume=vmin, max_volume=vmax, full_volume=np.where(valve_in, full_vol, 0.0),
         empty_string_load=empty,
-        weight_floor=np.minimum(min_running_weight, np.maximum(full_load, 0.0)),
+        weight_floor=floor,
+        hold_height=np.where(valve_in, hold, np.nan),
         empty_limit=tuple(_LIMIT_NAMES[empty_code * in_hole]),
         full_limit=tuple(_FULL_NAMES[full_code * in_hole]),
         closing_limit=tuple(_CLOSING_NAMES[closing_code * in_hole]),
@@ -357,19 +396,14 @@ def fill_window(joints: JointArrays, hole: Hole, closure: Closure, fill_density:
 
 
 #: Name of the limit that bounds the fill from above, by code.
-_FULL_NAMES = np.array(["", "hoisting capacity", "valve balance"], dtype=object)
+_FULL_NAMES = np.array(["", LimitName.HOISTING, LimitName.VALVE_BALANCE], dtype=object)
 
 #: What closes a step's window, by code: the empty-side name when the window
-#: is open (0-3), else ``4 + 3 x empty-side code + full-side code``.
+#: is open (0-3), else ``4 + 3 x empty-side code + full-side code`` written
+#: ``"<empty side>+<full side>"`` ("full pipe" where the pipe full bounds it).
 _CLOSING_NAMES = np.array(
     list(_LIMIT_NAMES)
-    + [msg for low in _LIMIT_NAMES for msg in (
-        "the string is too light (floats) even with the pipe full"
-        if low == "running weight" else f"{low} even with the pipe full",
-        f"{low} vs hoisting capacity",
-        "the string is too light (floats) even with the fill at its balance level"
-        if low == "running weight" else
-        f"{low} vs valve balance (heavier fill drains out through the check valve)")],
+    + [f"{low}+{high or 'full pipe'}" for low in _LIMIT_NAMES for high in _FULL_NAMES],
     dtype=object)
 
 
@@ -380,15 +414,23 @@ class TopUp:
     joint: int          # 1-based step (joint number) at which to add it
     volume: float       # [m^3]
     level_after: float  # depth of the fill surface after adding [m]
+    before_joint: int = 0  # the joint it must go in before that joint is lowered
+                           # (joint + 1; 0 when it is added with the last joint)
 
 
 @dataclass(frozen=True)
 class FillSchedule:
     """A crew-followable fill schedule and its result at every step, SI.
 
-    fill_to_top_through : fill every joint to the top through this joint
-        (0: never filled to the top; the string's last joint: never floated)
-    top_ups : further additions after filling stops
+    fill_to_top_through : fill every joint above the valve to the top
+        through this joint (0: never filled to the top -- never a joint at
+        or below the valve; the string's last joint: never floated)
+    top_ups : further additions after filling stops, each made with one
+        joint at the floor before the next is lowered, so that joint goes
+        in inside its window
+    lowered_below_window : joints (1-based) lowered carrying less fill than
+        their window asks, because the pipe could not hold it before (the
+        valve just in the hole or above the hole fluid): filled on arrival
     fill_level, fill_volume : inside level [m] and volume above the valve
         [m^3] at each step (after any addition made at that step)
     string_load : true force at the string top [N]
@@ -399,7 +441,8 @@ class FillSchedule:
     least_margin_step : where it occurs (1-based)
     feasible : every step inside its window
     failure_step, failure : first step that cannot be kept inside the
-        window, and why (0, "" when feasible)
+        window, and why (a :class:`Finding` with a :class:`FloatCode`;
+        0 and None when feasible)
     """
 
     fill_density: float
@@ -415,9 +458,10 @@ class FillSchedule:
     least_margin_step: int
     feasible: bool
     failure_step: int = 0
-    failure: str = ""
+    failure: Finding | None = None
     added_volume: float = 0.0
     notes: tuple = field(default_factory=tuple)
+    lowered_below_window: tuple = ()
 
 
 def collapse_utilization_by_step(joints: JointArrays, hole: Hole, closure: Closure,
@@ -502,7 +546,7 @@ def _first_over(values: np.ndarray, start: int, threshold: float, stop: int | No
 
 
 def _evaluate(geo, table, sections, hole, fill_density, heights, throughs, full_col,
-              string_limit, min_weight, empty_load):
+              string_limit, min_weight, empty_load, hold=None):
     """Loads and margins of candidate schedules, all at once: row ``b`` of
     ``heights`` [m] is candidate ``b``, full to the top (level 0) through
     step ``throughs[b]``, whose collapse utilization there is ``full_col``
@@ -528,8 +572,10 @@ def _evaluate(geo, table, sections, hole, fill_density, heights, throughs, full_
         pos += n - t
     cap_margin = (string_limit - load) / string_limit
     w_margin = (load - min_weight) / string_limit
-    # A full pipe cannot be made heavier: its weight margin sets no choice.
-    full = heights >= shoe - 1e-9 * max(1.0, float(shoe[-1]))
+    # A full pipe (or one as full as it holds, ``hold`` [m above the shoe])
+    # cannot be made heavier: its weight margin sets no choice.
+    top = shoe if hold is None else np.fmin(shoe, hold)
+    full = heights >= top - 1e-9 * max(1.0, float(shoe[-1]))
     w_margin = np.where(full, np.inf, w_margin)
     margins = np.minimum(np.minimum(cap_margin, 1.0 - col), w_margin)
     at = np.argmin(margins, axis=1)
@@ -600,7 +646,7 @@ def fill_schedule(joints: JointArrays, hole: Hole, closure: Closure, fill_densit
         if through > 0 and through <= m:
             s = xv
         tops = []
-        failure_step, failure = 0, ""
+        failure_step, failure = 0, None
         k = through
         while k < n:
             # next step whose floor is above the carried fill, and the first
@@ -619,23 +665,33 @@ def fill_schedule(joints: JointArrays, hole: Hole, closure: Closure, fill_densit
                 kk = k + over
                 heights[k:kk] = s
                 failure_step = kk + 1
-                failure = f"the carried fill is over the {window.full_limit[kk] or 'window'}"
+                failure = Finding(FloatCode.CARRIED_FILL_OVER, Severity.REASON, step=kk + 1,
+                                  context={"limit": str(window.full_limit[kk])})
                 heights[kk:] = s
                 break
             heights[k:k + nxt] = s
             k += nxt
             if k >= n:
                 break
-            floor, ceiling = lo_at[k], ceiling_at[k]
+            floor = lo_at[k]
+            # The fill joint k+1 needs goes in before it is lowered, with
+            # joint k at the floor (0-based step k - 1), when the pipe there
+            # can hold it; otherwise (the valve just in the hole, or above
+            # the hole fluid) it is added as soon as joint k+1 is at the floor.
+            at = k - 1 if k - 1 >= m and floor <= ceiling_at[k - 1] + tol else k
+            ceiling = ceiling_at[at]
             if floor > ceiling + tol:
                 failure_step = k + 1
-                failure = (f"no fill level works at joint {k + 1}: "
-                           f"{window.closing_limit[k] or window.empty_limit[k]}")
+                failure = Finding(FloatCode.WINDOW_CLOSED, Severity.REASON, step=k + 1,
+                                  context={"empty_limit": str(window.empty_limit[k]),
+                                           "full_limit": None if window.feasible[k]
+                                           else str(window.full_limit[k])})
                 heights[k:] = max(s, min(floor, shoe[k]))
                 break
             new = floor + share * (ceiling - floor)
             new = max(new, s)
-            tops.append((k, s, new))
+            tops.append((at, s, new))
+            heights[at] = new
             s = new
         candidates.append((heights, tops, failure_step, failure))
         if failure_step:
@@ -643,7 +699,8 @@ def fill_schedule(joints: JointArrays, hole: Hole, closure: Closure, fill_densit
     throughs = throughs[:len(candidates)]
     level, vol, load, capm, col, wm, least, at = _evaluate(
         geo, table, sections, hole, fill_density, np.stack([c[0] for c in candidates]),
-        throughs, full_col, string_limit, window.weight_floor, window.empty_string_load)
+        throughs, full_col, string_limit, window.weight_floor, window.empty_string_load,
+        window.hold_height)
     # The best: feasible, then the fewest top-ups, then the largest least
     # margin (to 4 decimals); the first tried on a tie.
     best = None
@@ -658,10 +715,25 @@ def fill_schedule(joints: JointArrays, hole: Hole, closure: Closure, fill_densit
     if tops:
         steps, olds, news = (np.array(column) for column in zip(*tops))
         added = np.interp(news, *table) - np.interp(olds, *table)
-        top_ups = tuple(TopUp(joint=int(k) + 1, volume=float(v), level_after=float(z))
+        top_ups = tuple(TopUp(joint=int(k) + 1, volume=float(v), level_after=float(z),
+                              before_joint=int(k) + 2 if int(k) + 1 < n else 0)
                         for k, v, z in zip(steps, added, shoe[steps] - news))
+    # Each joint is lowered with the fill it carries from the step before
+    # (the valve height before any filling): the steps where that is below
+    # the window's floor go in outside the window, and are filled on arrival.
+    # A joint held back only by the running weight, carried in as full as
+    # the pipe held it the step before, goes in as heavy as it can: that is
+    # not outside its window (fill cannot be added to a joint not yet run).
+    carried = np.concatenate(([xv], candidates[b][0][:-1]))
+    hold = np.where(window.valve_in_hole, window.hold_height, xv)
+    carry_max = np.concatenate(([xv], hold[:-1]))
+    by_weight = np.asarray(window.empty_limit, dtype=object) == "running weight"
+    short = window.valve_in_hole & (carried < np.nan_to_num(lo, nan=-np.inf) - tol) \
+        & ~(by_weight & (carried >= carry_max - tol))
     return FillSchedule(
-        fill_density=fill_density, fill_to_top_through=through, top_ups=top_ups,
+        fill_density=fill_density,
+        fill_to_top_through=through if through > m else 0, top_ups=top_ups,
+        lowered_below_window=tuple(int(k) + 1 for k in np.flatnonzero(short)),
         fill_level=np.where(np.arange(n) >= m, level[b], np.nan),
         fill_volume=np.where(np.arange(n) >= m, vol[b], 0.0),
         string_load=load[b].copy(), capacity_margin=capm[b].copy(),

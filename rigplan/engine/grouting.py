@@ -52,8 +52,10 @@ maximum of linear functions of ``t``, so the height where it first reaches
 
 Validity: static columns after placement (no friction or surge while
 pumping), grout treated as a fluid until it sets (no gel strength), one
-fluid inside, incompressible fluids.  Heat of hydration (which weakens
-thermoplastic casing) is not modelled.
+fluid inside, incompressible fluids.  Heat of hydration weakens
+thermoplastic casing: the collapse ratings of joints whose material has a
+temperature-derating table are taken at the job temperature plus the
+grout's ``temperature_rise`` (:func:`grouting_collapse_ratings`).
 
 Sources: string mechanics (ADE 1986) ("Hydrostatics", "Collapse",
 "Grouting"); Bourgoyne et al., *Applied Drilling Engineering* (1986), ch. 7,
@@ -64,12 +66,14 @@ no source; the lift search is this project's own method.
 
 from __future__ import annotations
 
+import enum
 import math
 from dataclasses import dataclass
 
 import numpy as np
 
 from rigplan.errors import InputError
+from rigplan.engine.findings import Finding, Kind, Severity
 from rigplan.engine.stringmodel import G, GroutSpec, Hole, JointArrays
 
 __all__ = [
@@ -78,11 +82,25 @@ __all__ = [
     "lift_collapse_loads",
     "grout_collapse_loads",
     "grout_utilization",
+    "grouting_collapse_ratings",
     "SingleLift",
     "max_single_lift",
     "GroutPlan",
+    "GroutCode",
     "plan_grout_lifts",
 ]
+
+
+class GroutCode(enum.StrEnum):
+    """What the grouting plan has to say (``GroutPlan.reason`` and ``.warnings``)."""
+
+    LIGHTER_THAN_HOLE_FLUID = "grout.lighter_than_hole_fluid"  # grout_density, hole_fluid_density
+    DESIGN_FACTOR_BELOW_1 = "grout.design_factor_below_1"      # context design_factor
+    UNRATED_JOINTS = "grout.unrated_joints"                    # context labels (comma-separated)
+    TOO_MANY_LIFTS = "grout.too_many_lifts"                    # context lifts; height
+    OVERLOADED_BEFORE_GROUT = "grout.overloaded_before_grout"  # label; base, utilization
+    NO_LIFT_POSSIBLE = "grout.no_lift_possible"                # label; base
+    NOT_FEASIBLE = "grout.not_feasible"                        # cause: the reason
 
 #: Utilization above 1 by less than this counts as within the rating
 #: (rounding of the closed-form lift heights) [-].
@@ -143,6 +161,50 @@ def _collapse_ratings(joints: JointArrays) -> np.ndarray:
         i = int(np.flatnonzero(bad)[0])
         raise InputError(f"joints[{joints.label[i]}].collapse_rating",
                          f"expected a collapse rating > 0 Pa (nan when unrated), got {rating[i]!r}")
+    return rating
+
+
+def grouting_collapse_ratings(joints: JointArrays, temperature_rise=0.0) -> np.ndarray:
+    """Collapse ratings while the grout sets [Pa]: thermoplastics derated for its heat.
+
+    .. math:: P_g = P_j \\, f(T_j + \\Delta T) / f(T_j)
+
+    Parameters
+    ----------
+    joints : JointArrays
+        Rated string: ``collapse_rating`` at the job temperature
+        ``rating_temperature`` [C], and each joint's ``derating`` table.
+    temperature_rise : float, optional
+        Rise of the casing temperature while the grout sets [K], >= 0
+        (cement's heat of hydration).
+
+    Returns
+    -------
+    ndarray
+        Ratings [Pa]; unchanged for joints without a derating table (steel);
+        nan (unrated) where unrated or where the table gives no rating at
+        the higher temperature (PVC above 140 F).
+
+    Notes
+    -----
+    Derating factors ``f`` from :func:`rigplan.engine.materials.temperature_factor`
+    (PVC: the table cited in ``rigplan.engine.materials.TEMPERATURE_DERATING``).
+    The heat of hydration of the grout is a known cause of PVC casing
+    collapse while grouting (ASTM F480, from memory); the rise is the
+    user's estimate, it is not computed here.
+    """
+    from rigplan.engine.materials import temperature_factor
+
+    rating = _collapse_ratings(joints).copy()
+    rise = _check_number("grout.temperature_rise", temperature_rise, "a temperature rise", "K")
+    if rise == 0.0 or not joints.derating:
+        return rating
+    t0 = float(joints.rating_temperature)
+    for table in set(joints.derating) - {""}:
+        k = np.array([d == table for d in joints.derating], dtype=bool)
+        f0 = temperature_factor(table, t0)
+        f1 = temperature_factor(table, t0 + rise)
+        rating[k] = rating[k] / f0 * f1        # nan past the table: unrated
     return rating
 
 
@@ -446,7 +508,7 @@ def grout_utilization(joints: JointArrays, hole: Hole, grout: GroutSpec,
     """
     df = _check_number("design_factors.collapse", collapse_factor, "a collapse design factor", "[-]",
                        positive=True)
-    rating = _collapse_ratings(joints)
+    rating = grouting_collapse_ratings(joints, grout.temperature_rise)
     return df * grout_collapse_loads(joints, hole, grout) / rating
 
 
@@ -490,7 +552,8 @@ def _utilization_minus_one(ts, lo, hi, allow, z_shoe, rho_o, h_o, rho_g, rho_i, 
 
 
 def max_single_lift(joints: JointArrays, hole: Hole, grout_density, inside_density,
-                    inside_level, collapse_factor, base_height=0.0) -> SingleLift:
+                    inside_level, collapse_factor, base_height=0.0,
+                    temperature_rise=0.0) -> SingleLift:
     """Tallest grout column that keeps every rated joint within rating / DF.
 
     The grout top rises from the base ``b``; every height it passes must
@@ -532,6 +595,9 @@ def max_single_lift(joints: JointArrays, hole: Hole, grout_density, inside_densi
     base_height : float, optional
         Height above the shoe of the top of grout already set [m]; the
         casing below it is encased and not loaded.
+    temperature_rise : float, optional
+        Heat of hydration: rise of the casing temperature [K]
+        (:func:`grouting_collapse_ratings`).
 
     Returns
     -------
@@ -549,7 +615,7 @@ def max_single_lift(joints: JointArrays, hole: Hole, grout_density, inside_densi
     rho_g, rho_i, h_i, df = _check_fluids(grout_density, inside_density, inside_level,
                                           collapse_factor)
     b = _check_height("grout.base_height", base_height, z_shoe, "a lift base height")
-    rating = _collapse_ratings(joints)
+    rating = grouting_collapse_ratings(joints, temperature_rise)
     return _max_lift(joints, bottom, top, z_shoe, rating, rho_o, h_o, rho_g, rho_i, h_i, df, b)
 
 
@@ -625,9 +691,10 @@ class GroutPlan:
         where the lift reaches the planned height or the string top
     n_lifts : number of lifts
     feasible : the lifts reach the planned height
-    reason : why not, "" when feasible
+    reason : why not (a :class:`Finding` with a :class:`GroutCode`), None
+        when feasible
     unrated : labels of joints with no collapse rating (not checked)
-    warnings : notes for the driller (not errors)
+    warnings : findings for the driller (not errors)
     """
 
     planned_height: float
@@ -640,7 +707,7 @@ class GroutPlan:
     lift_limited_by: tuple
     n_lifts: int
     feasible: bool
-    reason: str
+    reason: Finding | None
     unrated: tuple
     warnings: tuple
 
@@ -687,7 +754,7 @@ def plan_grout_lifts(joints: JointArrays, hole: Hole, grout: GroutSpec,
     rho_g, rho_i, h_i, df = _check_fluids(grout.density, grout.inside_density,
                                           grout.inside_level, collapse_factor)
     h_plan = _check_height("grout.height", grout.height, z_shoe, "a grout column height")
-    rating = _collapse_ratings(joints)
+    rating = grouting_collapse_ratings(joints, grout.temperature_rise)
 
     loads = _lift_loads(bottom, top, z_shoe, rho_o, h_o, rho_g, rho_i, h_i, 0.0, h_plan)
     util = df * loads / rating
@@ -697,36 +764,40 @@ def plan_grout_lifts(joints: JointArrays, hole: Hole, grout: GroutSpec,
 
     warnings = []
     if rho_g < rho_o:
-        warnings.append(f"grout ({rho_g:.0f} kg/m^3) is lighter than the hole fluid it displaces "
-                        f"({rho_o:.0f} kg/m^3): it will not displace it from the annulus")
+        warnings.append(Finding(GroutCode.LIGHTER_THAN_HOLE_FLUID, Severity.WARNING,
+                                quantities={"grout_density": (rho_g, Kind.DENSITY),
+                                            "hole_fluid_density": (rho_o, Kind.DENSITY)}))
     if df < 1.0:
-        warnings.append(f"collapse design factor {df:g} is below 1: the check allows loads above "
-                        "the rating")
+        warnings.append(Finding(GroutCode.DESIGN_FACTOR_BELOW_1, Severity.WARNING,
+                                quantities={"design_factor": (df, Kind.RATIO)}))
     if unrated:
-        warnings.append("no collapse rating for " + ", ".join(unrated)
-                        + ": not checked while grouting (unrated)")
+        warnings.append(Finding(GroutCode.UNRATED_JOINTS, Severity.WARNING,
+                                context={"labels": ", ".join(unrated)}))
 
-    lifts, limited, reason = [], [], ""
+    lifts, limited, reason = [], [], None
     eps = _ZERO_LIFT * z_shoe
     first = None
     b = 0.0
     while b < h_plan - eps:
         if len(lifts) >= _MAX_LIFTS:
-            reason = (f"more than {_MAX_LIFTS} lifts would be needed to reach {h_plan:.2f} m "
-                      "above the shoe")
+            reason = Finding(GroutCode.TOO_MANY_LIFTS, Severity.REASON,
+                             quantities={"height": (h_plan, Kind.LENGTH)},
+                             context={"lifts": _MAX_LIFTS})
             break
         lift = _max_lift(joints, bottom, top, z_shoe, rating, rho_o, h_o, rho_g, rho_i, h_i, df, b)
         if first is None:
             first = lift.height
         if lift.height <= eps:
-            label = joints.label[lift.limited_by]
+            j = int(lift.limited_by)
+            base = {"base": (float(b), Kind.LENGTH)}
             if lift.overloaded_at_base:
-                reason = (f"{label} is already loaded beyond its collapse rating / DF by the hole "
-                          f"fluid against the inside fluid (utilization {lift.base_utilization:.3g}) "
-                          f"before grout is placed {b:.2f} m above the shoe")
+                reason = Finding(GroutCode.OVERLOADED_BEFORE_GROUT, Severity.REASON,
+                                 joint=j + 1, label=joints.label[j],
+                                 quantities={**base, "utilization": (lift.base_utilization,
+                                                                     Kind.RATIO)})
             else:
-                reason = (f"no grout can be placed on the lift starting {b:.2f} m above the shoe: "
-                          f"{label} reaches its collapse rating / DF at once")
+                reason = Finding(GroutCode.NO_LIFT_POSSIBLE, Severity.REASON,
+                                 joint=j + 1, label=joints.label[j], quantities=base)
             break
         t = float(min(h_plan, lift.top_height))
         lifts.append((float(b), t))
@@ -736,9 +807,9 @@ def plan_grout_lifts(joints: JointArrays, hole: Hole, grout: GroutSpec,
     if first is None:
         first = _max_lift(joints, bottom, top, z_shoe, rating, rho_o, h_o, rho_g, rho_i, h_i,
                           df, 0.0).height
-    feasible = reason == ""
+    feasible = reason is None
     if not feasible:
-        warnings.append(f"grouting plan not feasible: {reason}")
+        warnings.append(Finding(GroutCode.NOT_FEASIBLE, Severity.WARNING, cause=reason))
 
     return GroutPlan(
         planned_height=h_plan, grout_top_depth=z_shoe - h_plan, collapse_load=loads,

@@ -6,10 +6,20 @@ I/O.  Forces are in newtons [N], positive in tension.
 
 A hoisting path (main winch reeved through a travelling block, the top head's
 pull-up, an auxiliary winch on a single line, ...) can lift no more than its
-weakest part.  :func:`path_capacity` refers every rating to the hook, takes
-off the dead load of the gear riding on the line, the overpull the driller
-keeps in reserve and a dynamic allowance, and reports the largest *string
-load* (hook load less dead load) the path allows and which part governs.
+weakest part.  :func:`path_capacity` returns the path's *hoisting chain*
+(:class:`HoistChain`): each part's rating as stated, referred to the hook
+through the lines strung and the block efficiency, the dead load each rating
+must carry (once, as the rating states it: gross at the hook, or net of the
+gear), and two separate load cases against every part:
+
+* **shock** -- the dynamic factor times the load the part carries (string
+  plus the gear its rating counts), as when slips or clamps are set;
+* **overpull** -- the static pull over the string weight the driller keeps
+  in reserve to work stuck pipe, plus the string and the gear counted.
+
+The smallest string load either case allows over all parts is the path's
+*string limit*; with the dead load added it is the *hook limit*.  The names
+of these figures are defined once, in :class:`ChainFigure`.
 
 References
 ----------
@@ -19,10 +29,15 @@ References
    equivalent derrick load; Example 1.2; Table 1.2).
 .. [2] API RP 9B, *Application, Care, and Use of Wire Rope for Oil Field
    Service* (block efficiency with sheave factor K; wire-rope design factors).
+.. [3] API RP 7G, *Recommended Practice for Drill Stem Design and Operating
+   Limits* (margin of overpull: a static pull over the string's weight kept in
+   reserve for stuck pipe), from memory.
 """
 
 from __future__ import annotations
 
+import dataclasses
+import enum
 import math
 import numbers
 from dataclasses import dataclass
@@ -35,6 +50,17 @@ from rigplan.errors import InputError
 #: factor over each sheave ([1] ch. 1; [2]).  Plain-bearing sheaves are usually
 #: taken as 1.09 (from memory, same sources).
 ROLLER_BEARING_SHEAVE_FACTOR = 1.04
+
+#: Lines strung accepted [-]: the block formula is used from a single line to
+#: 24 (drilling blocks are reeved with up to 14 or 16 lines; beyond 24 the
+#: input is taken as a typing error, and K^n would overflow long before the
+#: formula stops making sense).
+LINES_RANGE = (1, 24)
+
+#: Sheave factors accepted [-]: 1 (no friction) up to 1.2.  Roller bearings
+#: 1.04, plain bearings about 1.09 (API RP 9B, from memory); more than 1.2 is
+#: taken as a typing error.
+SHEAVE_FACTOR_RANGE = (1.0, 1.2)
 
 #: Default wire-rope design factor [-] (minimum breaking force / working line
 #: pull).  API RP 9B recommends at least 3 for hoisting service and allows 2
@@ -64,7 +90,64 @@ HANDLING_TOOL_KINDS = ("elevator", "clamp", "spider", "lifting_sub")
 #: carry the whole hook load, dead load included (the conservative reading).
 TOOL_KINDS = HANDLING_TOOL_KINDS + ("other",)
 
+#: How a rating states the dead load: ``"gross"`` -- the load at the hook,
+#: the gear riding on the line included (the gear is deducted from it);
+#: ``"net"`` -- what is left for the string after the gear (all of it, or the
+#: weight given as *net of*), so that gear is not deducted again.
+RATING_BASES = ("gross", "net")
+
+#: Where each load case comes from.
+SHOCK_SOURCE = "common practice, no source"
+OVERPULL_SOURCE = "API RP 7G margin of overpull, from memory"
+
 _NAN = float("nan")
+
+
+class ChainFigure(enum.StrEnum):
+    """The figures of a hoisting chain: one name each, used the same way by
+    every output.  The JSON key is the member's name in lower case, the
+    label its value.
+
+    RATING : the part's rating as its maker states it (line pull, rope
+        minimum breaking force, mast, top-head or tool rating) [N]
+    TO_HOOK : factor from the rating to the hook [-]: lines x block
+        efficiency for the winch, / design factor x lines x block efficiency
+        for the rope, 1 for the others
+    RATED_AT_HOOK : the rating referred to the hook [N]
+    GEAR_COUNTED : the dead load that rating must carry besides the string
+        [N]: the whole dead load for a gross rating, less what a net rating
+        already excludes
+    SHOCK_LIMIT : largest string load under the shock case [N]:
+        ``rated_at_hook / dynamic_factor - gear_counted``
+    OVERPULL_LIMIT : largest string load under the overpull case [N]:
+        ``rated_at_hook - gear_counted - overpull_reserve``
+    STRING_LIMIT : the smaller of the two for a part; for the path, the
+        least over its parts [N] (hook load less the dead load)
+    HOOK_LIMIT : the path's string limit plus the dead load [N]
+    DEAD_LOAD : weight of the gear riding on the line [N]
+    """
+
+    RATING = "rating"
+    TO_HOOK = "factor to hook"
+    RATED_AT_HOOK = "rated at hook"
+    GEAR_COUNTED = "gear counted"
+    SHOCK_LIMIT = "shock limit"
+    OVERPULL_LIMIT = "overpull limit"
+    STRING_LIMIT = "string limit"
+    HOOK_LIMIT = "hook limit"
+    DEAD_LOAD = "dead load"
+
+    @property
+    def key(self) -> str:
+        """The JSON key, e.g. ``rated_at_hook``."""
+        return self.name.lower()
+
+
+class LoadCaseCode(enum.StrEnum):
+    """The two load cases each part is checked against."""
+
+    SHOCK = "shock"
+    OVERPULL = "overpull"
 
 
 # ---------------------------------------------------------------------------
@@ -79,8 +162,9 @@ def _check_lines(where: str, lines) -> int:
     """A whole number of lines strung, >= 1."""
     if not _is_real(lines) or not math.isfinite(lines) or lines != math.floor(lines):
         raise InputError(where, f"expected a whole number of lines strung (>= 1), got {lines!r}")
-    if lines < 1:
-        raise InputError(where, f"expected at least 1 line strung, got {lines!r}")
+    if not LINES_RANGE[0] <= lines <= LINES_RANGE[1]:
+        raise InputError(where, f"expected {LINES_RANGE[0]} to {LINES_RANGE[1]} lines strung, "
+                                f"got {lines!r}")
     return int(lines)
 
 
@@ -91,14 +175,17 @@ def _check_lines_array(where: str, lines) -> np.ndarray:
         raise InputError(where, f"expected a whole number of lines strung (>= 1), got {lines!r}")
     if not np.all(np.isfinite(arr)) or np.any(arr != np.floor(arr)):
         raise InputError(where, f"expected a whole number of lines strung (>= 1), got {lines!r}")
-    if np.any(arr < 1):
-        raise InputError(where, f"expected at least 1 line strung, got {lines!r}")
+    if np.any(arr < LINES_RANGE[0]) or np.any(arr > LINES_RANGE[1]):
+        raise InputError(where, f"expected {LINES_RANGE[0]} to {LINES_RANGE[1]} lines strung, "
+                                f"got {lines!r}")
     return arr.astype(float)
 
 
 def _check_sheave_factor(where: str, k) -> float:
-    if not _is_real(k) or not math.isfinite(k) or k < 1.0:
-        raise InputError(where, f"expected a sheave factor >= 1 [-] (1.04 for roller bearings), got {k!r}")
+    lo, hi = SHEAVE_FACTOR_RANGE
+    if not _is_real(k) or not math.isfinite(k) or not lo <= k <= hi:
+        raise InputError(where, f"expected a sheave factor from {lo:g} to {hi:g} [-] (1.04 for "
+                                f"roller bearings), got {k!r}")
     return float(k)
 
 
@@ -369,6 +456,30 @@ def derrick_efficiency_factor(lines, efficiency) -> float:
 # data: components, paths, landing string, rig
 
 
+def _check_basis(where: str, basis) -> str:
+    if basis not in RATING_BASES:
+        raise InputError(where, f"expected one of {', '.join(RATING_BASES)} (gross: at the hook, "
+                                f"gear included; net: gear already deducted), got {basis!r}")
+    return basis
+
+
+def _check_net_of(where: str, net_of, basis: str, dead_load: float) -> float:
+    """Gear weight a net rating already excludes [N]: nan (all of the dead
+    load) or 0 <= net_of <= dead_load; only with a net rating."""
+    if not _is_real(net_of):
+        raise InputError(where, f"expected a force in N (or not given), got {net_of!r}")
+    net_of = float(net_of)
+    if math.isnan(net_of):
+        return net_of
+    if basis != "net":
+        raise InputError(where, "given for a gross rating: a weight the rating is net of "
+                                "needs the basis \"net\"")
+    if not (math.isfinite(net_of) and 0.0 <= net_of <= dead_load):
+        raise InputError(where, f"expected a weight from 0 to the path's dead load "
+                                f"{dead_load:g} N, got {net_of!r}")
+    return net_of
+
+
 @dataclass(frozen=True)
 class Component:
     """One part of a hoisting path with its rating referred to the hook.
@@ -376,10 +487,17 @@ class Component:
     name : label shown to the user ("winch line pull", "casing elevator")
     kind : one of :data:`COMPONENT_KINDS`
     rating : load the part allows on the hook [N] (nan = unrated)
-    carries_dead_load : True when the part carries the block, hook and top
-        head as well as the string (winch, rope, mast, top head, "other");
-        False for handling tools that hold the string only
+    carries_dead_load : True when the part's rating must carry any of the
+        gear on the hook (a gross rating, or a net one that excludes only
+        part of the gear); False for a rating net of all the gear (handling
+        tools hold the string only)
     note : how the rating was obtained
+    stated : the rating as the maker states it [N] (line pull, rope minimum
+        breaking force, ...); ``rating = stated * to_hook``
+    to_hook : factor from ``stated`` to the hook [-]
+    basis : ``"gross"`` or ``"net"`` (:data:`RATING_BASES`)
+    net_of : gear weight a net rating already excludes [N]; nan = all of
+        the path's dead load
     """
 
     name: str
@@ -387,6 +505,10 @@ class Component:
     rating: float
     carries_dead_load: bool
     note: str = ""
+    stated: float = _NAN
+    to_hook: float = 1.0
+    basis: str = "gross"
+    net_of: float = _NAN
 
     def __post_init__(self):
         where = f"component {self.name!r}"
@@ -397,6 +519,19 @@ class Component:
                              f"expected one of {', '.join(COMPONENT_KINDS)}, got {self.kind!r}")
         _check_force(f"{where}.rating", self.rating, allow_nan=True, positive=True,
                      what="a hook-load rating")
+        _check_basis(f"{where}.basis", self.basis)
+        if math.isnan(self.stated):
+            object.__setattr__(self, "stated", float(self.rating) / self.to_hook)
+
+    def gear_counted(self, dead_load: float) -> float:
+        """The part of ``dead_load`` [N] this rating must carry besides the
+        string: all of it for a gross rating, ``dead_load - net_of`` for a
+        net one (0 when net of all the gear)."""
+        if self.basis == "gross":
+            return float(dead_load)
+        if math.isnan(self.net_of):
+            return 0.0
+        return max(float(dead_load) - self.net_of, 0.0)
 
 
 @dataclass(frozen=True)
@@ -404,8 +539,8 @@ class HoistPath:
     """One way the rig can hold the string, SI units.
 
     name : label ("main winch, 4 lines", "top head pull-up")
-    lines : lines strung between crown and travelling block [-], >= 1
-    sheave_factor : sheave factor K [-], >= 1 (1.04 roller bearings)
+    lines : lines strung between crown and travelling block [-], 1..24
+    sheave_factor : sheave factor K [-], 1..1.2 (1.04 roller bearings)
     winch_line_pull : winch line pull at the drum layer in use [N] (nan = unrated)
     rope_breaking_force : wire rope minimum breaking force [N] (nan = unrated)
     rope_design_factor : breaking force over working line pull [-], > 0;
@@ -413,12 +548,24 @@ class HoistPath:
     mast_rating : static hook-load rating of the mast for the lines strung [N]
     top_head_pullup : top-head pull-up rating [N] (nan = unrated)
     tools : handling tools as ``(name, kind, rating [N])``, kind in
-        :data:`TOOL_KINDS`, rating nan when unrated
+        :data:`TOOL_KINDS`, rating nan when unrated; an entry may add the
+        basis and the weight it is net of: ``(name, kind, rating, basis)``
+        or ``(name, kind, rating, basis, net_of [N])``.  Stored as
+        ``(name, kind, rating)`` with the bases in ``tool_bases``.
     dead_load : weight of the gear riding on the line [N]: block, hook,
         elevators or clamp, and the top head where it rides on the line
-    overpull_reserve : pull the driller keeps in reserve to work stuck pipe [N]
-    dynamic_factor : allowance for setting slips or clamps [-], >= 1; every
-        rating is divided by it
+    overpull_reserve : static pull over the string weight the driller keeps
+        in reserve to work stuck pipe [N] (the overpull load case)
+    dynamic_factor : factor on the load while setting slips or clamps [-],
+        >= 1 (the shock load case)
+    mast_basis, top_head_basis : ``"gross"`` (default) or ``"net"``: whether
+        the rating is the load at the hook with the gear, or already net of it
+    mast_net_of, top_head_net_of : the gear weight a net rating excludes [N]
+        (nan: all of ``dead_load``; e.g. a top-head pull-up net of the head's
+        own weight)
+    tool_bases : ``(basis, net_of [N])`` per tool; default ``"net"`` of all
+        the gear for handling tools (they hold the string only) and
+        ``"gross"`` for ``"other"`` (hook, swivel, bails)
     notes : free text
     """
 
@@ -435,6 +582,11 @@ class HoistPath:
     overpull_reserve: float = 0.0
     dynamic_factor: float = 1.0
     notes: str = ""
+    mast_basis: str = "gross"
+    mast_net_of: float = _NAN
+    top_head_basis: str = "gross"
+    top_head_net_of: float = _NAN
+    tool_bases: tuple = ()
 
     def __post_init__(self):
         if not isinstance(self.name, str) or not self.name.strip():
@@ -454,27 +606,40 @@ class HoistPath:
                      positive=True, what="a mast hook-load rating")
         _check_force(f"{where}.top_head_pullup", self.top_head_pullup, allow_nan=True,
                      positive=True, what="a top-head pull-up rating")
-        _check_force(f"{where}.dead_load", self.dead_load, allow_nan=False,
-                     positive=False, what="a dead load")
+        dead = _check_force(f"{where}.dead_load", self.dead_load, allow_nan=False,
+                            positive=False, what="a dead load")
         _check_force(f"{where}.overpull_reserve", self.overpull_reserve, allow_nan=False,
                      positive=False, what="an overpull reserve")
         dyn = self.dynamic_factor
         if not _is_real(dyn) or not math.isfinite(dyn) or dyn < 1.0:
             raise InputError(f"{where}.dynamic_factor",
                              f"expected a dynamic factor >= 1 [-], got {dyn!r}")
+        for part in ("mast", "top_head"):
+            basis = _check_basis(f"{where}.{part}_basis", getattr(self, f"{part}_basis"))
+            object.__setattr__(self, f"{part}_net_of", _check_net_of(
+                f"{where}.{part}_net_of", getattr(self, f"{part}_net_of"), basis, dead))
         tools = []
         names = {"winch line pull", "wire rope", "mast", "top head pull-up"}
         try:
             entries = tuple(self.tools)
+            given_bases = tuple(self.tool_bases)
         except TypeError:
             raise InputError(f"{where}.tools",
                              "expected a list of (name, kind, rating N) entries") from None
+        if given_bases and len(given_bases) != len(entries):
+            raise InputError(f"{where}.tool_bases",
+                             f"expected one (basis, net_of N) per tool ({len(entries)}), "
+                             f"got {len(given_bases)}")
+        bases = []
         for i, entry in enumerate(entries):
             w = f"{where}.tools[{i}]"
             try:
-                name, kind, rating = entry
+                name, kind, rating, *extra = entry
             except (TypeError, ValueError):
                 raise InputError(w, f"expected (name, kind, rating N), got {entry!r}") from None
+            if len(extra) > 2:
+                raise InputError(w, f"expected (name, kind, rating N[, basis[, net_of N]]), "
+                                    f"got {entry!r}")
             if not isinstance(name, str) or not name.strip():
                 raise InputError(f"{w}.name", f"expected a non-empty tool name, got {name!r}")
             if kind not in TOOL_KINDS:
@@ -485,52 +650,121 @@ class HoistPath:
                 raise InputError(f"{w}.name", f"expected a name not used twice in the path, got {name!r}")
             names.add(name)
             tools.append((name, kind, rating))
+            if extra:
+                basis, net_of = (list(extra) + [_NAN])[:2]
+            elif given_bases:
+                try:
+                    basis, net_of = given_bases[i]
+                except (TypeError, ValueError):
+                    raise InputError(f"{where}.tool_bases[{i}]",
+                                     f"expected (basis, net_of N), got {given_bases[i]!r}") from None
+            else:
+                basis, net_of = ("net" if kind in HANDLING_TOOL_KINDS else "gross"), _NAN
+            basis = _check_basis(f"{w}.basis", basis)
+            bases.append((basis, _check_net_of(f"{w}.net_of", net_of, basis, dead)))
         object.__setattr__(self, "tools", tuple(tools))
+        object.__setattr__(self, "tool_bases", tuple(bases))
 
     def components(self) -> tuple:
         """Every part of the path as :class:`Component`, ratings at the hook [N].
 
         Order: winch, wire rope, mast, top head, then the tools as listed.
 
-        * winch: ``line_pull * n * E_n``;
-        * wire rope: ``MBF / DF * n * E_n``;
-        * mast, top head and tools: as given.
+        * winch: ``line_pull * n * E_n`` (gross: the line carries the block);
+        * wire rope: ``MBF / DF * n * E_n`` (gross);
+        * mast, top head and tools: as given, on their stated basis.
         """
         n = self.lines
         e = block_efficiency(n, self.sheave_factor)
-        rope_allowed = self.rope_breaking_force / self.rope_design_factor
+        to_rope = n * e / self.rope_design_factor
         parts = [
             Component("winch line pull", "winch", self.winch_line_pull * n * e, True,
-                      f"line pull x {n} lines x block efficiency {e:.3f}"),
-            Component("wire rope", "wire_rope", rope_allowed * n * e, True,
+                      f"line pull x {n} lines x block efficiency {e:.3f}",
+                      stated=float(self.winch_line_pull), to_hook=n * e),
+            Component("wire rope", "wire_rope", self.rope_breaking_force * to_rope, True,
                       f"breaking force / design factor {self.rope_design_factor:g}"
-                      f" x {n} lines x block efficiency {e:.3f}"),
-            Component("mast", "mast", float(self.mast_rating), True,
-                      f"static hook-load rating for {n} lines"),
-            Component("top head pull-up", "top_head", float(self.top_head_pullup), True,
-                      "pull-up rating"),
+                      f" x {n} lines x block efficiency {e:.3f}",
+                      stated=float(self.rope_breaking_force), to_hook=to_rope),
         ]
-        for name, kind, rating in self.tools:
-            parts.append(Component(name, kind, rating, kind not in HANDLING_TOOL_KINDS,
-                                   "holds the string only" if kind in HANDLING_TOOL_KINDS
-                                   else "carries the whole hook load"))
+        for name, kind, rating, basis, net_of, note in (
+                ("mast", "mast", self.mast_rating, self.mast_basis, self.mast_net_of,
+                 f"static hook-load rating for {n} lines"),
+                ("top head pull-up", "top_head", self.top_head_pullup, self.top_head_basis,
+                 self.top_head_net_of, "pull-up rating")):
+            comp = Component(name, kind, float(rating), True, note, basis=basis, net_of=net_of)
+            parts.append(dataclasses.replace(
+                comp, carries_dead_load=comp.gear_counted(self.dead_load) > 0.0
+                or (basis == "gross")))
+        for (name, kind, rating), (basis, net_of) in zip(self.tools, self.tool_bases):
+            comp = Component(name, kind, rating, True,
+                             "holds the string only" if kind in HANDLING_TOOL_KINDS
+                             else "carries the whole hook load", basis=basis, net_of=net_of)
+            parts.append(dataclasses.replace(
+                comp, carries_dead_load=basis == "gross" or comp.gear_counted(self.dead_load) > 0.0))
         return tuple(parts)
 
 
 @dataclass(frozen=True)
-class PathCapacity:
-    """What one hoisting path allows, SI units.
+class LoadCase:
+    """One load case of the hoisting chain.
+
+    code : :class:`LoadCaseCode`
+    factor : factor on the load the part carries [-] (the dynamic factor for
+        shock, 1 for overpull)
+    allowance : static pull added over the string weight [N] (the overpull
+        reserve; 0 for shock)
+    source : where the case comes from, or "common practice, no source"
+    """
+
+    code: LoadCaseCode
+    factor: float
+    allowance: float
+    source: str
+
+
+@dataclass(frozen=True)
+class ChainPart:
+    """One rated part of a hoisting chain, SI units.
+
+    The figures follow :class:`ChainFigure` (same names): ``rating``,
+    ``to_hook``, ``rated_at_hook``, ``gear_counted``, ``shock_limit``,
+    ``overpull_limit``, ``string_limit`` [N except ``to_hook`` -].
+    ``governing_case`` is the load case that sets the part's string limit.
+    """
+
+    name: str
+    kind: str
+    basis: str
+    rating: float
+    to_hook: float
+    rated_at_hook: float
+    gear_counted: float
+    shock_limit: float
+    overpull_limit: float
+    string_limit: float
+    governing_case: LoadCaseCode
+
+
+@dataclass(frozen=True)
+class HoistChain:
+    """The hoisting chain of one path: what it allows and why, SI units.
 
     path : the path's name
-    components : ``(name, kind, rating_at_hook [N], allowed_string_load [N])``
-        for every rated component, in path order
+    components : ``(name, kind, rated_at_hook [N], string_limit [N])`` for
+        every rated part, in path order (the short form of ``parts``)
     string_limit : largest string load [N] (hook load less dead load) the
-        path allows; nan when nothing on the path is rated; negative when
-        the dead load and reserve alone exceed a rating
+        path allows under both load cases; nan when nothing on the path is
+        rated; negative when the gear and reserve alone exceed a rating
     hook_limit : ``string_limit + dead_load`` [N]
-    governing : name of the component that sets ``string_limit`` ("" when
+    governing : name of the part that sets ``string_limit`` ("" when
         nothing is rated)
     unrated : names of the components with no rating (skipped)
+    unrated_on_path : unrated parts the path uses (:func:`unrated_parts_in_use`)
+    parts : :class:`ChainPart` per rated part, in path order
+    cases : the two :class:`LoadCase` (shock, overpull)
+    governing_case : the case that sets ``string_limit`` (None: nothing rated)
+    dead_load : gear riding on the line [N]
+    lines, sheave_factor, block_efficiency : the reeving [-]
     """
 
     path: str
@@ -540,6 +774,17 @@ class PathCapacity:
     governing: str
     unrated: tuple
     unrated_on_path: tuple = ()
+    parts: tuple = ()
+    cases: tuple = ()
+    governing_case: LoadCaseCode | None = None
+    dead_load: float = 0.0
+    lines: int = 1
+    sheave_factor: float = ROLLER_BEARING_SHEAVE_FACTOR
+    block_efficiency: float = _NAN
+
+
+#: The former name of :class:`HoistChain`.
+PathCapacity = HoistChain
 
 
 @dataclass(frozen=True)
@@ -617,19 +862,28 @@ class Rig:
 # capacity
 
 
-def path_capacity(path: HoistPath) -> PathCapacity:
-    """Largest string load a hoisting path allows, and the part that governs.
+def path_capacity(path: HoistPath) -> HoistChain:
+    r"""The hoisting chain of a path: the largest string load it allows under
+    each load case, and the part and case that govern.
 
-    For each rated component with hook rating ``R``:
+    For each rated part with rating ``R`` at the hook (:meth:`HoistPath.
+    components`) and ``g`` the gear its rating must carry
+    (:meth:`Component.gear_counted`: the dead load ``D`` for a gross rating,
+    ``D - net_of`` for a net one, 0 for handling tools that hold the string
+    only), the string load ``S`` must satisfy two separate load cases:
 
-    * parts that carry the dead load (winch, rope, mast, top head, other):
-      ``allowed = R / f_dyn - reserve - dead_load``;
-    * handling tools (elevator, clamp, spider, lifting sub), which hold the
-      string only: ``allowed = R / f_dyn - reserve``;
+    .. math::
 
-    ``string_limit = min(allowed)``, ``governing`` the first component that
-    reaches it, ``hook_limit = string_limit + dead_load``.  Hook ratings of
-    the winch and rope follow :meth:`HoistPath.components`.
+        \text{shock:}\quad f_{dyn}\,(S + g) \le R
+            \;\Rightarrow\; S \le R / f_{dyn} - g
+
+        \text{overpull:}\quad S + g + F_{op} \le R
+            \;\Rightarrow\; S \le R - g - F_{op}
+
+    The part's string limit is the smaller of the two; the path's
+    ``string_limit`` is the least over its parts, ``hook_limit =
+    string_limit + D``.  The dead load is counted once, as each rating
+    states it.
 
     Parameters
     ----------
@@ -638,51 +892,72 @@ def path_capacity(path: HoistPath) -> PathCapacity:
 
     Returns
     -------
-    PathCapacity
+    HoistChain
         Limits in N.  Unrated (nan) components are listed in ``unrated`` and
         take no part; with nothing rated the limits are nan.
 
     Notes
     -----
-    The weakest-link rule and the order of deductions follow the hoisting
-    summary of Bourgoyne et al., *Applied Drilling Engineering*, 1986,
-    ch. 1; the dead-load, overpull-reserve and dynamic deductions are common
-    practice, no source.
+    Shock (setting slips or clamps) and a static pull on stuck pipe happen
+    at different moments, so they are separate cases, not stacked.  The
+    dynamic factor is common practice, no source; the overpull reserve is
+    the margin of overpull of API RP 7G (from memory).  The weakest-link
+    rule and the reference of each rating to the hook through the lines
+    and the block efficiency follow Bourgoyne et al., *Applied Drilling
+    Engineering*, 1986, ch. 1, and API RP 9B.  Statics only: no drag or
+    acceleration beyond the dynamic factor.
 
     Examples
     --------
-    Winch 40 kN on 2 lines with frictionless sheaves (80 kN at the hook) and a
-    mast rated 100 kN, 5 kN of gear on the hook:
+    Winch 40 kN on 2 lines with frictionless sheaves (80 kN at the hook) and
+    a mast rated 100 kN, 5 kN of gear on the hook, dynamic factor 1.25,
+    overpull 10 kN.  Winch: shock 80/1.25 - 5 = 59 kN, overpull
+    80 - 5 - 10 = 65 kN; mast: 75 and 85 kN.  The winch governs in shock:
 
-    >>> cap = path_capacity(HoistPath("main", lines=2, sheave_factor=1.0,
-    ...                               winch_line_pull=40e3, mast_rating=100e3,
-    ...                               dead_load=5e3))
-    >>> cap.governing, cap.string_limit, cap.hook_limit
-    ('winch line pull', 75000.0, 80000.0)
+    >>> chain = path_capacity(HoistPath("main", lines=2, sheave_factor=1.0,
+    ...                                 winch_line_pull=40e3, mast_rating=100e3,
+    ...                                 dead_load=5e3, dynamic_factor=1.25,
+    ...                                 overpull_reserve=10e3))
+    >>> chain.governing, str(chain.governing_case), chain.string_limit, chain.hook_limit
+    ('winch line pull', 'shock', 59000.0, 64000.0)
     """
     if not isinstance(path, HoistPath):
         raise InputError("path", f"expected a HoistPath, got {type(path).__name__}")
-    rows = []
+    parts = []
     unrated = []
     for c in path.components():
         if math.isnan(c.rating):
             unrated.append(c.name)
             continue
-        allowed = c.rating / path.dynamic_factor - path.overpull_reserve
-        if c.carries_dead_load:
-            allowed -= path.dead_load
-        rows.append((c.name, c.kind, float(c.rating), float(allowed)))
-    if rows:
-        i = min(range(len(rows)), key=lambda j: rows[j][3])
-        governing = rows[i][0]
-        string_limit = rows[i][3]
+        g = c.gear_counted(path.dead_load)
+        shock = c.rating / path.dynamic_factor - g
+        overpull = c.rating - g - path.overpull_reserve
+        case = LoadCaseCode.SHOCK if shock <= overpull else LoadCaseCode.OVERPULL
+        parts.append(ChainPart(
+            name=c.name, kind=c.kind, basis=c.basis, rating=float(c.stated),
+            to_hook=float(c.to_hook), rated_at_hook=float(c.rating), gear_counted=g,
+            shock_limit=float(shock), overpull_limit=float(overpull),
+            string_limit=float(min(shock, overpull)), governing_case=case))
+    cases = (LoadCase(LoadCaseCode.SHOCK, float(path.dynamic_factor), 0.0, SHOCK_SOURCE),
+             LoadCase(LoadCaseCode.OVERPULL, 1.0, float(path.overpull_reserve),
+                      OVERPULL_SOURCE))
+    if parts:
+        gov = min(parts, key=lambda p: p.string_limit)
+        governing, case = gov.name, gov.governing_case
+        string_limit = gov.string_limit
         hook_limit = string_limit + path.dead_load
     else:
-        governing = ""
+        governing, case = "", None
         string_limit = hook_limit = _NAN
-    return PathCapacity(path=path.name, components=tuple(rows), string_limit=string_limit,
-                        hook_limit=hook_limit, governing=governing, unrated=tuple(unrated),
-                        unrated_on_path=unrated_parts_in_use(path))
+    return HoistChain(
+        path=path.name,
+        components=tuple((p.name, p.kind, p.rated_at_hook, p.string_limit) for p in parts),
+        string_limit=string_limit, hook_limit=hook_limit, governing=governing,
+        unrated=tuple(unrated), unrated_on_path=unrated_parts_in_use(path),
+        parts=tuple(parts), cases=cases, governing_case=case,
+        dead_load=float(path.dead_load), lines=path.lines,
+        sheave_factor=float(path.sheave_factor),
+        block_efficiency=float(block_efficiency(path.lines, path.sheave_factor)))
 
 
 def unrated_parts_in_use(path: HoistPath) -> tuple:
@@ -714,7 +989,7 @@ def rig_capacity(rig: Rig) -> tuple:
     return tuple(path_capacity(p) for p in rig.paths)
 
 
-def best_path(rig: Rig) -> PathCapacity:
+def best_path(rig: Rig) -> HoistChain:
     """The path with the largest rated ``string_limit`` [N] (first one on a tie).
 
     Raises :class:`rigplan.errors.InputError` when no path has any rated

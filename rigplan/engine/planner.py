@@ -2,54 +2,105 @@
 
 Engine orchestration only: it calls the topic modules (``axial``,
 ``floatplan``, ``staging``, ``grouting``, ``hoisting``) and collects their
-results in :class:`LandingPlan`; it adds no physics of its own.
+results in :class:`LandingPlan`; it adds no physics of its own, and no
+words: what it has to say is a :class:`~rigplan.engine.findings.Finding`
+with a :class:`PlanCode` (``rigplan.present`` words it).
 
-Order of trial (first that keeps every limit wins):
+Order of trial (first that keeps every limit wins), one named step each in
+:func:`plan_landing`:
 
-1. open-ended, the hole fluid inside;
+0. the float equipment the plan names (:func:`try_planned_float`);
+1. open-ended, the hole fluid inside (:func:`try_open`);
 2. floated: float shoe and float collars at the positions in the settings,
    each with every fill fluid offered, ranked by fewest top-ups then the
-   largest least margin;
-3. two stages on the rig's landing string;
+   largest least margin (:func:`try_other_floats`);
+3. two stages on the rig's landing string (:func:`try_stages`);
 4. otherwise: cannot land, with the reasons.
+
+Then :func:`check_hole_depth`, :func:`check_set_down` and
+:func:`check_unrated` may overrule the verdict (a string longer than the
+hole cannot land; a set-down weight that buckles a screen or overstresses a
+joint below the neutral point is over a limit; a loaded unrated part means
+landing cannot be confirmed).
 """
 
 from __future__ import annotations
 
 import dataclasses
-from dataclasses import dataclass, field
+import enum
+from dataclasses import dataclass
 
 import numpy as np
 
-from rigplan import CAUTION
-from rigplan.engine.axial import RunningLoads, neutral_point_depth, running_loads, step_profile
+from rigplan.engine.buckling import BucklingCheck, check_buckling
+from rigplan.engine.axial import (RunningLoads, StepProfile, neutral_point_depth, running_loads,
+                                  step_profile)
+from rigplan.engine.findings import Finding, Kind, Limit, LimitName, Severity, Verdict
 from rigplan.engine.floatplan import (EmptyRun, FillSchedule, FillWindow, empty_run, fill_schedule,
-                               fill_window, switch_point)
-from rigplan.engine.hoisting import PathCapacity, Rig, path_capacity
+                                      fill_window, switch_point)
+from rigplan.engine.grouting import GroutPlan
+from rigplan.engine.hoisting import HoistPath, PathCapacity, Rig, path_capacity
 from rigplan.engine.staging import StagedPlan, plan_two_stages
 from rigplan.engine.stringmodel import Closure, GroutSpec, Hole, JointArrays, Settings
+from rigplan.engine.rating import PERFORATED_KINDS
 
-LANDS_OPEN = "lands open"
-LANDS_FLOATED = "lands with float plan"
-LANDS_STAGED = "lands in stages"
-CANNOT_LAND = "cannot land"
-CANNOT_CONFIRM = "cannot confirm"
+# Verdicts by their old names (``Verdict`` members compare equal to the text).
+LANDS_OPEN = Verdict.LANDS_OPEN
+LANDS_FLOATED = Verdict.LANDS_FLOATED
+LANDS_STAGED = Verdict.LANDS_STAGED
+CANNOT_LAND = Verdict.CANNOT_LAND
+CANNOT_CONFIRM = Verdict.CANNOT_CONFIRM
 
 
-@dataclass(frozen=True)
-class Limit:
-    """One checked limit: what, where, load against capacity, margin.
+class PlanCode(enum.StrEnum):
+    """What the planner has to say (codes of its findings)."""
 
-    margin = (capacity - load) / capacity [-], utilization = load / capacity
-    (design factors already applied to the load).
-    """
+    #: a limit over: context ``limit``; joint/step/label; quantities
+    #: ``load``, ``capacity`` (SI of the limit's kind) and ``margin``
+    OVER_LIMIT = "plan.over_limit"
+    #: the open-ended run fails; cause: its OVER_LIMIT
+    OPEN_FAILS = "plan.open_fails"
+    #: a float option fails: context ``valve_joint`` (0: float shoe) and
+    #: ``planned``; quantity ``fill_density``; cause: why
+    OPTION_FAILS = "plan.option_fails"
+    #: a screen above the check valve lets hole fluid in: joint/label
+    SCREEN_ABOVE_VALVE = "plan.screen_above_valve"
+    #: the float equipment is in the hole: no other position or stage tried
+    FIXED_CLOSURE = "plan.fixed_closure"
+    #: the planned float equipment fails but the string lands open-ended
+    RUN_WITHOUT_VALVE = "plan.run_without_valve"
+    #: no staged setting: the rig profile has no landing string
+    NO_LANDING_STRING = "plan.no_landing_string"
+    #: the staged setting fails; cause: the staging finding
+    STAGED_FAILS = "plan.staged_fails"
+    #: the string is longer than the hole: quantities ``string_length``, ``hole_depth``
+    LONGER_THAN_HOLE = "plan.longer_than_hole"
+    #: lands on the rated parts but loaded parts are unrated (see ``unrated``);
+    #: context ``count``
+    UNRATED_LOADED = "plan.unrated_loaded"
+    #: a loaded joint is unrated: joint/label, context ``part`` (tension,
+    #: collapse or burst)
+    UNRATED_PART = "plan.unrated_part"
+    #: a hoisting component is unrated: context ``component`` and ``path``
+    UNRATED_COMPONENT = "plan.unrated_component"
+    #: left empty the pipe collapses by this joint; quantity ``longest_empty``
+    #: (nan: no bound) -- these float notes carry context ``valve_joint`` and
+    #: quantity ``fill_density``
+    EMPTY_COLLAPSES = "plan.empty_collapses"
+    #: left empty the string floats (negative hook load) from this joint
+    EMPTY_FLOATS = "plan.empty_floats"
+    #: left empty the string load falls below the minimum running weight
+    EMPTY_TOO_LIGHT = "plan.empty_too_light"
+    #: every joint must be filled to the top: floating gains nothing
+    FILL_ALL_THE_WAY = "plan.fill_all_the_way"
+    #: the set-down weight buckles a screen or overstresses a joint below the
+    #: neutral point: quantities ``set_down`` and ``max_set_down`` (the most
+    #: that keeps both limits; nan: not known)
+    SET_DOWN_TOO_HEAVY = "plan.set_down_too_heavy"
 
-    name: str
-    where: str
-    load: float
-    capacity: float
-    margin: float
-    kind: str = "force"      # quantity kind of load and capacity: "force" or "pressure"
+
+#: Limit margins below this count as over the limit [-].
+MARGIN_TOLERANCE = 1e-12
 
 
 @dataclass(frozen=True)
@@ -61,6 +112,8 @@ class RunCheck:
         the smaller of its connection and body rating (nan: unrated)
     collapse_utilization, burst_utilization : DF x load / rating per joint
     capacity_margin : per step, (limit - string load) / limit
+    limits : the :class:`Limit` checked (the least margin of each kind)
+    unrated : loaded but unrated parts (findings ``PlanCode.UNRATED_PART``)
     """
 
     closure: Closure
@@ -69,15 +122,15 @@ class RunCheck:
     tension_utilization: np.ndarray
     collapse_utilization: np.ndarray
     burst_utilization: np.ndarray
-    limits: tuple
-    unrated: tuple
+    limits: tuple[Limit, ...]
+    unrated: tuple[Finding, ...]
     ok: bool
     collapse_rating: np.ndarray | None = None   # ratings used, axial load included [Pa]
 
 
 @dataclass(frozen=True)
 class FloatOption:
-    """One float position and fill fluid tried."""
+    """One float position and fill fluid tried (``reason``: why it does not land)."""
 
     closure: Closure
     fill_density: float
@@ -85,7 +138,7 @@ class FloatOption:
     schedule: FillSchedule | None
     check: RunCheck | None
     lands: bool
-    reason: str = ""
+    reason: Finding | None = None
     empty: EmptyRun | None = None
 
 
@@ -93,8 +146,7 @@ class FloatOption:
 class LandingPlan:
     """Everything the front ends show, SI units.
 
-    verdict : one of ``lands open``, ``lands with float plan``,
-        ``lands in stages``, ``cannot land``, ``cannot confirm``
+    verdict : :class:`Verdict`
     governing : the limit with the least margin in the chosen plan
     path : the hoisting path's capacity (string_limit compares with the
         string load; hook_limit with the hook load, dead load included)
@@ -107,12 +159,17 @@ class LandingPlan:
         exceed the limit (0: never): where floating must begin
     neutral_point : depth of the neutral point when landed with the
         set-down weight [m] (nan: all in tension)
-    landed : StepProfile of the landed string with the set-down weight
-        (true force and effective tension at every joint face)
-    cautions : the planning cautions
+    grouting : the grout check and lifts (None: no grout planned)
+    buckling : buckling below the neutral point with the set-down weight
+        (None: nothing set down)
+    landed : the landed string with the set-down weight (true force and
+        effective tension at every joint face)
+    unrated : loaded parts with no rating (findings)
+    reasons : why the verdict is what it is (findings, most important first)
+    notes : what the crew should know about the float plan (findings)
     """
 
-    verdict: str
+    verdict: Verdict
     governing: Limit | None
     path: PathCapacity
     dead_load: float
@@ -121,21 +178,21 @@ class LandingPlan:
     settings: Settings
     open_check: RunCheck
     chosen: RunCheck
-    float_options: tuple
+    float_options: tuple[FloatOption, ...]
     best_float: FloatOption | None
     stages: StagedPlan | None
     switch_joint: int
     neutral_point: float
-    grouting: object = None
-    landed: object = None
-    unrated: tuple = ()
-    reasons: tuple = ()
-    notes: tuple = ()
-    cautions: tuple = field(default_factory=lambda: (CAUTION,))
+    landed: StepProfile
+    grouting: GroutPlan | None = None
+    unrated: tuple[Finding, ...] = ()
+    buckling: BucklingCheck | None = None
+    reasons: tuple[Finding, ...] = ()
+    notes: tuple[Finding, ...] = ()
 
     @property
     def lands(self) -> bool:
-        return self.verdict in (LANDS_OPEN, LANDS_FLOATED, LANDS_STAGED)
+        return self.verdict.lands
 
     @property
     def hook_load(self) -> np.ndarray:
@@ -200,27 +257,28 @@ def check_run(joints: JointArrays, loads: RunningLoads, closure: Closure,
     label = joints.label
     limits = []
     k = int(np.argmin(cap_margin))
-    limits.append(Limit("hoisting capacity", f"step {k + 1} ({label[k]} at the floor)",
-                        float(loads.string_load[k] + dead_load), string_limit + dead_load,
-                        float(cap_margin[k])))
-    for name, util, load, cap in (
-            ("connection tension", t_util, t_load, tension_cap),
-            ("collapse", c_util, d.collapse * loads.collapse_max, c_rating),
-            ("burst", b_util, d.burst * loads.burst_max, joints.burst_rating)):
+    limits.append(Limit(LimitName.HOISTING, float(loads.string_load[k] + dead_load),
+                        string_limit + dead_load, float(cap_margin[k]), Kind.FORCE,
+                        step=k + 1, label=label[k]))
+    for name, util, load, cap, kind in (
+            (LimitName.CONNECTION_TENSION, t_util, t_load, tension_cap, Kind.FORCE),
+            (LimitName.COLLAPSE, c_util, d.collapse * loads.collapse_max, c_rating, Kind.PRESSURE),
+            (LimitName.BURST, b_util, d.burst * loads.burst_max, joints.burst_rating,
+             Kind.PRESSURE)):
         if np.any(np.isfinite(util)):
             j = int(np.nanargmax(util))
-            limits.append(Limit(name, f"joint {j + 1} ({label[j]})", float(load[j]),
-                                float(cap[j]), float(1.0 - util[j]),
-                                "force" if name == "connection tension" else "pressure"))
+            limits.append(Limit(name, float(load[j]), float(cap[j]), float(1.0 - util[j]), kind,
+                                joint=j + 1, label=label[j]))
     # Loaded but unrated parts, joint by joint in running order (tension,
     # collapse, burst for each joint): row-major order of the flags.
     flags = np.stack((np.isnan(tension_cap) & (loads.envelope_max > 0),
                       np.isnan(joints.collapse_rating) & (loads.collapse_max > 0),
                       np.isnan(joints.burst_rating) & (loads.burst_max > 0)), axis=1)
-    what = ("tension at the top of joint", "collapse of joint", "burst of joint")
-    unrated = [f"{what[w]} {j + 1} ({label[j]})"
+    part = ("tension", "collapse", "burst")
+    unrated = [Finding(PlanCode.UNRATED_PART, Severity.WARNING, joint=j + 1, label=label[j],
+                       context={"part": part[w]})
                for j, w in zip(*(idx.tolist() for idx in np.nonzero(flags)))]
-    ok = all(lim.margin >= -1e-12 for lim in limits)
+    ok = all(lim.margin >= -MARGIN_TOLERANCE for lim in limits)
     return RunCheck(closure=closure, loads=loads, capacity_margin=cap_margin,
                     tension_utilization=t_util, collapse_utilization=c_util,
                     burst_utilization=b_util, limits=tuple(limits),
@@ -231,17 +289,14 @@ def _governing(check: RunCheck) -> Limit:
     return min(check.limits, key=lambda lim: lim.margin)
 
 
-#: Joint kinds open to the hole through their wall: a check valve below one
-#: cannot keep the bore above it empty.
-OPEN_WALL_KINDS = ("screen",)
-
-
 def top_open_wall_joint(joints: JointArrays) -> int:
     """1-based number of the highest screen joint (0: none)."""
     # searched from the top by the tuple's own (C) search, not joint by joint
     kinds = tuple(joints.kind)[::-1]
     top = 0
-    for kind in OPEN_WALL_KINDS:
+    # a check valve below a joint open to the hole through its wall cannot
+    # keep the bore above it empty
+    for kind in PERFORATED_KINDS:
         if kind in kinds:
             top = max(top, len(kinds) - kinds.index(kind))
     return top
@@ -281,9 +336,8 @@ def try_float(joints: JointArrays, hole: Hole, closure: Closure, fill_density: f
     if top_screen > m:
         return FloatOption(
             closure, fill_density, None, None, None, False,
-            f"joint {top_screen} ({joints.label[top_screen - 1]}) is a screen above the check "
-            f"valve: hole fluid enters through it, so the pipe cannot be floated; put the float "
-            f"collar on joint {top_screen} or higher")
+            Finding(PlanCode.SCREEN_ABOVE_VALVE, Severity.REASON, joint=top_screen,
+                    label=joints.label[top_screen - 1]))
     for _ in range(5):
         window = fill_window(joints, hole, closure, fill_density, limit,
                              settings.min_running_weight, d.collapse)
@@ -303,7 +357,7 @@ def try_float(joints: JointArrays, hole: Hole, closure: Closure, fill_density: f
         # hoisting side of the window by the excess and planning again keeps
         # that connection within its rating (or shows the window closes).
         over = [lim for lim in check.limits
-                if lim.name == "connection tension" and lim.margin < -1e-12]
+                if lim.name == LimitName.CONNECTION_TENSION and lim.margin < -MARGIN_TOLERANCE]
         if not over:
             break
         excess = over[0].load * (1.0 - 1.0 / (1.0 - over[0].margin)) / d.tension
@@ -315,38 +369,48 @@ def try_float(joints: JointArrays, hole: Hole, closure: Closure, fill_density: f
     if settings.min_running_weight > 0 and np.any(np.isfinite(wm)):
         # the string must still go down wherever the pipe is not kept full
         k = int(np.argmin(np.where(np.isfinite(wm), wm, np.inf)))
-        weight = Limit("running weight", f"step {k + 1} ({joints.label[k]} at the floor)",
-                       float(loads.string_load[k]), float(settings.min_running_weight),
-                       float(wm[k]))
+        weight = Limit(LimitName.RUNNING_WEIGHT, float(loads.string_load[k]),
+                       float(settings.min_running_weight), float(wm[k]), Kind.FORCE,
+                       step=k + 1, label=joints.label[k])
         check = dataclasses.replace(check, limits=check.limits + (weight,),
-                                    ok=check.ok and weight.margin >= -1e-12)
+                                    ok=check.ok and weight.margin >= -MARGIN_TOLERANCE)
     return FloatOption(closure, fill_density, window, schedule, check, check.ok,
-                       "" if check.ok else
-                       f"{_governing(check).name} over its limit at {_governing(check).where}",
-                       empty)
+                       None if check.ok else over_limit(_governing(check)), empty)
 
 
-def float_notes(opt: FloatOption, n: int) -> list:
-    """Plain warnings about running a closed string (empty collapse, floating)."""
-    notes = []
+def over_limit(limit: Limit) -> Finding:
+    """The finding that ``limit`` is exceeded (``PlanCode.OVER_LIMIT``)."""
+    return Finding(PlanCode.OVER_LIMIT, Severity.REASON, joint=limit.joint, step=limit.step,
+                   label=limit.label,
+                   quantities={"load": (limit.load, limit.kind),
+                               "capacity": (limit.capacity, limit.kind),
+                               "margin": (limit.margin, Kind.RATIO)},
+                   context={"limit": str(limit.name)})
+
+
+def float_notes(opt: FloatOption, n: int) -> list[Finding]:
+    """What the crew should know about running a closed string: left empty
+    it collapses or floats; or floating gains nothing."""
     e = opt.empty
-    name = f"{_closure_name(opt.closure)} with fill {_density_words(opt.fill_density)}"
     if e is None:
-        return notes
+        return []
+    about = {"context": {"valve_joint": opt.closure.valve_joint},
+             "quantities": {"fill_density": (opt.fill_density, Kind.DENSITY)}}
+    notes = []
     if e.collapse_step:
-        notes.append(f"{name}: left empty the pipe would collapse by joint {e.collapse_step}"
-                     + (f"; never leave more than {e.longest_empty:.1f} m "
-                        f"({e.longest_empty / 0.3048:.0f} ft) empty above the valve"
-                        if np.isfinite(e.longest_empty) else ""))
+        longest = e.longest_empty if np.isfinite(e.longest_empty) else float("nan")
+        notes.append(Finding(PlanCode.EMPTY_COLLAPSES, Severity.WARNING, joint=e.collapse_step,
+                             context=about["context"],
+                             quantities={**about["quantities"],
+                                         "longest_empty": (longest, Kind.LENGTH)}))
     if e.negative_step:
-        notes.append(f"{name}: left empty the string floats (negative hook load) from joint "
-                     f"{e.negative_step}: fill it or it will not go down")
+        notes.append(Finding(PlanCode.EMPTY_FLOATS, Severity.WARNING, joint=e.negative_step,
+                             **about))
     elif e.float_step:
-        notes.append(f"{name}: left empty the string load falls below the minimum running "
-                     f"weight from joint {e.float_step}")
+        notes.append(Finding(PlanCode.EMPTY_TOO_LIGHT, Severity.WARNING, joint=e.float_step,
+                             **about))
     if opt.schedule.feasible and opt.schedule.fill_to_top_through >= n:
-        notes.append(f"{name}: fill every joint to the top all the way down; floating gains "
-                     "nothing here")
+        notes.append(Finding(PlanCode.FILL_ALL_THE_WAY, Severity.INFO, **about))
     return notes
 
 
@@ -355,6 +419,307 @@ def _option_key(opt: FloatOption):
         return (0, 0, -np.inf)
     return (1, -len(opt.schedule.top_ups), round(min(opt.schedule.least_margin,
                                                      _governing(opt.check).margin), 4))
+
+
+@dataclass(frozen=True)
+class PlanInputs:
+    """What every step of :func:`plan_landing` reads (nothing changes it)."""
+
+    joints: JointArrays
+    hole: Hole
+    rig: Rig
+    settings: Settings
+    closure: Closure
+    fixed_closure: bool
+    capacity: PathCapacity
+    dead_load: float
+    open_loads: RunningLoads
+
+    @property
+    def limit(self) -> float:
+        """Allowed string load on the hoisting path [N]."""
+        return self.capacity.string_limit
+
+    @property
+    def fluids(self) -> tuple:
+        """The fill fluid densities offered, the job's own first [kg/m^3]."""
+        s = self.settings
+        return (s.fill_density,) + tuple(s.fill_density_alternatives)
+
+
+@dataclass(frozen=True)
+class Trial:
+    """Where the trial stands after each step of :func:`plan_landing`.
+
+    verdict : None until a step decides it
+    chosen : the run shown (the one that lands, or the best tried)
+    options, best : float options tried and the chosen one
+    reasons : findings gathered so far (each step returns a new Trial)
+    """
+
+    chosen: RunCheck
+    verdict: Verdict | None = None
+    options: tuple = ()
+    best: FloatOption | None = None
+    stages: StagedPlan | None = None
+    reasons: tuple = ()
+    governing: Limit | None = None
+
+    def add(self, *findings: Finding, **changes) -> Trial:
+        return dataclasses.replace(self, reasons=self.reasons + findings, **changes)
+
+
+def choose_path(rig: Rig, path: str | None) -> tuple[PathCapacity, HoistPath]:
+    """The named hoisting path, or the one with the largest string limit."""
+    caps = [path_capacity(p) for p in rig.paths]
+    if not caps:
+        raise ValueError(f"rig {rig.name!r} has no hoisting path")
+    if path is None:
+        finite = [c for c in caps if np.isfinite(c.string_limit)]
+        cap = max(finite, key=lambda c: c.string_limit) if finite else caps[0]
+    else:
+        named = [c for c in caps if c.path == path]
+        if not named:
+            raise ValueError(f"rig {rig.name!r} has no path {path!r}; "
+                             f"paths: {', '.join(c.path for c in caps)}")
+        cap = named[0]
+    if not np.isfinite(cap.string_limit) or cap.string_limit <= 0:
+        raise ValueError(f"hoisting path {cap.path!r} has no rated capacity left for the "
+                         "string (check its ratings, dead load and overpull reserve)")
+    hoist = next(p for p in rig.paths if p.name == cap.path)
+    return cap, hoist
+
+
+def option_failures(options, planned: bool = False) -> tuple[Finding, ...]:
+    """One ``OPTION_FAILS`` finding per float option that does not land."""
+    return tuple(Finding(PlanCode.OPTION_FAILS, Severity.REASON,
+                         context={"valve_joint": o.closure.valve_joint, "planned": planned},
+                         quantities={"fill_density": (o.fill_density, Kind.DENSITY)},
+                         cause=o.reason)
+                 for o in options if not o.lands)
+
+
+def best_tried(options) -> RunCheck | None:
+    """The checked run with the largest least margin among the options."""
+    tried = [o for o in options if o.check is not None]
+    return max(tried, key=lambda o: _governing(o.check).margin).check if tried else None
+
+
+def land_floated(trial: Trial, options) -> Trial | None:
+    """The trial with the best landing option of ``options`` chosen (None: none lands)."""
+    landing = [o for o in options if o.lands]
+    if not landing:
+        return None
+    best = max(landing, key=_option_key)
+    return dataclasses.replace(trial, best=best, chosen=best.check, verdict=LANDS_FLOATED)
+
+
+def check_open(inp: PlanInputs) -> Trial:
+    """The open-ended run checked; its failure is the first reason."""
+    check = check_run(inp.joints, inp.open_loads, Closure(), inp.limit, inp.settings, inp.hole,
+                      dead_load=inp.dead_load)
+    trial = Trial(chosen=check)
+    if not check.ok:
+        trial = trial.add(Finding(PlanCode.OPEN_FAILS, Severity.REASON,
+                                  cause=over_limit(_governing(check))))
+    return trial
+
+
+def try_planned_float(inp: PlanInputs, trial: Trial) -> Trial:
+    """The float equipment the plan names, with every fill fluid: the loads
+    shown must be those of the run the crew will make."""
+    if inp.closure.is_open:
+        return trial
+    planned = tuple(try_float(inp.joints, inp.hole, inp.closure, rho, inp.limit, inp.settings,
+                              inp.dead_load) for rho in inp.fluids)
+    trial = dataclasses.replace(trial, options=trial.options + planned)
+    failures = option_failures(planned, planned=True)
+    landed = land_floated(trial, planned)
+    if landed is not None:
+        return landed.add(*failures)
+    trial = trial.add(*failures)
+    if inp.fixed_closure:
+        return trial.add(Finding(PlanCode.FIXED_CLOSURE, Severity.REASON),
+                         chosen=best_tried(planned) or trial.chosen, verdict=CANNOT_LAND)
+    return trial
+
+
+def try_open(inp: PlanInputs, trial: Trial, open_check: RunCheck) -> Trial:
+    """Open-ended, when nothing has landed yet and the open run keeps every limit."""
+    if trial.verdict is not None or not open_check.ok:
+        return trial
+    trial = dataclasses.replace(trial, verdict=LANDS_OPEN)
+    if not inp.closure.is_open:
+        trial = trial.add(Finding(PlanCode.RUN_WITHOUT_VALVE, Severity.ACTION))
+    return trial
+
+
+def try_other_floats(inp: PlanInputs, trial: Trial) -> Trial:
+    """A float shoe and the float collar positions of the settings."""
+    if trial.verdict is not None:
+        return trial
+    others = [c for c in _float_closures(inp.joints.n, Closure(), inp.settings,
+                                         top_open_wall_joint(inp.joints))
+              if c.valve_joint != inp.closure.valve_joint]
+    tried = tuple(try_float(inp.joints, inp.hole, c, rho, inp.limit, inp.settings, inp.dead_load)
+                  for c in others for rho in inp.fluids)
+    trial = dataclasses.replace(trial, options=trial.options + tried)
+    landed = land_floated(trial, tried)
+    if landed is not None:
+        return landed
+    return trial.add(*option_failures(tried),
+                     chosen=best_tried(trial.options) or trial.chosen)
+
+
+def try_stages(inp: PlanInputs, trial: Trial) -> Trial:
+    """Two stages on the rig's landing string, when nothing else lands."""
+    if trial.verdict is not None:
+        return trial
+    ls = inp.rig.landing_string
+    if ls is None:
+        return trial.add(Finding(PlanCode.NO_LANDING_STRING, Severity.REASON))
+    stages = plan_two_stages(inp.joints, inp.hole, inp.limit, ls.weight_per_length,
+                             ls.tensile_rating, ls.density, inp.settings.design.tension,
+                             inp.open_loads)
+    if not stages.feasible:
+        return trial.add(Finding(PlanCode.STAGED_FAILS, Severity.REASON, cause=stages.reason),
+                         stages=stages)
+    chosen = check_run(inp.joints, _staged_loads(inp.open_loads, stages), Closure(), inp.limit,
+                       inp.settings, dead_load=inp.dead_load)
+    governing = Limit(stages.governing, float("nan"), float("nan"), stages.least_margin,
+                      joint=stages.split)
+    return dataclasses.replace(trial, verdict=LANDS_STAGED, chosen=chosen, stages=stages,
+                               governing=governing)
+
+
+def cannot_land(trial: Trial) -> Trial:
+    """Nothing landed: the verdict is ``cannot land``."""
+    return trial if trial.verdict is not None else dataclasses.replace(trial, verdict=CANNOT_LAND)
+
+
+def check_hole_depth(inp: PlanInputs, trial: Trial) -> Trial:
+    """A string longer than the hole cannot land, whatever else holds."""
+    total = float(np.sum(inp.joints.length))
+    depth = inp.hole.depth
+    if not (np.isfinite(depth) and total > depth * (1 + 1e-9)):
+        return trial
+    reason = Finding(PlanCode.LONGER_THAN_HOLE, Severity.REASON,
+                     quantities={"string_length": (total, Kind.LENGTH),
+                                 "hole_depth": (float(depth), Kind.DEPTH)})
+    limit = Limit(LimitName.HOLE_DEPTH, total, float(depth), float((depth - total) / depth),
+                  Kind.LENGTH)
+    return dataclasses.replace(trial, reasons=(reason,) + trial.reasons, verdict=CANNOT_LAND,
+                               governing=limit)
+
+
+def unrated_parts(inp: PlanInputs, trial: Trial) -> tuple[Finding, ...]:
+    """Unrated components on the hoisting path, then unrated loaded joints."""
+    cap = inp.capacity
+    return tuple(Finding(PlanCode.UNRATED_COMPONENT, Severity.WARNING,
+                         context={"component": part, "path": cap.path})
+                 for part in cap.unrated_on_path) + tuple(trial.chosen.unrated)
+
+
+def check_unrated(trial: Trial, unrated: tuple) -> Trial:
+    """A plan that lands with loaded unrated parts cannot be confirmed."""
+    if not (trial.verdict.lands and unrated):
+        return trial
+    return trial.add(Finding(PlanCode.UNRATED_LOADED, Severity.REASON,
+                             context={"count": len(unrated)}), verdict=CANNOT_CONFIRM)
+
+
+def crew_notes(joints: JointArrays, trial: Trial) -> tuple[Finding, ...]:
+    """Float notes of the chosen option (or of the first tried that has them)."""
+    shown = ([trial.best] if trial.best is not None
+             else [o for o in trial.options if o.empty is not None][:1])
+    notes = []
+    for o in shown:
+        notes += [f for f in float_notes(o, joints.n) if f not in notes]
+    return tuple(notes)
+
+
+def landed_profile(inp: PlanInputs, trial: Trial) -> StepProfile:
+    """Forces along the landed string with the set-down weight on bottom."""
+    best = trial.best
+    fill_final = 0.0
+    if trial.chosen.closure.valve_joint is not None and best is not None:
+        fill_final = float(np.nan_to_num(best.schedule.fill_level[-1], nan=0.0))
+    return step_profile(inp.joints, inp.hole, trial.chosen.closure, inp.joints.n,
+                        best.fill_density if best else 0.0, fill_final,
+                        slack_off=inp.settings.set_down_weight)
+
+
+def check_set_down(inp: PlanInputs, trial: Trial,
+                   landed: StepProfile) -> tuple[Trial, BucklingCheck | None]:
+    """Buckling below the neutral point with the set-down weight
+    (:func:`rigplan.engine.buckling.check_buckling`, vertical hole, the
+    tension design factor on the combined stress).  Two limits join the
+    chosen run's: a screen in effective compression above its critical
+    buckling load (``screen buckling``), and the axial plus helical bending
+    stress of a joint against its yield (``buckling stress``); either over
+    its limit means the string cannot be landed with that set-down weight.
+    Joints in compression whose buckling cannot be worked out (modulus,
+    hole diameter or yield unknown) are unrated parts."""
+    if not inp.settings.set_down_weight > 0:
+        return trial, None
+    joints = inp.joints
+    modulus = joints.modulus if joints.modulus is not None else np.full(joints.n, np.nan)
+    screens = np.array([k in PERFORATED_KINDS for k in joints.kind], dtype=bool)
+    set_down = float(inp.settings.set_down_weight)
+    chk = check_buckling(joints, landed, inp.hole.diameter, modulus,
+                         inp.settings.design.tension, set_down=set_down, screens=screens)
+    label = joints.label
+    limits = []
+    screen = (screens[:len(chk.compression)] & (chk.compression > 0)
+              & np.isfinite(chk.sinusoidal_load))
+    if np.any(screen):
+        with np.errstate(divide="ignore", invalid="ignore"):
+            ratio = np.where(chk.sinusoidal_load > 0, chk.compression / chk.sinusoidal_load, np.inf)
+        j = int(np.argmax(np.where(screen, ratio, -np.inf)))
+        margin = 1.0 - ratio[j] if np.isfinite(ratio[j]) else -1.0
+        limits.append(Limit(LimitName.SCREEN_BUCKLING, float(chk.compression[j]),
+                            float(chk.sinusoidal_load[j]), float(margin), Kind.FORCE,
+                            joint=j + 1, label=label[j]))
+    util = chk.stress_utilization
+    if np.any(np.isfinite(util)):
+        j = int(np.nanargmax(util))
+        stress = chk.design_factor * (chk.axial_stress[j] + chk.bending_stress[j])
+        limits.append(Limit(LimitName.BUCKLING_STRESS, float(stress),
+                            float(joints.yield_strength[j]), float(1.0 - util[j]), Kind.STRESS,
+                            joint=j + 1, label=label[j]))
+    unknown = tuple(Finding(PlanCode.UNRATED_PART, Severity.WARNING, joint=j + 1,
+                            label=label[j], context={"part": "buckling"})
+                    for j in np.flatnonzero(chk.unknown).tolist())
+    ok = all(lim.margin >= -MARGIN_TOLERANCE for lim in limits)
+    chosen = dataclasses.replace(trial.chosen, limits=trial.chosen.limits + tuple(limits),
+                                 unrated=trial.chosen.unrated + unknown,
+                                 ok=trial.chosen.ok and ok)
+    trial = dataclasses.replace(trial, chosen=chosen)
+    over = [lim for lim in limits if lim.margin < -MARGIN_TOLERANCE]
+    if over and trial.verdict is not None and trial.verdict.lands:
+        action = Finding(PlanCode.SET_DOWN_TOO_HEAVY, Severity.ACTION,
+                         quantities={"set_down": (set_down, Kind.FORCE),
+                                     "max_set_down": (chk.max_set_down, Kind.FORCE)})
+        trial = trial.add(*(over_limit(lim) for lim in over), action, verdict=CANNOT_LAND)
+    return trial, chk
+
+
+def governing_limit(trial: Trial) -> Limit:
+    """The limit with the least margin of the chosen run; the hole depth for
+    a string longer than the hole; the staged setting's least margin when it
+    lands in stages."""
+    g = trial.governing
+    if g is not None and (g.name == LimitName.HOLE_DEPTH or trial.verdict == LANDS_STAGED):
+        return g
+    return _governing(trial.chosen)
+
+
+def plan_grouting(inp: PlanInputs, grout: GroutSpec | None) -> GroutPlan | None:
+    """The grout collapse check and lifts (None: no grout planned)."""
+    if grout is None:
+        return None
+    from rigplan.engine.grouting import plan_grout_lifts
+    return plan_grout_lifts(inp.joints, inp.hole, grout, inp.settings.design.collapse)
 
 
 def plan_landing(joints: JointArrays, hole: Hole, rig: Rig, settings: Settings,
@@ -374,145 +739,32 @@ def plan_landing(joints: JointArrays, hole: Hole, rig: Rig, settings: Settings,
     fixed_closure : bool  the planned float equipment is already in the hole
         (joints have been run): try no other position and no staging
     """
-    caps = [path_capacity(p) for p in rig.paths]
-    if not caps:
-        raise ValueError(f"rig {rig.name!r} has no hoisting path")
-    if path is None:
-        finite = [c for c in caps if np.isfinite(c.string_limit)]
-        cap = max(finite, key=lambda c: c.string_limit) if finite else caps[0]
-    else:
-        named = [c for c in caps if c.path == path]
-        if not named:
-            raise ValueError(f"rig {rig.name!r} has no path {path!r}; "
-                             f"paths: {', '.join(c.path for c in caps)}")
-        cap = named[0]
-    hoist = [p for p in rig.paths if p.name == cap.path][0]
-    limit = cap.string_limit
-    if not np.isfinite(limit) or limit <= 0:
-        raise ValueError(f"hoisting path {cap.path!r} has no rated capacity left for the "
-                         "string (check its ratings, dead load and overpull reserve)")
-
-    open_loads = running_loads(joints, hole, Closure())
-    dead = hoist.dead_load
-    open_check = check_run(joints, open_loads, Closure(), limit, settings, hole, dead_load=dead)
-    switch = switch_point(open_loads.string_load, limit)
-    reasons = []
-    options = []
-    best = None
-    stages = None
-    chosen = open_check
-    verdict = None
-    fluids = (settings.fill_density,) + tuple(settings.fill_density_alternatives)
-
-    def explain(opts, prefix=""):
-        why = {}
-        for o in opts:
-            why.setdefault((_closure_name(o.closure), o.reason), []).append(
-                _density_words(o.fill_density))
-        for (name, reason), rhos in why.items():
-            reasons.append(f"{prefix}{name} (fill {', '.join(rhos)}): {reason}")
-
-    def best_tried(opts):
-        tried = [o for o in opts if o.check is not None]
-        return max(tried, key=lambda o: _governing(o.check).margin).check if tried else None
-
-    if not open_check.ok:
-        g = _governing(open_check)
-        reasons.append(f"open-ended: {g.name} over its limit at {g.where}")
-    if not closure.is_open:
-        # The float equipment planned (or already in the hole) comes first:
-        # the loads shown must be those of the run the crew will make.
-        planned = [try_float(joints, hole, closure, rho, limit, settings, dead) for rho in fluids]
-        options += planned
-        landing = [o for o in planned if o.lands]
-        if landing:
-            best = max(landing, key=_option_key)
-            chosen = best.check
-            verdict = LANDS_FLOATED
-            explain([o for o in planned if not o.lands], "planned ")
-        else:
-            explain(planned, "planned ")
-            if fixed_closure:
-                chosen = best_tried(planned) or chosen
-                verdict = CANNOT_LAND
-                reasons.append("the float equipment is already in the hole: no other "
-                               "position or stage is tried")
-    if verdict is None and open_check.ok:
-        verdict = LANDS_OPEN
-        if not closure.is_open:
-            reasons.append("the planned float equipment does not keep every limit, but the "
-                           "string lands open-ended: run it without the check valve")
-    if verdict is None:
-        others = [c for c in _float_closures(joints.n, Closure(), settings,
-                                             top_open_wall_joint(joints))
-                  if c.valve_joint != closure.valve_joint]
-        tried = [try_float(joints, hole, c, rho, limit, settings, dead) for c in others
-                 for rho in fluids]
-        options += tried
-        landing = [o for o in tried if o.lands]
-        if landing:
-            best = max(landing, key=_option_key)
-            chosen = best.check
-            verdict = LANDS_FLOATED
-        else:
-            explain(tried)
-            chosen = best_tried(options) or chosen
-            ls = rig.landing_string
-            if ls is None:
-                reasons.append("staged setting: the rig profile has no landing string")
-            else:
-                stages = plan_two_stages(joints, hole, limit, ls.weight_per_length,
-                                         ls.tensile_rating, ls.density,
-                                         settings.design.tension, open_loads)
-                if stages.feasible:
-                    verdict = LANDS_STAGED
-                    chosen = check_run(joints, _staged_loads(open_loads, stages), Closure(),
-                                       limit, settings, dead_load=dead)
-                else:
-                    reasons.append(f"staged setting: {stages.reason}")
-            if verdict is None:
-                verdict = CANNOT_LAND
-
-    total = float(np.sum(joints.length))
-    hole_limit = None
-    if np.isfinite(hole.depth) and total > hole.depth * (1 + 1e-9):
-        reasons.insert(0, f"the string ({total:.2f} m, {total / 0.3048:.1f} ft) is longer than "
-                          f"the hole ({hole.depth:.2f} m, {hole.depth / 0.3048:.1f} ft): it "
-                          "cannot be landed; check the tally and the plan")
-        verdict = CANNOT_LAND
-        hole_limit = Limit("hole depth", "the shoe when landed", total, float(hole.depth),
-                           float((hole.depth - total) / hole.depth), "length")
-    notes = []
-    shown = [best] if best is not None else [o for o in options if o.empty is not None][:1]
-    for o in shown:
-        notes += float_notes(o, joints.n)
-    unrated = tuple(f"{part} on hoisting path {cap.path!r}" for part in cap.unrated_on_path) \
-        + tuple(chosen.unrated)
-    if verdict in (LANDS_OPEN, LANDS_FLOATED, LANDS_STAGED) and unrated:
-        reasons.append("lands on the rated parts, but some loaded parts are unrated: "
-                       + "; ".join(unrated[:5]) + (" ..." if len(unrated) > 5 else ""))
-        verdict = CANNOT_CONFIRM
-    governing = _governing(chosen) if hole_limit is None else hole_limit
-    if verdict == LANDS_STAGED and stages is not None:
-        governing = Limit(stages.governing, f"split above joint {stages.split}",
-                          0.0, 0.0, stages.least_margin)
-    fill_final = 0.0
-    if chosen.closure.valve_joint is not None and best is not None:
-        fill_final = float(np.nan_to_num(best.schedule.fill_level[-1], nan=0.0))
-    prof = step_profile(joints, hole, chosen.closure, joints.n,
-                        best.fill_density if best else 0.0, fill_final,
-                        slack_off=settings.set_down_weight)
-    neutral = neutral_point_depth(prof) if settings.set_down_weight > 0 else float("nan")
-    grouting = None
-    if grout is not None:
-        from rigplan.engine.grouting import plan_grout_lifts
-        grouting = plan_grout_lifts(joints, hole, grout, settings.design.collapse)
+    cap, hoist = choose_path(rig, path)
+    inp = PlanInputs(joints, hole, rig, settings, closure, fixed_closure, cap, hoist.dead_load,
+                     running_loads(joints, hole, Closure()))
+    trial = check_open(inp)
+    open_check = trial.chosen
+    trial = try_planned_float(inp, trial)
+    trial = try_open(inp, trial, open_check)
+    trial = try_other_floats(inp, trial)
+    trial = try_stages(inp, trial)
+    trial = cannot_land(trial)
+    trial = check_hole_depth(inp, trial)
+    landed = landed_profile(inp, trial)
+    trial, buckling = check_set_down(inp, trial, landed)
+    unrated = unrated_parts(inp, trial)
+    trial = check_unrated(trial, unrated)
     return LandingPlan(
-        verdict=verdict, governing=governing, path=cap, dead_load=hoist.dead_load,
-        joints=joints, hole=hole, settings=settings, open_check=open_check,
-        chosen=chosen, float_options=tuple(options), best_float=best, stages=stages,
-        switch_joint=switch, neutral_point=neutral, grouting=grouting, landed=prof,
-        unrated=unrated, reasons=tuple(reasons), notes=tuple(dict.fromkeys(notes)),
+        verdict=trial.verdict, governing=governing_limit(trial),
+        path=cap, dead_load=inp.dead_load, joints=joints, hole=hole, settings=settings,
+        open_check=open_check, chosen=trial.chosen, float_options=trial.options,
+        best_float=trial.best, stages=trial.stages,
+        switch_joint=switch_point(inp.open_loads.string_load, inp.limit),
+        neutral_point=(neutral_point_depth(landed) if settings.set_down_weight > 0
+                       else float("nan")),
+        grouting=plan_grouting(inp, grout), landed=landed,
+        unrated=unrated, reasons=trial.reasons, notes=crew_notes(joints, trial),
+        buckling=buckling,
     )
 
 
@@ -539,18 +791,3 @@ def _staged_loads(open_loads: RunningLoads, stages: StagedPlan) -> RunningLoads:
     )
 
 
-def _density_words(rho: float) -> str:
-    """A fluid density in both unit systems, e.g. ``999 kg/m3 (8.33 ppg)``
-    (1 lb/US gal = 119.826 kg/m^3, NIST SP 811)."""
-    return f"{rho:.0f} kg/m3 ({rho * 0.003785411784 / 0.45359237:.2f} ppg)"
-
-
-def _closure_name(c: Closure) -> str:
-    if c.valve_joint is None:
-        return "open shoe"
-    if c.valve_joint == 0:
-        return "float shoe"
-    return f"float collar on joint {c.valve_joint}"
-
-
-closure_name = _closure_name

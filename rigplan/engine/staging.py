@@ -19,11 +19,13 @@ pipe, ``W_air - P_o(bottom) A_steel``.
 
 from __future__ import annotations
 
+import enum
 from dataclasses import dataclass, field
 
 import numpy as np
 
 from rigplan.engine.axial import running_loads, step_profile, string_geometry, string_load_by_step
+from rigplan.engine.findings import Finding, LimitName, Severity
 from rigplan.engine.stringmodel import G, Closure, Hole, JointArrays
 
 
@@ -43,6 +45,15 @@ def landing_string_load(length, weight_per_length: float, density: float, hole: 
     steel_area = weight_per_length / (density * G)
     return (weight_per_length * length
             - hole.fluid_density * G * np.maximum(0.0, length - hole.fluid_level) * steel_area)
+
+
+
+class StagingCode(enum.StrEnum):
+    """Why a staged setting fails (``StagedPlan.reason.code``)."""
+
+    SINGLE_JOINT = "staging.single_joint"             # one joint cannot be staged
+    NO_TENSILE_RATING = "staging.no_tensile_rating"   # the landing string is unrated
+    OVER_LIMIT = "staging.over_limit"                 # context ``limit``: the limit over at the best split
 
 
 @dataclass(frozen=True)
@@ -67,10 +78,10 @@ class StagedPlan:
     landing_string_peak: float
     stage2_peak: float
     least_margin: float
-    governing: str
+    governing: LimitName | str
     feasible: bool
     stage2_loads: object = field(default=None, repr=False)
-    reason: str = ""
+    reason: Finding | None = None
 
 
 def _stage1_curve(joints: JointArrays, hole: Hole, open_loads, weight_per_length,
@@ -102,10 +113,10 @@ def plan_two_stages(joints: JointArrays, hole: Hole, string_limit: float,
     n = joints.n
     if n < 2:
         return StagedPlan(0, 0.0, 0.0, 0.0, 0.0, -np.inf, "", False,
-                          reason="a single joint cannot be staged")
+                          reason=Finding(StagingCode.SINGLE_JOINT, Severity.REASON))
     if not np.isfinite(tensile_rating) or tensile_rating <= 0:
-        return StagedPlan(0, 0.0, 0.0, 0.0, 0.0, -np.inf, "landing string", False,
-                          reason="the landing string has no tensile rating")
+        return StagedPlan(0, 0.0, 0.0, 0.0, 0.0, -np.inf, LimitName.LANDING_STRING, False,
+                          reason=Finding(StagingCode.NO_TENSILE_RATING, Severity.REASON))
     if open_loads is None:
         open_loads = running_loads(joints, hole, Closure())
     stage1, lowered, release = _stage1_curve(joints, hole, open_loads,
@@ -160,7 +171,8 @@ def plan_two_stages(joints: JointArrays, hole: Hole, string_limit: float,
     m_s1 = (string_limit - stage1[best - 1]) / string_limit
     m_ls = (ls_allow - lowered[best - 1]) / ls_allow
     m_s2 = (string_limit - peak2) / string_limit
-    parts = {"stage 1 hoisting": m_s1, "landing string": m_ls, "stage 2 hoisting": m_s2}
+    parts = {LimitName.STAGE1_HOISTING: m_s1, LimitName.LANDING_STRING: m_ls,
+             LimitName.STAGE2_HOISTING: m_s2}
     gov = min(parts, key=parts.get)
     least = parts[gov]
     return StagedPlan(
@@ -168,5 +180,6 @@ def plan_two_stages(joints: JointArrays, hole: Hole, string_limit: float,
         stage1_peak=float(stage1[best - 1]), landing_string_peak=float(lowered[best - 1]),
         stage2_peak=peak2, least_margin=float(least), governing=gov,
         feasible=bool(least >= 0), stage2_loads=loads2,
-        reason="" if least >= 0 else f"{gov} over its limit at the best split",
+        reason=None if least >= 0 else Finding(StagingCode.OVER_LIMIT, Severity.REASON,
+                                               joint=best, context={"limit": str(gov)}),
     )

@@ -8,16 +8,18 @@ plan, rates the joints and calls the planner.  No textual, no rich.
 from __future__ import annotations
 
 import dataclasses
+import enum
 from dataclasses import dataclass
 from pathlib import Path
 
 from rigplan.errors import InputError
+from rigplan.engine.findings import Finding, Kind, Severity, Verdict
 from rigplan.engine.stringmodel import JointSpec, StringPlan
 
 #: Where the bundled demo lives: the repository's ``rigs/`` and ``strings/``
 #: (an editable install from the checkout), else those of the current folder.
 _PACKAGE = Path(__file__).resolve().parent
-_REPO = _PACKAGE.parents[1]      # rigplan/files -> the repository
+_REPO = _PACKAGE.parent.parent
 
 
 def demo_dir(kind: str) -> Path:
@@ -32,20 +34,22 @@ def demo_dir(kind: str) -> Path:
 DEMO_PLAN = "cv7-16in-floated.toml"
 DEMO_RIG = "mw80.toml"
 
-#: Every bundled demo job: (string plan, the rig it is meant for).
+#: Every bundled demo job: (string plan, the rig it is meant for, the verdict
+#: the README promises for it).  ``rigplan demo`` exits 1 when a verdict
+#: differs; the README's table of demo jobs is checked against this one.
 DEMO_JOBS = (
-    ("cv3-8in-a53b.toml", "th30.toml"),
-    ("cv7-16in-floated.toml", "mw80.toml"),
-    ("cv9-14in-staged.toml", "mw80.toml"),
-    ("cv12-pvc-floated.toml", "th30.toml"),
-    ("cv5-18in-thinwall.toml", "th30.toml"),
+    ("cv3-8in-a53b.toml", "th30.toml", Verdict.LANDS_OPEN),
+    ("cv7-16in-floated.toml", "mw80.toml", Verdict.LANDS_FLOATED),
+    ("cv9-14in-staged.toml", "mw80.toml", Verdict.LANDS_STAGED),
+    ("cv12-pvc-floated.toml", "th30.toml", Verdict.LANDS_FLOATED),
+    ("cv5-18in-thinwall.toml", "th30.toml", Verdict.CANNOT_LAND),
 )
 
 
 def demo_jobs() -> list[tuple[Path, Path]]:
     """(plan, rig) paths of every bundled demo job that is present."""
     strings, rigs = demo_dir("strings"), demo_dir("rigs")
-    return [(strings / p, rigs / r) for p, r in DEMO_JOBS
+    return [(strings / p, rigs / r) for p, r, _ in DEMO_JOBS
             if (strings / p).exists() and (rigs / r).exists()]
 
 
@@ -91,17 +95,35 @@ def resolve_rig(name_or_path: str, plan_path: Path | None = None) -> Path:
                                         "rigs/*.toml file or the name of a bundled rig)")
 
 
+class JobCode(enum.StrEnum):
+    """Warnings about a job's files (``Job.warnings``)."""
+
+    #: a file reader's one-line warning, context ``message``
+    FILE_WARNING = "job.file_warning"
+    #: a measured length far from the planned one (a typing slip?): label;
+    #: quantities ``measured`` and ``planned``; context ``source``
+    MEASURED_FAR_FROM_PLAN = "job.measured_far_from_plan"
+    #: the string as measured is longer than the hole: quantities
+    #: ``string_length`` and ``hole_depth``; context ``source``
+    LONGER_THAN_HOLE = "job.longer_than_hole"
+
+
 @dataclass
 class Job:
-    """The files of one job and what was read from them."""
+    """The files of one job and what was read from them (``warnings``: findings)."""
 
     plan_path: Path | None
     rig_path: Path | None
     plan: StringPlan
     rig: object
-    warnings: tuple = ()
+    warnings: tuple[Finding, ...] = ()
     path_name: str | None = None
     tally_path: Path | None = None
+
+
+def file_warning(message: str) -> Finding:
+    """A file reader's warning line as a finding."""
+    return Finding(JobCode.FILE_WARNING, Severity.WARNING, context={"message": message})
 
 
 def load_job(plan_path, rig_path, path_name: str | None = None,
@@ -123,7 +145,8 @@ def load_job(plan_path, rig_path, path_name: str | None = None,
                          f"no hoisting path named {path_name!r}; the rig has: "
                          + ", ".join(p.name for p in rig.paths))
     return Job(plan_path=plan_path, rig_path=rig_path, plan=read.plan, rig=rig,
-               warnings=tuple(read.warnings), path_name=path_name, tally_path=read.tally_path)
+               warnings=tuple(file_warning(w) for w in read.warnings), path_name=path_name,
+               tally_path=read.tally_path)
 
 
 def _collar_label(plan: StringPlan):
@@ -170,7 +193,7 @@ def read_run_state(plan_path):
     log = log_path_for(plan_path)
     if not Path(log).exists():
         return None
-    with RunLog(log, readonly=True) as rl:
+    with RunLog(log, snapshot=True) as rl:
         return rl.state()
 
 
@@ -222,22 +245,25 @@ def _changed(spec: JointSpec, measured_length=None, rejected=None) -> JointSpec:
 LENGTH_WARNING = (0.75, 1.25)
 
 
-def length_warnings(plan: StringPlan) -> list:
-    """One-line warnings on measured lengths far from the planned ones (a
-    typing slip such as 2006 for 20.06) and on a string longer than the hole."""
+def length_warnings(plan: StringPlan) -> list[Finding]:
+    """Warnings on measured lengths far from the planned ones (a typing slip
+    such as 2006 for 20.06) and on a string longer than the hole."""
     out = []
     src = plan.source or plan.name
     for j in plan.running_joints():
         if j.measured_length is not None and not (
                 LENGTH_WARNING[0] * j.length <= j.measured_length <= LENGTH_WARNING[1] * j.length):
-            out.append(f"{src}: {j.label}: measured {j.measured_length:.3f} m "
-                       f"({j.measured_length / 0.3048:.2f} ft) against {j.length:.3f} m "
-                       f"({j.length / 0.3048:.2f} ft) planned: check the tally")
+            out.append(Finding(JobCode.MEASURED_FAR_FROM_PLAN, Severity.WARNING, label=j.label,
+                               quantities={"measured": (j.measured_length, Kind.LENGTH),
+                                           "planned": (j.length, Kind.LENGTH)},
+                               context={"source": src}))
     total = sum(j.run_length for j in plan.running_joints())
     depth = plan.hole.depth
     if depth == depth and total > depth:
-        out.append(f"{src}: the string as measured ({total:.2f} m, {total / 0.3048:.1f} ft) is "
-                   f"longer than the hole ({depth:.2f} m, {depth / 0.3048:.1f} ft)")
+        out.append(Finding(JobCode.LONGER_THAN_HOLE, Severity.WARNING,
+                           quantities={"string_length": (total, Kind.LENGTH),
+                                       "hole_depth": (depth, Kind.DEPTH)},
+                           context={"source": src}))
     return out
 
 
@@ -249,7 +275,7 @@ def rated_joints(plan: StringPlan):
         raise InputError(plan.source or plan.name, "the string has no joints to run")
     src = plan.source or plan.name
     try:
-        return rate_joints(specs)
+        return rate_joints(specs, temperature=plan.hole.temperature)
     except InputError as err:
         where = err.where if src and err.where.startswith(src) else f"{src}: {err.where}"
         raise InputError(where, err.message + _material_file_note(err.message)) from None

@@ -26,6 +26,7 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
+from rigplan.engine.hoisting import LINES_RANGE as _LINES, SHEAVE_FACTOR_RANGE as _SHEAVE
 from rigplan.errors import InputError
 from rigplan.files import units
 
@@ -151,6 +152,9 @@ RANGES = _ranges(
     Range("joint_length", "a joint length", "length", 0.1, 30.0,
           why="a pup joint or shoe is rarely under 0.3 m and casing range 3 is 12-14 m "
               "(API 5CT length ranges, from memory); outside is a slip of the tape or a unit"),
+    Range("screen_depth_tolerance", "a screen depth tolerance", "length", 0.0, 30.0,
+          why="how far a screen interval may land from its planned depth before a warning; "
+              "more than five joints (about 100 ft) is no longer a check"),
     # -- diameters and walls [m] ----------------------------------------------
     Range("diameter", "a diameter", "diameter", 0.005, 3.0,
           why="from small tubing to the largest bored shafts; a 60 in casing is 1.52 m"),
@@ -181,13 +185,15 @@ RANGES = _ranges(
           lo_inclusive=False,
           why="above zero and below about 6,850 lb/ft, far heavier than any casing"),
     # -- plain numbers [-] --------------------------------------------------------
-    Range("lines", "a whole number of lines strung", "count", 1, 24,
-          why="the largest drilling blocks reeve 14 to 16 lines; more cannot be strung"),
-    Range("sheave_factor", "a sheave factor", "dimensionless", 1.0, 1.25,
-          why="1.04 for roller bearings, about 1.08 for plain bearings (API RP 9B); "
-              "a sheave does not add 25 % of line pull"),
-    Range("rope_design_factor", "a rope design factor", "dimensionless", 1.0, 10.0,
-          why="codes ask 2 to 5; below 1 the rope would be loaded past its breaking force"),
+    Range("lines", "a whole number of lines strung", "count", _LINES[0], _LINES[1],
+          why="the block formula's range in rigplan.engine.hoisting: drilling blocks reeve "
+              "up to 14 or 16 lines; beyond 24 is a typing error and K^n overflows"),
+    Range("sheave_factor", "a sheave factor", "dimensionless", _SHEAVE[0], _SHEAVE[1],
+          why="1.04 for roller bearings, about 1.09 for plain bearings (API RP 9B, from "
+              "memory); rigplan.engine.hoisting takes more than 1.2 as a typing error"),
+    Range("rope_design_factor", "a rope design factor", "dimensionless", 1.0, 20.0,
+          why="below 1 the line would work above its breaking force; over 20 is a typing "
+              "error (codes ask 2 to 5)"),
     Range("dynamic_factor", "a dynamic factor", "dimensionless", 1.0, 3.0,
           why="1.0 (static) to about 2 for shock loads; above 3 is a slip"),
     Range("design_factor", "a design factor", "dimensionless", 1.0, 10.0,

@@ -11,9 +11,9 @@ import math
 
 import numpy as np
 
-from rigplan import CAUTION
-from rigplan.engine.planner import LANDS_FLOATED, LANDS_OPEN, LANDS_STAGED, closure_name
-from rigplan.files import units as U
+from rigplan.engine.findings import Kind, Verdict
+from rigplan.present import wording as W
+from rigplan.present.wording import CAUTION, closure_name, percent
 
 JSON_UNITS = "SI base units: m, N, Pa, kg/m3, m3; margins and utilizations are fractions"
 
@@ -26,59 +26,17 @@ def _f(x):
     return x if math.isfinite(x) else None
 
 
-def next_action(landing, system: str = "si") -> str:
-    """The crew's next instruction in words (from the chosen plan)."""
-    if landing.verdict == LANDS_OPEN:
-        return "run open-ended: the hole fluid fills the pipe through the shoe"
-    if landing.verdict == LANDS_STAGED and landing.stages is not None:
-        s = landing.stages
-        return (f"run joints 1-{s.split} on the landing string, release with its top at "
-                f"{U.format(s.release_depth, 'length', system, 1)}, then run the rest")
-    if landing.verdict == "cannot confirm":
-        parts = "; ".join(landing.unrated[:3]) + (" ..." if len(landing.unrated) > 3 else "")
-        return f"enter the maker's ratings ({parts}), then check again"
-    opt = landing.best_float
-    if opt is None:
-        return "no plan lands this string: see the reasons"
-    sch = opt.schedule
-    words = [f"{closure_name(opt.closure)}: fill each joint to the top through joint "
-             f"{sch.fill_to_top_through}, then stop filling"]
-    for t in sch.top_ups:
-        words.append(f"top up {U.format(t.volume, 'volume', system, 0)} at joint {t.joint}")
-    return "; ".join(words)
-
-
-def step_actions(landing, system: str = "si") -> list:
-    """What the crew does at each running step, in words (from the plan)."""
-    n = landing.joints.n
-    acts = [""] * n
-    if landing.verdict == LANDS_STAGED and landing.stages is not None:
-        p = landing.stages.split
-        acts[p - 1] = "make up the landing string, lower and release stage 1"
-        if p < n:
-            acts[p] = "stage 2: first joint"
-        return acts
-    opt = landing.best_float
-    if opt is None or landing.chosen.closure.is_open:
-        return acts
-    m = opt.closure.valve_joint or 0
-    sch = opt.schedule
-    for k in range(n):
-        if k < m:
-            acts[k] = "shoe track: fills from the hole"
-        elif k < sch.fill_to_top_through:
-            acts[k] = "fill to the top"
-        elif k == sch.fill_to_top_through:
-            acts[k] = "stop filling"
-    if m == 0 or m < n:
-        acts[m] = ("float collar on this joint's bottom; " if m else "") + acts[m]
-    for t in sch.top_ups:
-        acts[t.joint - 1] = f"top up {U.format(t.volume, 'volume', system, 0)}"
-    return acts
+def _texts_and_codes(findings, unrated=()):
+    lines = W.finding_lines(findings, "si", unrated)
+    return [t for _, t in lines], [c for c, _ in lines]
 
 
 def plan_dict(landing, plan=None, warnings=(), rig_name: str = "") -> dict:
-    """One JSON object for a plan, all values SI (see README, JSON keys)."""
+    """One JSON object for a plan, all values SI (see README, JSON keys).
+
+    Every list of findings (``reasons``, ``notes``, ``warnings``,
+    ``unrated``) has its codes beside it (``reason_codes``...), one per line.
+    """
     j = landing.joints
     chk = landing.chosen
     loads = chk.loads
@@ -89,12 +47,16 @@ def plan_dict(landing, plan=None, warnings=(), rig_name: str = "") -> dict:
     steps = [{
         "joint": k + 1, "label": j.label[k], "shoe_depth": _f(loads.shoe_depth[k]),
         "hook_load": _f(hook[k]), "string_load": _f(loads.string_load[k]),
-        "capacity": _f(hook_limit), "margin": _f(chk.capacity_margin[k]),
+        "hook_limit": _f(hook_limit), "margin": _f(chk.capacity_margin[k]),
         "fill_level": _f(fill_level[k]),
     } for k in range(n)]
     shoe = loads.shoe_depth[-1]
     top_depth = shoe - np.cumsum(j.length)
     landed = landing.landed
+    reasons, reason_codes = _texts_and_codes(landing.reasons, landing.unrated)
+    notes, note_codes = _texts_and_codes(landing.notes)
+    warns, warning_codes = _texts_and_codes(warnings)
+    unrated, unrated_codes = _texts_and_codes(landing.unrated)
     tcap = np.where(np.isnan(j.connection_rating) | np.isnan(j.body_rating), np.nan,
                     np.fmin(j.connection_rating, j.body_rating))
     connections = [{
@@ -104,8 +66,8 @@ def plan_dict(landing, plan=None, warnings=(), rig_name: str = "") -> dict:
         "capacity": _f(tcap[i]), "connection_rating": _f(j.connection_rating[i]),
         "body_rating": _f(j.body_rating[i]),
         "utilization": _f(chk.tension_utilization[i]),
-        "landed_true_force": _f(landed.true_force_top[i]) if landed is not None else None,
-        "landed_effective_tension": _f(landed.effective_top[i]) if landed is not None else None,
+        "landed_true_force": _f(landed.true_force_top[i]),
+        "landed_effective_tension": _f(landed.effective_top[i]),
     } for i in range(n)]
     joints = [{
         "joint": i + 1, "label": j.label[i], "kind": j.kind[i],
@@ -119,41 +81,38 @@ def plan_dict(landing, plan=None, warnings=(), rig_name: str = "") -> dict:
         "collapse_utilization": _f(chk.collapse_utilization[i]),
         "burst_rating": _f(j.burst_rating[i]), "max_burst_load": _f(loads.burst_max[i]),
         "burst_utilization": _f(chk.burst_utilization[i]),
+        "rating_basis": _rating_basis(j, i),
+        "rating_flags": [str(f.code) for f in j.findings if f.joint == i + 1],
     } for i in range(n)]
     gov = landing.governing
     out = {
-        "verdict": landing.verdict,
+        "verdict": str(landing.verdict),
         "lands": landing.lands,
         "governing": None if gov is None else {
-            "name": gov.name, "where": gov.where, "load": _f(gov.load),
+            "name": str(gov.name), "where": W.limit_place(gov), "load": _f(gov.load),
             "capacity": _f(gov.capacity), "margin": _f(gov.margin),
-            "kind": getattr(gov, "kind", "force")},
+            "kind": str(gov.kind), "joint": gov.joint, "step": gov.step},
         "units": JSON_UNITS,
         "plan": None if plan is None else {
             "name": plan.name, "well": plan.well, "site": plan.site,
             "hole_fluid_density": _f(plan.hole.fluid_density),
             "hole_fluid_level": _f(plan.hole.fluid_level), "hole_depth": _f(plan.hole.depth)},
-        "rig": {
-            "name": rig_name, "path": landing.path.path,
-            "string_limit": _f(landing.path.string_limit), "hook_limit": _f(hook_limit),
-            "dead_load": _f(landing.dead_load), "governing_component": landing.path.governing,
-            "components": [{"name": c[0], "kind": c[1], "rating_at_hook": _f(c[2]),
-                            "allowed_string_load": _f(c[3])} for c in landing.path.components],
-            "unrated_components": list(landing.path.unrated_on_path),
-            "parts_not_on_path": [c for c in landing.path.unrated
-                                  if c not in landing.path.unrated_on_path]},
-        "closure": closure_name(chk.closure),
+        "rig": {"name": rig_name, **chain_dict(landing.path)},
+        "closure": closure_name(chk.closure, landing.joints.label),
         "switch_joint": landing.switch_joint,
-        "next_action": next_action(landing),
+        "next_action": W.next_action(landing, "si"),
         "steps": steps,
         "connections": connections,
         "joints": joints,
         "neutral_point": _f(landing.neutral_point),
+        "buckling": buckling_dict(landing),
         "fill_window": None, "fill_schedule": None, "float_options": [],
         "stages": None, "grouting": None,
-        "unrated": list(landing.unrated), "reasons": list(landing.reasons),
-        "notes": list(landing.notes),
-        "warnings": list(warnings), "cautions": list(landing.cautions),
+        "unrated": unrated, "unrated_codes": unrated_codes,
+        "reasons": reasons, "reason_codes": reason_codes,
+        "notes": notes, "note_codes": note_codes,
+        "warnings": warns, "warning_codes": warning_codes,
+        "cautions": list(W.cautions(landing)),
     }
     opt = landing.best_float
     if opt is not None:
@@ -165,16 +124,18 @@ def plan_dict(landing, plan=None, warnings=(), rig_name: str = "") -> dict:
             "volume_to_add_min": _f(add_lo[k]), "volume_to_add_max": _f(add_hi[k]),
             "joint": int(w.joint[k]), "min_fill_level": _f(w.min_fill_level[k]),
             "max_fill_level": _f(w.max_fill_level[k]), "min_volume": _f(w.min_volume[k]),
-            "max_volume": _f(w.max_volume[k]), "closing_limit": w.closing_limit[k],
-            "empty_limit": w.empty_limit[k], "full_limit": w.full_limit[k],
+            "max_volume": _f(w.max_volume[k]), "closing_limit": str(w.closing_limit[k]),
+            "empty_limit": str(w.empty_limit[k]), "full_limit": str(w.full_limit[k]),
             "feasible": bool(w.feasible[k])} for k in range(n)]
         s = opt.schedule
         out["fill_schedule"] = {
-            "closure": closure_name(opt.closure), "valve_joint": opt.closure.valve_joint,
+            "closure": closure_name(opt.closure, landing.joints.label), "valve_joint": opt.closure.valve_joint,
             "fill_density": _f(opt.fill_density),
             "fill_to_top_through": s.fill_to_top_through,
-            "top_ups": [{"joint": t.joint, "volume": _f(t.volume),
+            "top_ups": [{"joint": t.joint, "before_joint": t.before_joint or None,
+                         "volume": _f(t.volume),
                          "level_after": _f(t.level_after)} for t in s.top_ups],
+            "lowered_below_window": list(s.lowered_below_window),
             "least_margin": _f(s.least_margin), "least_margin_step": s.least_margin_step,
             "final_fill_volume": _f(s.added_volume),
             "steps": [{"joint": k + 1, "fill_level": _f(s.fill_level[k]),
@@ -186,13 +147,13 @@ def plan_dict(landing, plan=None, warnings=(), rig_name: str = "") -> dict:
         }
     for o in landing.float_options:
         out["float_options"].append({
-            "closure": closure_name(o.closure), "valve_joint": o.closure.valve_joint,
+            "closure": closure_name(o.closure, landing.joints.label), "valve_joint": o.closure.valve_joint,
             "fill_density": _f(o.fill_density), "lands": o.lands,
             "top_ups": len(o.schedule.top_ups) if o.schedule else None,
             "fill_to_top_through": o.schedule.fill_to_top_through if o.schedule else None,
             "least_margin": _f(o.schedule.least_margin)
             if o.schedule and o.schedule.feasible else None,
-            "reason": o.reason})
+            "reason": W.finding_text(o.reason, "si"), "reason_code": W.finding_code(o.reason)})
     st = landing.stages
     if st is not None:
         out["stages"] = {
@@ -200,47 +161,162 @@ def plan_dict(landing, plan=None, warnings=(), rig_name: str = "") -> dict:
             "stage1_peak_string_load": _f(st.stage1_peak),
             "landing_string_peak": _f(st.landing_string_peak),
             "stage2_peak_string_load": _f(st.stage2_peak),
-            "least_margin": _f(st.least_margin), "governing": st.governing,
-            "feasible": st.feasible, "reason": st.reason}
+            "least_margin": _f(st.least_margin), "governing": str(st.governing),
+            "feasible": st.feasible, "reason": W.finding_text(st.reason, "si"),
+            "reason_code": W.finding_code(st.reason)}
     g = landing.grouting
     if g is not None:
         out["grouting"] = grouting_dict(g)
     return out
 
 
+def buckling_dict(landing) -> dict | None:
+    """JSON view of the buckling check below the neutral point (None when
+    nothing is set down); per joint only those in effective compression."""
+    b = landing.buckling
+    if b is None:
+        return None
+    j = landing.joints
+    rows = [{"joint": i + 1, "label": j.label[i], "mode": W.BUCKLING_MODES[int(b.mode[i])],
+             "compression": _f(b.compression[i]), "sinusoidal_load": _f(b.sinusoidal_load[i]),
+             "helical_load": _f(b.helical_load[i]), "clearance": _f(b.clearance[i]),
+             "axial_stress": _f(b.axial_stress[i]), "bending_stress": _f(b.bending_stress[i]),
+             "stress_utilization": _f(b.stress_utilization[i])}
+            for i in range(len(b.compression)) if b.compression[i] > 0]
+    return {"set_down": _f(landing.settings.set_down_weight),
+            "compressed_length": _f(b.compressed_length),
+            "sinusoidal_length": _f(b.sinusoidal_length),
+            "helical_length": _f(b.helical_length), "max_set_down": _f(b.max_set_down),
+            "design_factor": _f(b.design_factor), "joints": rows}
+
+
+def chain_dict(chain) -> dict:
+    """JSON view of a hoisting chain (:class:`rigplan.engine.hoisting.HoistChain`):
+    every figure under the key of its :class:`~rigplan.engine.hoisting.ChainFigure`."""
+    from rigplan.engine.hoisting import ChainFigure as F
+    return {
+        "path": chain.path, F.STRING_LIMIT.key: _f(chain.string_limit),
+        F.HOOK_LIMIT.key: _f(chain.hook_limit), F.DEAD_LOAD.key: _f(chain.dead_load),
+        "governing_component": chain.governing,
+        "governing_case": None if chain.governing_case is None else str(chain.governing_case),
+        "lines": chain.lines, "sheave_factor": _f(chain.sheave_factor),
+        "block_efficiency": _f(chain.block_efficiency),
+        "cases": [{"case": str(c.code), "factor": _f(c.factor), "allowance": _f(c.allowance),
+                   "source": c.source} for c in chain.cases],
+        "components": [{"name": p.name, "kind": p.kind, "basis": p.basis,
+                        **{f.key: _f(getattr(p, f.key)) for f in F
+                           if f not in (F.HOOK_LIMIT, F.DEAD_LOAD)},
+                        "governing_case": str(p.governing_case)} for p in chain.parts],
+        "unrated_components": list(chain.unrated_on_path),
+        "parts_not_on_path": [c for c in chain.unrated if c not in chain.unrated_on_path],
+    }
+
+
+def chain_table(chain, system: str, title: str = ""):
+    """The hoisting chain as a rich table: each part's rating, at the hook,
+    the gear counted, both load cases and the string limit, with the cases'
+    sources and the hook limit in the caption."""
+    from rich.table import Table
+    from rich.text import Text
+    from rigplan.engine.hoisting import ChainFigure as F, LoadCaseCode
+    unit = W.unit("force", system)
+    t = Table(title=Text(title or f"Hoisting chain: {chain.path}", style="bold"),
+              title_justify="left", expand=False)
+    t.add_column(Text(f"[{unit}]"), no_wrap=True)
+
+    def n(v):
+        return _q(v, "force", system, 0).removesuffix(" " + unit)
+
+    for p in chain.parts:
+        t.add_column(p.name + (f"\ngoverns ({p.governing_case})" if p.name == chain.governing
+                               else ""), justify="right",
+                     style="bold" if p.name == chain.governing else None)
+    for u in chain.unrated:
+        t.add_column(f"{u}\nunrated, not counted", justify="right")
+    blank = [""] * len(chain.unrated)
+    t.add_row("basis", *(p.basis for p in chain.parts), *blank)
+    for fig in (F.RATING, F.TO_HOOK, F.RATED_AT_HOOK, F.GEAR_COUNTED, F.SHOCK_LIMIT,
+                F.OVERPULL_LIMIT, F.STRING_LIMIT):
+        cells = [f"{getattr(p, fig.key):.3f}" if fig == F.TO_HOOK else n(getattr(p, fig.key))
+                 for p in chain.parts]
+        t.add_row(str(fig), *cells, *blank)
+    cases = {c.code: c for c in chain.cases}
+    words = []
+    if LoadCaseCode.SHOCK in cases:
+        c = cases[LoadCaseCode.SHOCK]
+        words.append(f"shock: {c.factor:g} x (string + gear counted) <= rated at hook "
+                     f"({c.source})")
+    if LoadCaseCode.OVERPULL in cases:
+        c = cases[LoadCaseCode.OVERPULL]
+        words.append(f"overpull: string + gear counted + {_q(c.allowance, 'force', system, 0)} "
+                     f"<= rated at hook ({c.source})")
+    words.append(f"{chain.lines} line(s), block efficiency {chain.block_efficiency:.3f} "
+                 f"(sheave factor {chain.sheave_factor:g}, API RP 9B)")
+    words.append(f"{F.STRING_LIMIT} {_q(chain.string_limit, 'force', system, 0)} + "
+                 f"{F.DEAD_LOAD} {_q(chain.dead_load, 'force', system, 0)} = "
+                 f"{F.HOOK_LIMIT} {_q(chain.hook_limit, 'force', system, 0)}")
+    t.caption = Text("; ".join(words))
+    t.caption_justify = "left"
+    return t
+
+
 def grouting_dict(g) -> dict:
-    """JSON view of a grouting plan (attributes read defensively)."""
-    d = {}
-    for key in ("full_column_ok", "max_single_lift", "feasible", "reason", "n_lifts"):
-        if hasattr(g, key):
-            v = getattr(g, key)
-            d[key] = _f(v) if isinstance(v, float) else v
-    if hasattr(g, "lifts"):
-        d["lifts"] = [{"base_height": _f(a), "top_height": _f(b)} for a, b in g.lifts]
-    if hasattr(g, "utilization"):
-        d["utilization"] = [_f(u) for u in np.asarray(g.utilization, dtype=float)]
-    if hasattr(g, "warnings"):
-        d["warnings"] = list(g.warnings)
-    if hasattr(g, "unrated"):
-        d["unrated"] = list(g.unrated)
-    return d
+    """JSON view of a grouting plan (:class:`rigplan.engine.grouting.GroutPlan`)."""
+    warns, codes = _texts_and_codes(g.warnings)
+    return {
+        "full_column_ok": g.full_column_ok, "max_single_lift": _f(g.max_single_lift),
+        "feasible": g.feasible, "reason": W.finding_text(g.reason, "si"),
+        "reason_code": W.finding_code(g.reason), "n_lifts": g.n_lifts,
+        "lifts": [{"base_height": _f(a), "top_height": _f(b)} for a, b in g.lifts],
+        "utilization": [_f(u) for u in np.asarray(g.utilization, dtype=float)],
+        "warnings": warns, "warning_codes": codes, "unrated": list(g.unrated),
+    }
 
 
 # ---------------------------------------------------------------------------
 # text
 
+def _rating_basis(j, i) -> dict:
+    """What joint ``i``'s collapse, burst and tension ratings rest on."""
+    def pick(basis):
+        return basis[i] if basis else None
+    return {"collapse": pick(j.collapse_basis), "burst": pick(j.burst_basis),
+            "tension": pick(j.tension_basis)}
+
+
+#: Short labels of the rating bases for the per-joint table.
+_BASIS_LABEL = {"specified wall": "specified", "minimum wall": "minimum", "measured wall": "measured",
+                "maker's figure": "maker", "unrated": "-"}
+
+
+def _rating_flag_lines(joints, system) -> list:
+    """One line per rating finding (measured wall, ellipticity, temperature)."""
+    out = []
+    for f in joints.findings:
+        q = f.quantities
+        if "measured_wall" in q:
+            what = (f"measured wall {_q(f.value('measured_wall'), 'diameter', system, 3)} is under "
+                    f"the standard's minimum {_q(f.value('minimum_wall'), 'diameter', system, 3)}: "
+                    "rated on the measured wall")
+        elif "ellipticity" in q:
+            what = (f"measured ellipticity {100 * f.value('ellipticity'):.2f} % is above the "
+                    f"{100 * f.value('assumed_ellipticity'):.2f} % the plan assumed: rated at the "
+                    "measured one")
+        elif "temperature" in q:
+            what = (f"{f.value('temperature'):.0f} C is above its temperature-derating table: "
+                    "pressure and collapse unrated")
+        else:
+            what = str(f.code)
+        out.append(f"joint {f.joint} ({f.label}): {what}")
+    return out
+
+
 def _pct(x) -> str:
-    if x is None or not np.isfinite(x):
-        return "unrated"
-    return f"{100 * x:.1f} %"
+    return percent(x, "unrated")
 
 
-def _q(value, kind, system, digits=None, unrated="unrated"):
-    if value is None or (isinstance(value, float) and math.isnan(value)):
-        return unrated
-    if kind == "force" and system == "si" and digits == 0 and abs(value) < 100e3:
-        digits = 1          # small loads in kN would round to nothing
-    return U.format(value, kind, system, digits)
+def _q(value, kind, system, digits=None):
+    return W.fmt(value, kind, system, digits, missing="unrated")
 
 
 def text_renderables(landing, plan=None, system: str = "us", warnings=(), rig_name="",
@@ -261,34 +337,35 @@ def text_renderables(landing, plan=None, system: str = "us", warnings=(), rig_na
         where = ", ".join(x for x in (plan.well, plan.site) if x)
         head.append(f"{plan.name}" + (f"  ({where})" if where else "") + "\n", "bold")
     head.append("Verdict: ", "bold")
-    head.append(landing.verdict.upper(), f"bold {colour}")
-    gov = landing.governing
-    if gov is not None:
-        head.append(f"\nGoverning: {gov.name} at {gov.where}, margin {_pct(gov.margin)}")
+    head.append(W.verdict_text(landing), f"bold {colour}")
+    if landing.governing is not None:
+        head.append("\n" + W.governing_text(landing, system))
     cap = landing.path
-    head.append(f"\nRig: {rig_name}, path '{cap.path}': hook limit "
-                f"{_q(cap.hook_limit, 'force', system, 0)} (string {_q(cap.string_limit, 'force', system, 0)}"
-                f" after {_q(landing.dead_load, 'force', system, 0)} dead load), governed by {cap.governing}")
-    head.append(f"\nNext action: {next_action(landing, system)}")
+    head.append(f"\nRig: {rig_name}. " + W.path_text(landing, system))
+    head.append(f"\nNext action: {W.next_action(landing, system)}")
     if landing.switch_joint:
         head.append(f"\nOpen-ended the string load passes the limit at joint "
                     f"{landing.switch_joint}: floating must begin before it")
     if np.isfinite(landing.neutral_point):
         head.append(f"\nNeutral point when landed with the set-down weight: "
                     f"{_q(landing.neutral_point, 'length', system, 1)}")
+    if landing.buckling is not None:
+        head.append("\n" + W.set_down_text(landing, system))
     out.append(Panel(head, title="rigplan", expand=False))
 
-    for r in landing.reasons:
+    out.append(chain_table(cap, system))
+    for _, r in W.finding_lines(landing.reasons, system, landing.unrated):
         out.append(Text(f"  - {r}"))
-    for r in landing.notes:
+    for _, r in W.finding_lines(landing.notes, system):
         out.append(Text(f"  note: {r}", "cyan"))
-    for w in warnings:
+    for _, w in W.finding_lines(warnings, system):
         out.append(Text(f"  warning: {w}", "yellow"))
 
     opt = landing.best_float
-    if opt is not None and landing.verdict in (LANDS_FLOATED, LANDS_OPEN, "cannot confirm"):
+    if opt is not None and landing.verdict in (Verdict.LANDS_FLOATED, Verdict.LANDS_OPEN,
+                                               Verdict.CANNOT_CONFIRM):
         s = opt.schedule
-        t = Table(title=f"Fill plan: {closure_name(opt.closure)}, fill fluid "
+        t = Table(title=f"Fill plan: {closure_name(opt.closure, landing.joints.label)}, fill fluid "
                         f"{_q(opt.fill_density, 'density', system, 2)}")
         t.add_column("action")
         t.add_column("joint", justify="right")
@@ -300,7 +377,7 @@ def text_renderables(landing, plan=None, system: str = "us", warnings=(), rig_na
                       _q(tu.level_after, "length", system, 1))
         if opt.check is not None:
             g = min(opt.check.limits, key=lambda lim: lim.margin)
-            t.caption = f"least margin kept {_pct(g.margin)}: {g.name} at {g.where}"
+            t.caption = f"least margin kept {_pct(g.margin)}: {g.name} at {W.limit_place(g)}"
         else:
             t.caption = f"least margin kept {_pct(s.least_margin)} at step {s.least_margin_step}"
         out.append(t)
@@ -309,12 +386,12 @@ def text_renderables(landing, plan=None, system: str = "us", warnings=(), rig_na
             for c in ("equipment", "fill", "lands", "top-ups", "least margin", "why not"):
                 ft.add_column(c)
             for o in landing.float_options:
-                ft.add_row(closure_name(o.closure), _q(o.fill_density, "density", system, 2),
+                ft.add_row(closure_name(o.closure, landing.joints.label), _q(o.fill_density, "density", system, 2),
                            "yes" if o.lands else "no",
                            str(len(o.schedule.top_ups)) if o.schedule else "-",
                            _pct(o.schedule.least_margin) if o.schedule and o.schedule.feasible
                            else "-",
-                           o.reason)
+                           W.finding_text(o.reason, system))
             out.append(ft)
     st = landing.stages
     if st is not None:
@@ -327,14 +404,14 @@ def text_renderables(landing, plan=None, system: str = "us", warnings=(), rig_na
         t.add_row("landing string peak tension", _q(st.landing_string_peak, "force", system, 0))
         t.add_row("stage 2 peak string load", _q(st.stage2_peak, "force", system, 0))
         t.add_row("least margin", f"{_pct(st.least_margin)} ({st.governing})")
-        if st.reason:
-            t.add_row("why not", st.reason)
+        if st.reason is not None:
+            t.add_row("why not", W.finding_text(st.reason, system))
         out.append(t)
 
-    st_t = Table(title=f"Running steps ({closure_name(chk.closure)})")
-    for c in ("joint", "shoe depth", "fill level", "hook load", "capacity", "margin"):
+    st_t = Table(title=f"Running steps ({closure_name(chk.closure, landing.joints.label)})")
+    for c in ("joint", "shoe depth", "fill level", "hook load", "hook limit", "margin"):
         st_t.add_column(c, justify="right")
-    actions = step_actions(landing, system)
+    actions = W.step_actions(landing, system)
     st_t.add_column("crew action")
     hook = landing.hook_load
     rows = range(n) if all_steps or n <= 40 else list(range(10)) + list(range(n - 10, n))
@@ -355,37 +432,38 @@ def text_renderables(landing, plan=None, system: str = "us", warnings=(), rig_na
                         f"{loads.envelope_step[i]}, utilization {_pct(tu[i])} "
                         f"(design factor {landing.settings.design.tension})"))
     jt = Table(title="Per joint: tension, collapse and burst utilization (design factors applied)",
-               caption="Ratings are on the minimum wall (the specified wall less the standard's "
-                       "under-tolerance) unless a measured wall is given, so API-grade figures "
-                       "sit below the API tables, which use the specified wall.")
+               caption="Rated on: API grades on the specified wall (API TR 5C3); other steel "
+                       "and PVC on the minimum wall the standard allows; a measured wall or the "
+                       "maker's figure where given. PVC derated for the job temperature.")
     for c in ("joint", "kind", "max tension", "tension", "collapse load", "collapse rating",
-              "collapse", "burst"):
+              "rated on", "collapse", "burst"):
         jt.add_column(c, justify="right")
     for i in range(n):
         jt.add_row(f"{i + 1} {j.label[i]}", j.kind[i],
                    _q(loads.envelope_max[i], "force", system, 0), _pct(tu[i]),
                    _q(loads.collapse_max[i], "pressure", system, 0),
                    _q(j.collapse_rating[i], "pressure", system, 0),
+                   _BASIS_LABEL.get(j.collapse_basis[i], "") if j.collapse_basis else "",
                    _pct(chk.collapse_utilization[i]) if loads.collapse_max[i] > 0 or
                    np.isfinite(chk.collapse_utilization[i]) else "unrated",
                    _pct(chk.burst_utilization[i]))
     out.append(jt)
+    for line in _rating_flag_lines(j, system):
+        out.append(Text(f"Rack measurement: {line}", "yellow"))
     g = landing.grouting
     if g is not None:
-        gd = grouting_dict(g)
         text = Text("Grouting: ")
-        if gd.get("full_column_ok"):
+        if g.full_column_ok:
             text.append("the planned column can be placed in one lift")
         else:
-            lifts = gd.get("lifts", [])
-            text.append(f"place in {len(lifts)} lifts: " + ", ".join(
-                f"{_q(a['base_height'], 'length', system, 1)} to "
-                f"{_q(a['top_height'], 'length', system, 1)} above the shoe" for a in lifts))
-            if gd.get("reason"):
-                text.append(f" ({gd['reason']})")
+            text.append(f"place in {len(g.lifts)} lifts: " + ", ".join(
+                f"{_q(a, 'length', system, 1)} to {_q(b, 'length', system, 1)} above the shoe"
+                for a, b in g.lifts))
+            if g.reason is not None:
+                text.append(f" ({W.finding_text(g.reason, system)})")
         out.append(text)
     if landing.unrated:
-        out.append(Text("Unrated (enter the maker's rating): " + "; ".join(landing.unrated[:12]),
+        out.append(Text("Unrated (enter the maker's rating): " + W.unrated_text(landing, system, 12),
                         "yellow"))
     out.append(Text(f"CAUTION: {CAUTION}", "bold yellow"))
     return out

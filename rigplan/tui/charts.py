@@ -19,7 +19,7 @@ from textual.containers import Horizontal, Vertical
 from textual.widgets import Static
 from textual_plot import HiResMode, LegendLocation, NumericAxisFormatter, PlotWidget
 
-from rigplan.files import units as U
+from rigplan.present import wording as P
 
 
 class DepthFormatter(NumericAxisFormatter):
@@ -57,12 +57,12 @@ class ChartsView(Vertical):
         if lp is None:
             note.update(f"No plan to chart: {session.error}")
             return
-        f_unit = U.unit_label("force", sys_)
-        l_unit = U.unit_label("length", sys_)
-        shoe = U.to_display(np.asarray(lp.chosen.loads.shoe_depth, dtype=float), "length", sys_)
+        f_unit = P.unit("force", sys_)
+        l_unit = P.unit("length", sys_)
+        shoe = P.to_display(np.asarray(lp.chosen.loads.shoe_depth, dtype=float), "length", sys_)
         loads = session.step_hook_loads()
         staged = loads is None
-        load = U.to_display(np.asarray(lp.hook_load if staged else loads, dtype=float),
+        load = P.to_display(np.asarray(lp.hook_load if staged else loads, dtype=float),
                             "force", sys_)
 
         hook.set_xlabel(escape(f"hook load [{f_unit}]"))
@@ -71,12 +71,12 @@ class ChartsView(Vertical):
         hook.plot(load, -shoe, line_style="grey50" if staged else "bright_cyan",
                   hires_mode=HiResMode.BRAILLE,
                   label="one-piece run (not the staged plan)" if staged else "planned hook load")
-        limit = float(U.to_display(lp.path.hook_limit, "force", sys_))
+        limit = float(P.to_display(lp.path.hook_limit, "force", sys_))
         if np.isfinite(limit):
             hook.add_v_line(limit, line_style="bright_red", label=f"hook limit ({lp.path.path})")
         obs = [o for o in session.state.observations if 1 <= o.step <= len(shoe)]
         if obs:
-            hook.scatter([U.to_display(o.hook_load_n, "force", sys_) for o in obs],
+            hook.scatter([P.to_display(o.hook_load_n, "force", sys_) for o in obs],
                          [-shoe[o.step - 1] for o in obs], marker="x",
                          marker_style="bright_yellow", label="readings")
         hi = max(float(np.nanmax(load)), limit if np.isfinite(limit) else 0.0)
@@ -91,11 +91,11 @@ class ChartsView(Vertical):
         bf = lp.best_float
         if bf is not None:
             w = bf.window
-            fill.plot(steps, -U.to_display(np.asarray(w.min_fill_level, float), "length", sys_),
+            fill.plot(steps, -P.to_display(np.asarray(w.min_fill_level, float), "length", sys_),
                       line_style="green", hires_mode=HiResMode.BRAILLE, label="shallowest allowed")
-            fill.plot(steps, -U.to_display(np.asarray(w.max_fill_level, float), "length", sys_),
+            fill.plot(steps, -P.to_display(np.asarray(w.max_fill_level, float), "length", sys_),
                       line_style="bright_red", hires_mode=HiResMode.BRAILLE, label="deepest allowed")
-            fill.plot(steps, -U.to_display(np.asarray(bf.schedule.fill_level, float), "length", sys_),
+            fill.plot(steps, -P.to_display(np.asarray(bf.schedule.fill_level, float), "length", sys_),
                       line_style="bright_cyan", hires_mode=HiResMode.BRAILLE, label="planned level")
             fill.plot(steps, -shoe, line_style="grey50", label="shoe")
             fill.show_legend(LegendLocation.BOTTOMLEFT)
@@ -115,7 +115,7 @@ class ChartsView(Vertical):
         util.show_legend(LegendLocation.TOPRIGHT)
         unrated_t = int(np.isnan(t_u).sum())
         unrated_c = int(np.isnan(c_u).sum())
-        parts = [f"Verdict: {lp.verdict}"]
+        parts = [f"Verdict: {lp.verdict.value}"]
         if staged:
             parts.append("staged setting: the planner gives stage peaks, not a hook load per joint")
         if unrated_t or unrated_c:

@@ -12,7 +12,6 @@ from textual.app import ComposeResult
 from textual.containers import Horizontal, Vertical, VerticalScroll
 from textual.widgets import DataTable, Static
 
-from rigplan.files import units as U
 from rigplan.present import wording as P
 
 
@@ -27,7 +26,9 @@ class OverviewPane(VerticalScroll):
         yield Static("", id="fill-plan", classes="line", markup=False)
         yield Static("", id="float-line", classes="line", markup=False)
         yield Static("", id="switch-line", classes="line", markup=False)
+        yield Static("", id="set-down-line", classes="line", markup=False)
         yield Static("", id="progress", classes="line", markup=False)
+        yield Static("", id="landing", classes="line", markup=False)
         yield Static("", id="reasons", classes="line dim", markup=False)
         yield Static("", id="warnings", classes="line dim", markup=False)
 
@@ -41,7 +42,7 @@ class OverviewPane(VerticalScroll):
             verdict.add_class("bad")
             self.query_one("#governing", Static).update(f"The planner refused the input: {session.error}")
             for wid in ("#path-line", "#next-action", "#fill-plan", "#float-line",
-                        "#switch-line", "#reasons"):
+                        "#switch-line", "#set-down-line", "#reasons"):
                 self.query_one(wid, Static).update("")
         else:
             verdict.update(P.verdict_text(lp))
@@ -53,10 +54,8 @@ class OverviewPane(VerticalScroll):
             self.query_one("#fill-plan", Static).update(P.fill_plan_text(lp, sys_))
             self.query_one("#float-line", Static).update(P.float_text(lp, sys_))
             self.query_one("#switch-line", Static).update(P.switch_text(lp))
-            notes = (list(lp.reasons) + [f"note: {x}" for x in lp.notes]
-                     + [f"unrated: {u}" for u in lp.unrated[:8]])
-            if len(lp.unrated) > 8:
-                notes.append(f"... and {len(lp.unrated) - 8} more unrated parts")
+            self.query_one("#set-down-line", Static).update(P.set_down_text(lp, sys_))
+            notes = P.reason_lines(lp, sys_)
             self.query_one("#reasons", Static).update(
                 Text("\n".join(notes)) if notes else "")
         nxt = session.next_joint()
@@ -69,8 +68,16 @@ class OverviewPane(VerticalScroll):
             + ("   [plan edited, not saved: s on the String tab]" if session.dirty else ""))
         warnings = list(session.warnings) + [w for w in session.length_warnings
                                              if w not in session.warnings]
-        self.query_one("#warnings", Static).update(
-            Text("\n".join(warnings)) if warnings else "")
+        lines = [text for _, text in P.finding_lines(warnings, sys_)]
+        self.query_one("#warnings", Static).update(Text("\n".join(lines)) if lines else "")
+        show_landing(self.query_one("#landing", Static), session)
+
+
+def show_landing(box: Static, session) -> None:
+    """The landing picture (engine depths, present words) into ``box``."""
+    picture = session.landing_picture()
+    box.set_class(bool(picture.moved), "warning")
+    box.update(Text("\n".join(P.landing_lines(picture, session.units))))
 
 
 class _Grid(DataTable):
@@ -175,6 +182,7 @@ class RunningPane(Horizontal):
         with VerticalScroll(id="run-side"):
             yield Static("", id="run-summary", markup=False)
             yield Static("", id="weight-check", markup=False)
+            yield Static("", id="run-landing", markup=False)
 
     @property
     def table(self) -> _Grid:
@@ -197,6 +205,7 @@ class RunningPane(Horizontal):
         box = self.query_one("#weight-check", Static)
         box.set_class(bool(session.last_check and session.last_check.outside), "warning")
         box.update("\n".join((head,) + causes) if head else "")
+        show_landing(self.query_one("#run-landing", Static), session)
 
     def cursor_label(self):
         t = self.table
@@ -206,7 +215,8 @@ class RunningPane(Horizontal):
 
 
 class RigPane(VerticalScroll):
-    """Each hoisting path: components, ratings at the hook, allowed string load."""
+    """Each hoisting path's chain: every part's rating, at the hook, the gear
+    counted, the shock and overpull cases and the string limit."""
 
     def compose(self) -> ComposeResult:
         yield Static("", id="rig-view", markup=False)
@@ -214,23 +224,10 @@ class RigPane(VerticalScroll):
     def show(self, session) -> None:
         rig = session.rig
         parts = []
-        for name, in_use, governing, rows, unrated, (s_lim, h_lim) in P.rig_tables(session):
-            title = f"{name}{'  (in use)' if in_use else ''}"
-            t = Table(title=Text(title, style="bold"), title_justify="left", expand=False)
-            unit = U.unit_label("force", session.units)
-            t.add_column(Text("Component"))
-            t.add_column(Text(f"Rating at hook [{unit}]"), justify="right")
-            t.add_column(Text(f"Allowed string load [{unit}]"), justify="right")
-            t.add_column(Text(""))
-            for comp, rating, allowed, gov in rows:
-                t.add_row(Text(comp), rating, allowed,
-                          "governs" if gov else "", style="bold" if gov else None)
-            for u in unrated:
-                t.add_row(Text(u), "unrated", "not counted", "")
-            t.caption = Text(f"string limit {s_lim}, hook limit {h_lim}; governed by "
-                             f"{governing or 'nothing rated'}")
-            t.caption_justify = "left"
-            parts.append(t)
+        from rigplan.present.report import chain_table
+        for chain, in_use in P.rig_chains(session):
+            parts.append(chain_table(chain, session.units,
+                                     f"{chain.path}{'  (in use)' if in_use else ''}"))
         ls = rig.landing_string
         from rich.console import Group
         head = Text(f"Rig: {rig.name}" + (f"   {rig.notes}" if rig.notes else ""), style="bold")

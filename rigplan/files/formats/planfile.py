@@ -20,6 +20,10 @@ weight (w)::
     fluid_level = "0 ft"         # L, depth to the annulus fluid top, default 0
     depth = "1150 ft"            # L, drilled depth, optional
     diameter = "22 in"           # D, bit diameter, optional
+    temperature = "55 F"         # job temperature of the casing in the hole
+                                 # ("55 F", "13 C"; a bare number in the file's
+                                 # units: F for "us", C for "si"), default 73 F
+                                 # (23 C), -10 to 100 C; derates PVC ratings
 
     [[section]]                  # the string in sections, listed in running
     kind = "blank"               # order: the first goes in the hole first
@@ -59,6 +63,9 @@ weight (w)::
     min_running_weight = "..."   # F, default 0
     set_down_weight = "..."      # F, default 0
     collar_candidates = [1, 2, 3]  # float collar positions to compare
+    screen_depth_tolerance = "2 ft"  # L, how far a screen interval may land
+                                 # from its planned depth before a warning,
+                                 # 0 to 30 m (100 ft), default 2 ft
 
     [design_factors]             # optional, plain numbers, 1 to 10
     tension = 1.6                # defaults from rigplan.engine.stringmodel.DesignFactors
@@ -70,9 +77,13 @@ weight (w)::
     height = "200 ft"            # L, column above the shoe, required
     inside_density = "8.34 ppg"  # rho, default 998.2 kg/m3
     inside_level = "0 ft"        # L, depth to the inside fluid top, default 0
+    temperature_rise = "30 F"    # rise of the casing temperature while the grout
+                                 # sets (heat of hydration), a difference ("30 F",
+                                 # "17 C", "17 K"), default 0, 0 to 60 K; the
+                                 # grouting check derates PVC at job + rise
 
 Joints are labelled J1..Jn in running order (J1 is the bottom joint, first in
-the hole).  A tally's measured lengths, rejections and measured walls are
+the hole).  A tally's measured lengths, rejections, measured walls and rack ODs are
 applied by label.  Warnings (not errors) are returned with the plan: grout
 lighter than the hole fluid, a string longer than the hole, an OD larger than
 the hole, float-equipment joints without a ``[float_equipment]`` table.
@@ -87,6 +98,7 @@ value given.
 from __future__ import annotations
 
 import math
+import re
 from dataclasses import dataclass, fields
 from pathlib import Path
 
@@ -98,8 +110,9 @@ from rigplan.engine.stringmodel import (CONNECTION_KINDS, JOINT_KINDS, Closure, 
                                  Hole, JointSpec, Settings, StringPlan)
 
 TOP_KEYS = ("version", "units", "name", "well", "site", "notes", "tally", "hole", "section",
-            "joint", "float_equipment", "running", "design_factors", "grout")
-HOLE_KEYS = ("fluid_density", "fluid_level", "depth", "diameter")
+            "joint", "float_equipment", "running", "design_factors", "grout",
+            "existing_casing", "liner_fit", "report")
+HOLE_KEYS = ("fluid_density", "fluid_level", "depth", "diameter", "temperature")
 COMMON_JOINT_KEYS = ("kind", "material", "od", "wall", "connection", "weld_efficiency",
                      "connection_rating", "tensile_rating", "collapse_rating", "burst_rating",
                      "joint_weight", "weight_per_length", "ellipticity", "measured_wall", "bore",
@@ -109,9 +122,12 @@ JOINT_KEYS = ("label",) + COMMON_JOINT_KEYS + ("length", "measured_length", "rej
 FLOAT_KEYS = ("type", "collar_joint", "valve_rating")
 FLOAT_TYPES = ("none", "float_shoe", "float_collar")
 RUNNING_KEYS = ("fill_density", "fill_alternatives", "min_running_weight", "set_down_weight",
+                "screen_depth_tolerance",
                 "collar_candidates")
 DESIGN_KEYS = ("tension", "collapse", "burst")
-GROUT_KEYS = ("density", "height", "inside_density", "inside_level")
+GROUT_KEYS = ("density", "height", "inside_density", "inside_level", "temperature_rise")
+#: The printed job packet's facts: text, kept as written (a TOML date is read as YYYY-MM-DD).
+REPORT_KEYS = ("revision", "date", "prepared_by", "reviewed_by")
 
 # file key -> (JointSpec field, quantity kind, may be "unrated") for the
 # optional quantities; their ranges are in _OPTIONAL_LIMITS
@@ -134,6 +150,11 @@ _OPTIONAL_LIMITS = {
     "measured_wall": "wall", "bore": "diameter", "dmax": "diameter", "dmin": "diameter",
 }
 
+#: Screen depth tolerances accepted [m]: 0 to 30 m (about 100 ft, five
+#: joints); more is no longer a check on where a screen lands.
+SCREEN_TOLERANCE_RANGE = (ranges.RANGES["screen_depth_tolerance"].lo,
+                          ranges.RANGES["screen_depth_tolerance"].hi)
+
 #: Densities accepted for a drilling fluid, fill fluid or grout [kg/m^3]
 #: (about 5 to 25 ppg): a value outside is almost surely a unit slip.
 FLUID_DENSITY_RANGE = (ranges.RANGES["fluid_density"].lo, ranges.RANGES["fluid_density"].hi)
@@ -142,6 +163,17 @@ FLUID_DENSITY_RANGE = (ranges.RANGES["fluid_density"].lo, ranges.RANGES["fluid_d
 #: (each pair is a full float plan; the bundled jobs use 2 and 3).
 MAX_FILL_ALTERNATIVES = 8
 MAX_COLLAR_CANDIDATES = 24
+
+#: How far a tally's rack OD reading may lie from the joint's od [-]: further
+#: is a unit slip, not an oval joint.
+RACK_OD_SPREAD = 0.25
+
+#: Job temperatures a plan may state [C], and grout temperature rises [K].
+JOB_TEMPERATURE_RANGE = (-10.0, 100.0)
+TEMPERATURE_RISE_RANGE = (0.0, 60.0)
+
+_TEMPERATURE = re.compile(r"^\s*(?P<value>[-+]?(?:\d+\.?\d*|\.\d+))\s*"
+                          r"(?P<unit>(?:°|deg\s*)?[CFK]|deg[CF])?\s*$", re.IGNORECASE)
 
 _DEFAULT_SETTINGS = Settings()
 _DEFAULT_DESIGN = DesignFactors()
@@ -177,6 +209,42 @@ def parse_plan(text: str, source: str = "<plan>", base_dir=".") -> PlanRead:
 
 
 # ---------------------------------------------------------------------------
+# temperatures (offset scales: read here, not as a multiplicative unit)
+
+
+def _temperature(t: Table, key: str, default: float, difference: bool) -> float:
+    """A temperature [C], or with ``difference`` a temperature difference [K].
+
+    ``"55 F"``, ``"13 C"``, ``"13 degC"``; a difference may also be in ``K``.
+    A bare number takes the file's unit system (F for "us", C for "si").
+    """
+    if key not in t:
+        return default
+    raw = t.raw(key)
+    lo, hi = TEMPERATURE_RISE_RANGE if difference else JOB_TEMPERATURE_RANGE
+    what = (f"a temperature rise between {lo:g} and {hi:g} K ({lo * 1.8:g} to {hi * 1.8:g} F), "
+            "e.g. \"30 F\" or \"17 C\"" if difference else
+            f"a temperature between {lo:g} and {hi:g} C ({lo * 1.8 + 32:g} to {hi * 1.8 + 32:g} F), "
+            "e.g. \"55 F\" or \"13 C\"")
+    if isinstance(raw, bool) or not isinstance(raw, (int, float, str)):
+        raise InputError(t.where(key), f"expected {what}, got {raw!r}")
+    m = _TEMPERATURE.match(str(raw))
+    if not m:
+        raise InputError(t.where(key), f"expected {what}, got {raw!r}")
+    if not m.group("unit"):
+        what += " (a bare number is in " + ("F" if t.system == "us" else "C") + " in this file)"
+    value = float(m.group("value"))
+    unit = (m.group("unit") or ("F" if t.system == "us" else "C"))[-1].upper()
+    if unit == "K" and not difference:
+        value -= 273.15
+    elif unit == "F":
+        value = value / 1.8 if difference else (value - 32.0) / 1.8
+    if not (math.isfinite(value) and lo <= value <= hi):
+        raise InputError(t.where(key), f"expected {what}, got {raw!r}")
+    return value
+
+
+# ---------------------------------------------------------------------------
 # joints
 
 
@@ -193,6 +261,20 @@ def _fluid_density(t: Table, key: str, default=None, required: bool = False, ind
                                 f"{ranges.RANGES['fluid_density'].expected(t.system)}; check the "
                                 "unit (bare numbers are in the file's units)")
     return rho
+
+
+def _report_table(t) -> tuple:
+    """``(key, text)`` pairs of the ``[report]`` table, in REPORT_KEYS order."""
+    if t is None:
+        return ()
+    import datetime
+    out = []
+    for key in REPORT_KEYS:
+        if key in t.data and isinstance(t.data[key], (datetime.date, datetime.datetime)):
+            out.append((key, t.data[key].isoformat()))
+        elif key in t.data:
+            out.append((key, t.text(key)))
+    return tuple(out)
 
 
 def _material_key(t: Table, key: str = "material") -> str:
@@ -291,7 +373,7 @@ def _joints_one_by_one(tables) -> list:
 
 
 def apply_tally(joints: list, rows, tally_source: str) -> list:
-    """Joints with the tally's measured lengths, walls and rejections (by label)."""
+    """Joints with the tally's measured lengths, walls, rack ODs and rejections (by label)."""
     index = {j.label: i for i, j in enumerate(joints)}
     out = list(joints)
     for row in rows:
@@ -314,8 +396,71 @@ def apply_tally(joints: list, rows, tally_source: str) -> list:
                 raise InputError(f"{where}, measured_wall",
                                  f"measured wall is not less than half the od of {j.label}")
             changes["measured_wall"] = row.measured_wall
+        if getattr(row, "od_max", None) is not None:
+            for name, value in (("od_max", row.od_max), ("od_min", row.od_min)):
+                if not (1 - RACK_OD_SPREAD) * j.od <= value <= (1 + RACK_OD_SPREAD) * j.od:
+                    raise InputError(f"{where}, {name}",
+                                     f"expected an outside diameter within "
+                                     f"{100 * RACK_OD_SPREAD:g} % of the od of {j.label} "
+                                     f"({j.od * 1000:.1f} mm, {j.od / 0.0254:.3f} in): check "
+                                     "the unit in the column header")
+            changes["dmax"], changes["dmin"] = row.od_max, row.od_min
         out[i] = _replace(j, **changes)
-    return out
+    return _reorder(out, rows, tally_source)
+
+
+def _reorder(joints: list, rows, tally_source: str) -> list:
+    """Joints in the tally's ``run_order`` (when the tally gives one).
+
+    The order must name every joint of the plan once, and may only swap
+    joints of the same nominal description (the shoe, float equipment and
+    screens stay where the plan puts them): anything else is refused with
+    the row that breaks it.
+    """
+    from rigplan.engine.placement import nominal_key
+
+    ordered = [r for r in rows if r.run_order is not None]
+    if not ordered:
+        return joints
+    if len(ordered) != len(rows) or len(rows) != len(joints):
+        missing = len(joints) - len(ordered)
+        raise InputError(f"{tally_source}, run_order",
+                         f"give run_order for every joint of the plan or for none "
+                         f"({len(ordered)} of {len(joints)} given"
+                         + (f", {missing} missing)" if missing > 0 else ")"))
+    seen = {}
+    for r in ordered:
+        if r.run_order > len(joints):
+            raise InputError(f"{tally_source}: row {r.row}, run_order",
+                             f"expected 1..{len(joints)} (the joints in the plan), got {r.run_order}")
+        if r.run_order in seen:
+            raise InputError(f"{tally_source}: row {r.row}, run_order",
+                             f"position {r.run_order} is already given in row {seen[r.run_order]}")
+        seen[r.run_order] = r.row
+    by_label = {j.label: j for j in joints}
+    new = [None] * len(joints)
+    for r in ordered:
+        new[r.run_order - 1] = by_label[r.label]
+    for pos, (planned, placed) in enumerate(zip(joints, new), start=1):
+        if nominal_key(planned) != nominal_key(placed):
+            row = next(r.row for r in ordered if r.label == placed.label)
+            raise InputError(f"{tally_source}: row {row}, run_order",
+                             f"{placed.label} ({placed.kind}) cannot run at position {pos}: the "
+                             f"plan has {planned.label} ({planned.kind}) there, and only joints "
+                             "of the same kind, material, size and connection may swap")
+    return new
+
+
+def _has_derated_material(joints) -> bool:
+    from rigplan.engine import materials
+
+    return any(materials.get_material(j.material).temperature_derating for j in joints)
+
+
+def _temperature_text(value: float, system: str, difference: bool) -> str:
+    if system == "us":
+        return f"{value * 1.8 if difference else value * 1.8 + 32.0:.12g} F"
+    return f"{value:.12g} C"
 
 
 def _replace(spec, **changes):
@@ -342,6 +487,8 @@ def plan_from_data(data: dict, source: str, base_dir=Path("."), default_name: st
     site = top.text("site")
     notes = top.text("notes")
 
+    report = _report_table(top.table("report", REPORT_KEYS))
+
     # hole
     ht = top.table("hole", HOLE_KEYS)
     if ht is None:
@@ -354,6 +501,7 @@ def plan_from_data(data: dict, source: str, base_dir=Path("."), default_name: st
         depth=ht.quantity("depth", "length", default=math.nan, positive=True, limits="depth"),
         diameter=ht.quantity("diameter", "diameter", default=math.nan, positive=True,
                              limits="diameter"),
+        temperature=_temperature(ht, "temperature", Hole.temperature, difference=False),
     )
     if not math.isnan(hole.depth) and hole.fluid_level > hole.depth:
         raise InputError(ht.where("fluid_level"), f"fluid level {ht.raw('fluid_level')!r} is below the "
@@ -472,6 +620,9 @@ def plan_from_data(data: dict, source: str, base_dir=Path("."), default_name: st
                                                         limits="force")
         settings_kw["set_down_weight"] = rt.quantity("set_down_weight", "force", default=0.0,
                                                      nonnegative=True, limits="force")
+        settings_kw["screen_depth_tolerance"] = rt.quantity(
+            "screen_depth_tolerance", "length", default=_DEFAULT_SETTINGS.screen_depth_tolerance,
+            nonnegative=True, limits="screen_depth_tolerance")
         cands = rt.list_of("collar_candidates")
         if cands is not None and len(cands) > MAX_COLLAR_CANDIDATES:
             raise InputError(rt.where("collar_candidates"),
@@ -511,6 +662,7 @@ def plan_from_data(data: dict, source: str, base_dir=Path("."), default_name: st
                 default=GroutSpec.__dataclass_fields__["inside_density"].default),
             inside_level=gt.quantity("inside_level", "length", default=0.0, nonnegative=True,
                                      limits="depth"),
+            temperature_rise=_temperature(gt, "temperature_rise", 0.0, difference=True),
         )
         if grout.height > shoe_depth * (1 + 1e-12):
             raise InputError(gt.where("height"), f"grout column {gt.raw('height')!r} is taller than the "
@@ -519,6 +671,10 @@ def plan_from_data(data: dict, source: str, base_dir=Path("."), default_name: st
             raise InputError(gt.where("inside_level"), f"fill level outside the pipe: "
                                                        f"{gt.raw('inside_level')!r} is below the shoe "
                                                        f"({shoe_depth:.2f} m)")
+        if "temperature_rise" not in gt and _has_derated_material(running):
+            warnings.append(f"{gt.where('temperature_rise')}: not given: the grouting check rates "
+                            "the thermoplastic casing at the job temperature, without the heat "
+                            "of hydration of the grout (enter the expected rise, e.g. \"30 F\")")
         if grout.density < hole.fluid_density:
             warnings.append(f"{gt.where('density')}: grout is lighter than the hole fluid: it will "
                             "not displace it from the annulus")
@@ -535,7 +691,8 @@ def plan_from_data(data: dict, source: str, base_dir=Path("."), default_name: st
                             f"({hole.diameter * 1000:.1f} mm)")
 
     plan = StringPlan(name=name, well=well, hole=hole, joints=tuple(joints), closure=closure,
-                      settings=settings, grout=grout, site=site, notes=notes, source=source)
+                      settings=settings, grout=grout, site=site, notes=notes, source=source,
+                      report=report)
     return PlanRead(plan=plan, warnings=tuple(warnings), tally_path=tally_path, units=system)
 
 
@@ -597,6 +754,8 @@ def plan_text(plan: StringPlan, system: str = "si", header: str = "") -> str:
         hole["depth"] = quantity_text(h.depth, "length", system)
     if not math.isnan(h.diameter):
         hole["diameter"] = quantity_text(h.diameter, "diameter", system)
+    if h.temperature != Hole.temperature:
+        hole["temperature"] = _temperature_text(h.temperature, system, difference=False)
     doc["hole"] = hole
 
     joints = list(plan.joints)
@@ -640,6 +799,8 @@ def plan_text(plan: StringPlan, system: str = "si", header: str = "") -> str:
     run["min_running_weight"] = quantity_text(s.min_running_weight, "force", system)
     run["set_down_weight"] = quantity_text(s.set_down_weight, "force", system)
     run["collar_candidates"] = [int(v) for v in s.float_collar_positions]
+    if s.screen_depth_tolerance != _DEFAULT_SETTINGS.screen_depth_tolerance:
+        run["screen_depth_tolerance"] = quantity_text(s.screen_depth_tolerance, "length", system)
     doc["running"] = run
     doc["design_factors"] = {"tension": float(s.design.tension),
                              "collapse": float(s.design.collapse),
@@ -651,6 +812,11 @@ def plan_text(plan: StringPlan, system: str = "si", header: str = "") -> str:
                         "height": quantity_text(g.height, "length", system),
                         "inside_density": quantity_text(g.inside_density, "density", system),
                         "inside_level": quantity_text(g.inside_level, "length", system)}
+        if g.temperature_rise:
+            doc["grout"]["temperature_rise"] = _temperature_text(g.temperature_rise, system,
+                                                                 difference=True)
+    if plan.report:
+        doc["report"] = dict(plan.report)
     if not header:
         header = f"rigplan string plan: {plan.name}" + (f", well {plan.well}" if plan.well else "")
     return dump_toml(doc, header=header)

@@ -12,22 +12,36 @@ unrated too -- never assumed; every number is checked against its range in
 
     [[path]]                    # one per way of holding the string, >= 1
     name = "main line"          # required, unique
-    lines = 4                   # lines strung, default 1 (1 to 24)
-    sheave_factor = 1.04        # default 1.04 (roller bearings; 1 to 1.25)
+    lines = 4                   # lines strung, whole number 1 to 24, default 1
+    sheave_factor = 1.04        # 1 to 1.2, default 1.04 (roller bearings)
     winch_line_pull = "9000 lbf"        # force, at the drum layer in use
     rope_breaking_force = "39000 lbf"   # force, minimum breaking force
-    rope_design_factor = 3.0            # default 3 (1 to 10)
+    rope_design_factor = 3.0            # 1 to 20, default 3
     mast_rating = "60000 lbf"           # force, static hook load for these lines
+    mast_rating_basis = "gross"         # "gross" (default) or "net" (see below)
+    mast_rating_net_of = "1500 lbf"     # force, only with "net" (default: all gear)
     top_head_pullup = "30000 lbf"       # force
+    top_head_pullup_basis = "net"       # "gross" (default) or "net"
+    top_head_pullup_net_of = "1800 lbf" # force, e.g. the head's own weight
     dead_load = "1800 lbf"              # force, required (0 when none)
-    overpull_reserve = "5000 lbf"       # force, default 0
-    dynamic_factor = 1.1                # default 1.0 (1 to 3)
+    overpull_reserve = "5000 lbf"       # force, default 0 (overpull load case)
+    dynamic_factor = 1.1                # 1 to 3, default 1.0 (shock load case)
     notes = "..."
 
     [[path.tool]]               # handling tools on this path
     name = "..."                # required
     kind = "elevator"           # elevator | clamp | spider | lifting_sub | other
     rating = "30 tf"            # force or "unrated"
+    basis = "net"               # default "net" for handling tools (they hold
+                                # the string only), "gross" for "other"
+    net_of = "500 lbf"          # force, only with "net" (default: all gear)
+
+A rating's basis says how it counts the gear riding on the line (the dead
+load): "gross" is the load at the hook, gear included, so the dead load is
+taken off it; "net" is what is left for the string, so the gear it is net of
+(all of the dead load, or the weight written as ``..._net_of``) is not taken
+off again.  The winch line pull and the wire rope are always gross: the
+line carries the block.
 
     [landing_string]            # optional: pipe for staged setting
     name = "..."                # required
@@ -49,9 +63,18 @@ from rigplan.files.formats import Table, check_version, file_system, read_toml, 
 
 TOP_KEYS = ("version", "units", "name", "notes", "path", "landing_string")
 PATH_KEYS = ("name", "lines", "sheave_factor", "winch_line_pull", "rope_breaking_force",
-             "rope_design_factor", "mast_rating", "top_head_pullup", "dead_load",
+             "rope_design_factor", "mast_rating", "mast_rating_basis", "mast_rating_net_of",
+             "top_head_pullup", "top_head_pullup_basis", "top_head_pullup_net_of", "dead_load",
              "overpull_reserve", "dynamic_factor", "notes", "tool")
-TOOL_KEYS = ("name", "kind", "rating")
+TOOL_KEYS = ("name", "kind", "rating", "basis", "net_of")
+
+#: Accepted ranges of the plain numbers of a path [-] (lines and sheave
+#: factor from the engine's hoisting formulas).  A rope design factor under
+#: 1 would let the line work above its breaking force, and over 20 is taken
+#: as a typing error; a dynamic factor over 3 likewise.
+ROPE_DESIGN_FACTOR_RANGE = (ranges.RANGES["rope_design_factor"].lo,
+                            ranges.RANGES["rope_design_factor"].hi)
+DYNAMIC_FACTOR_RANGE = (ranges.RANGES["dynamic_factor"].lo, ranges.RANGES["dynamic_factor"].hi)
 LANDING_KEYS = ("name", "weight_per_length", "tensile_rating", "density", "od", "bore")
 
 #: Steel density used for a landing string when none is given [kg/m^3]
@@ -89,8 +112,36 @@ def _rating(t: Table, key: str) -> float:
     return value
 
 
+def _number_in(t: Table, key: str, default: float, bounds: tuple, what: str) -> float:
+    """A plain number [-] within ``bounds`` (inclusive), else one line naming the key."""
+    lo, hi = bounds
+    value = t.number(key, default=default)
+    if not (math.isfinite(value) and lo <= value <= hi):
+        raise InputError(t.where(key), f"expected {what} from {lo:g} to {hi:g}, got "
+                                       f"{t.raw(key)!r}")
+    return value
+
+
+def _basis(t: Table, key: str, net_key: str, default: str, dead_load: float) -> tuple:
+    """``(basis, net_of [N])`` of a rating: "gross" or "net", and the gear
+    weight a net rating already excludes (nan: all of the dead load)."""
+    from rigplan.engine.hoisting import RATING_BASES
+    basis = t.choice(key, RATING_BASES, default=default)
+    if net_key not in t:
+        return basis, math.nan
+    if basis != "net":
+        raise InputError(t.where(net_key), f"given with a gross rating: write {key} = \"net\" "
+                                           "when the rating is already net of this weight")
+    net_of = t.quantity(net_key, "force", nonnegative=True)
+    if net_of > dead_load * (1 + 1e-12):
+        raise InputError(t.where(net_key), f"expected a weight not above the path's dead_load "
+                                           f"({t.raw('dead_load')!r}), got {t.raw(net_key)!r}")
+    return basis, min(net_of, dead_load)
+
+
 def rig_from_data(data: dict, source: str):
-    from rigplan.engine.hoisting import HoistPath, LandingString, Rig, TOOL_KINDS
+    from rigplan.engine.hoisting import (HANDLING_TOOL_KINDS, LINES_RANGE, SHEAVE_FACTOR_RANGE,
+                                         TOOL_KINDS, HoistPath, LandingString, Rig)
 
     if not data:
         raise InputError(source, "the file is empty: expected a rig profile (a name and at "
@@ -134,6 +185,9 @@ def rig_from_data(data: dict, source: str):
         reserve = t.quantity("overpull_reserve", "force", default=0.0, nonnegative=True,
                              limits="force")
         dyn = t.number("dynamic_factor", default=1.0, limits="dynamic_factor")
+        bases = {}
+        for key in ("mast_rating", "top_head_pullup"):
+            bases[key] = _basis(t, f"{key}_basis", f"{key}_net_of", "gross", dead)
         tools = []
         tool_names = {}
         tool_tables = t.tables("tool", TOOL_KEYS)
@@ -149,7 +203,9 @@ def rig_from_data(data: dict, source: str):
             tool_names[tname] = tt.path
             kind = tt.choice("kind", TOOL_KINDS, required=True)
             rating = _rating(tt, "rating")
-            tools.append((tname, kind, rating))
+            basis, net_of = _basis(tt, "basis", "net_of",
+                                   "net" if kind in HANDLING_TOOL_KINDS else "gross", dead)
+            tools.append((tname, kind, rating, basis, net_of))
         try:
             paths.append(HoistPath(
                 name=pname, lines=lines, sheave_factor=k,
@@ -159,6 +215,9 @@ def rig_from_data(data: dict, source: str):
                 top_head_pullup=ratings["top_head_pullup"], tools=tuple(tools),
                 dead_load=dead, overpull_reserve=reserve, dynamic_factor=dyn,
                 notes=t.text("notes"),
+                mast_basis=bases["mast_rating"][0], mast_net_of=bases["mast_rating"][1],
+                top_head_basis=bases["top_head_pullup"][0],
+                top_head_net_of=bases["top_head_pullup"][1],
             ))
         except InputError as exc:
             raise _rewhere(exc, f"{source}: {t.path}") from None
