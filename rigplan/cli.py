@@ -136,7 +136,16 @@ def _exit_for(landing) -> int:
 
 def _many_rigs(args) -> bool:
     rigs = args.rig if isinstance(args.rig, list) else [args.rig]
-    return len(rigs) > 1 or any(Path(r).is_dir() for r in rigs)
+    return len(rigs) > 1 or any(_is_dir(r) for r in rigs)
+
+
+def _is_dir(path) -> bool:
+    """Whether ``path`` is a folder; a name the system refuses is not one
+    (it is then refused as a file, in one line)."""
+    try:
+        return Path(path).is_dir()
+    except (OSError, ValueError):
+        return False
 
 
 def cmd_check(args) -> int:
@@ -193,7 +202,7 @@ def _with_first_rig(args):
     from rigplan.present.packet.rigs import expand_rigs
     one = copy.copy(args)
     rigs = args.rig if isinstance(args.rig, list) else [args.rig]
-    one.rig = str(expand_rigs(rigs[:1], args.plan)[0]) if Path(rigs[0]).is_dir() else rigs[0]
+    one.rig = str(expand_rigs(rigs[:1], args.plan)[0]) if _is_dir(rigs[0]) else rigs[0]
     return one
 
 
@@ -284,9 +293,9 @@ def refuse_input_overwrite(out: Path, inputs, option: str = "-o") -> None:
     (exit 2), naming both: no command writes onto a file it reads."""
     for role, path in inputs:
         if _same_file(Path(out), Path(path)):
-            raise InputError(f"{option} {out}", f"this is the {role} {str(path)!r}, which the "
-                                                "command reads: it is never written over; "
-                                                "choose another output file")
+            raise InputError(f"{option} {out}", f"this is the {role} {str(path)!r}, an input "
+                                                "of this command, and inputs are never written "
+                                                "over: choose another output file")
 
 
 def cmd_report(args) -> int:

@@ -1039,7 +1039,7 @@ def fuzz_cli(n: int, seed: int) -> Stats:
                     for name, digest in before.items():
                         if (work / name).absolute() in outputs:
                             continue
-                        if name.endswith((".sqlite", "-wal", "-shm")) and argv[:1] == ["open"]:
+                        if name.endswith((".sqlite", "-wal", "-shm", ".lock")) and argv[:1] == ["open"]:
                             continue        # the app's own log, opened to record
                         if name.endswith(("-wal", "-shm")):
                             continue        # SQLite's index beside a log read as it is

@@ -265,9 +265,9 @@ def test_joint_count_summed_over_sections(job):
 @pytest.mark.parametrize("old, new, key, fragment", [
     ("lines = 4", "lines = 20000", "path[1].lines", "between 1 and 24, got 20000"),
     ("sheave_factor = 1.04", "sheave_factor = 1e100", "path[1].sheave_factor",
-     "between 1 and 1.25 [-]"),
+     "between 1 and 1.2 [-]"),
     ("rope_design_factor = 3.0", "rope_design_factor = 0.5", "path[1].rope_design_factor",
-     "between 1 and 10 [-]"),
+     "between 1 and 20 [-]"),
     ('dead_load = "3500 lbf"', 'dead_load = "1e308 lbf"', "path[1].dead_load", "too large to use"),
     ('winch_line_pull = "28000 lbf"', 'winch_line_pull = "2e9 lbf"', "path[1].winch_line_pull",
      "in (0, 11,240,000] lbf (0 to 50,000 kN)"),
@@ -359,7 +359,7 @@ def test_report_never_writes_onto_a_file_it_reads(job, role):
     line = one_line(*F.run_cli(["report", str(plan), "--rig", str(job / "th30.toml"),
                                 "--tally", str(tally), "--materials", str(mats), "--as-run",
                                 "-o", str(target)]))
-    assert line.startswith(f"rigplan: -o {target}: this is the ") and str(target) in line[20:]
+    assert line.startswith(f"rigplan: -o {target}: this is the ") and str(target) in line[20:] and "an input" in line
     after = {p.name: p.read_bytes() for p in job.iterdir() if p.is_file()}
     assert after == before
 
