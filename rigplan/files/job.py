@@ -43,6 +43,7 @@ DEMO_JOBS = (
     ("cv9-14in-staged.toml", "mw80.toml", Verdict.LANDS_STAGED),
     ("cv12-pvc-floated.toml", "th30.toml", Verdict.LANDS_FLOATED),
     ("cv5-18in-thinwall.toml", "th30.toml", Verdict.CANNOT_LAND),
+    ("cv2-liner.toml", "th30.toml", Verdict.LANDS_OPEN),
 )
 
 

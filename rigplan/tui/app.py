@@ -26,7 +26,8 @@ from rigplan.files.runlog import RunLogWriteError
 from rigplan.present import wording as P
 from rigplan.tui.commands import ACTIONS, GLOBAL, RUNNING, TALLY, RigplanCommands, bindings, help_sections
 from rigplan.tui.dialogs import ConfirmScreen, HelpScreen, PromptScreen, QuitScreen
-from rigplan.tui.panes import OverviewPane, RigPane, RunningPane, TallyPane
+from rigplan.tui.panes import RigPane, RunningPane, TallyPane
+from rigplan.tui.schematic import OverviewWithSchematic
 from rigplan.tui.session import EDITABLE_FIELDS, JobSession
 
 TABS = ("overview", "tally", "running", "charts", "rig")
@@ -83,7 +84,7 @@ class RigplanApp(App):
         yield Static("", id="read-only-banner", markup=False)
         with TabbedContent(initial="overview", id="tabs"):
             with TabPane("1 Overview", id="overview"):
-                yield OverviewPane(id="overview-pane")
+                yield OverviewWithSchematic(id="overview-pane")
             with TabPane("2 String & tally", id="tally"):
                 yield TallyPane(id="tally-pane")
             with TabPane("3 Running", id="running"):
