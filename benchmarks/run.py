@@ -65,7 +65,7 @@ for _p in (str(_HERE.parent), str(_HERE)):
 
 import numpy as np  # noqa: E402
 
-import reference  # noqa: E402  (benchmarks/reference.py)
+from benchmarks import reference  # noqa: E402
 from rigplan.engine.stringmodel import G, Closure, Hole, JointArrays  # noqa: E402
 
 #: Carbon steel density for the synthetic plain-end weights [kg/m^3].

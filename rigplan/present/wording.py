@@ -186,9 +186,12 @@ def limit_place(limit: Limit) -> str:
     """Where a limit is reached, in words."""
     if limit.name == LimitName.HOLE_DEPTH:
         return "the shoe when landed"
-    if limit.name in (LimitName.STAGE1_HOISTING, LimitName.LANDING_STRING,
-                      LimitName.STAGE2_HOISTING):
-        return f"split above joint {limit.joint}"
+    if limit.name == LimitName.STAGE1_HOISTING:
+        return f"stage 1 (joints 1-{limit.joint}) at the floor"
+    if limit.name in (LimitName.LOWERING_HOISTING, LimitName.LANDING_STRING):
+        return f"stage 1 (joints 1-{limit.joint}) on the landing string"
+    if limit.name == LimitName.STAGE2_HOISTING:
+        return f"stage 2 (from joint {limit.joint + 1}) at the floor"
     if limit.step is not None:
         return f"step {limit.step} ({limit.label} at the floor)"
     if limit.joint is not None:
@@ -286,6 +289,10 @@ _WORDS = {
         "below the neutral point: "
         + (f"set down at most {_q(f, 'max_set_down', s)}"
            if f.quantities['max_set_down'].known else "set down less")),
+    PlanCode.STAGE1_BUCKLES_ON_BOTTOM: lambda f, s: (
+        f"staged setting: released, stage 1 (joints 1-{f.joint}) stands on bottom with "
+        f"{_q(f, 'load', s)} on its lowest joints, which buckles a screen or "
+        "overstresses a joint; no set-down weight relieves it"),
     PlanCode.FILL_ALL_THE_WAY: lambda f, s: (
         f"{_float_name(f, s)}: fill every joint to the top all the way down; floating gains "
         "nothing here"),
@@ -719,7 +726,7 @@ def run_cells(session) -> list:
         step = "" if k is None else str(k + 1)
         if lp is not None and k is not None:
             shoe = number(lp.chosen.loads.shoe_depth[k], "length", sys_)
-            hook = number(loads[k], "force", sys_) if loads is not None else "staged"
+            hook = number(loads[k], "force", sys_)
             fill = fill_marker(lp, k + 1)
         else:
             shoe = hook = fill = ""
@@ -779,17 +786,9 @@ def running_summary(session) -> list:
     shoe = float(lp.chosen.loads.shoe_depth[k - 1]) if k >= 1 else 0.0
     lines.append(f"Shoe depth: {fmt(shoe, 'length', sys_)}")
     loads = session.step_hook_loads()
-    if loads is None and lp.stages is not None:
-        st = lp.stages
-        lines.append("Hook load per joint: not given by the planner for a staged setting")
-        lines.append(f"Peak string load: stage 1 {fmt(st.stage1_peak, 'force', sys_)}, "
-                     f"stage 2 {fmt(st.stage2_peak, 'force', sys_)} (plus "
-                     f"{fmt(lp.dead_load, 'force', sys_)} of gear on the hook)")
-    else:
-        now = session.predicted_hook_load()
-        lines.append(f"Hook load now (planned): {fmt(now, 'force', sys_)}")
-        if k < n:
-            lines.append(f"After the next joint: {fmt(loads[k], 'force', sys_)}")
+    lines.append(f"Hook load now (planned): {fmt(session.predicted_hook_load(), 'force', sys_)}")
+    if k < n:
+        lines.append(f"After the next joint: {fmt(loads[k], 'force', sys_)}")
     lines.append(f"Hook limit ({lp.path.path}): {fmt(lp.path.hook_limit, 'force', sys_)}")
     if k >= 1:
         lines.append(f"Capacity margin now: {percent(lp.chosen.capacity_margin[k - 1])}")

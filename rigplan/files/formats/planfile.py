@@ -175,6 +175,15 @@ TEMPERATURE_RISE_RANGE = (0.0, 60.0)
 _TEMPERATURE = re.compile(r"^\s*(?P<value>[-+]?(?:\d+\.?\d*|\.\d+))\s*"
                           r"(?P<unit>(?:°|deg\s*)?[CFK]|deg[CF])?\s*$", re.IGNORECASE)
 
+#: Least design factor accepted, in files and in the app's prompts [-]: a
+#: factor below 1 would let a load pass above the maker's rating.
+DESIGN_FACTOR_MIN = ranges.RANGES["design_factor"].lo
+
+
+def design_factor_expected(got) -> str:
+    """The one message for a design factor out of range (rigplan.files.ranges)."""
+    return f"expected {ranges.RANGES['design_factor'].expected()}, got {_short(got)}"
+
 _DEFAULT_SETTINGS = Settings()
 _DEFAULT_DESIGN = DesignFactors()
 
