@@ -157,6 +157,9 @@ ORDER BY e.id DESC LIMIT 1
 
 _COLUMNS = "id, ts, kind, label, value, note, ref, step, predicted, basis"
 _COLUMNS_V1 = "id, ts, kind, label, value, note, ref, step, predicted, NULL"
+#: Kinds of event a log holds (the CHECK of the events table).
+_EVENT_KINDS = ("run", "reject", "undo", "observe")
+
 #: Columns every readable log has (``basis`` came with version 2).
 _REQUIRED_COLUMNS = ("id", "ts", "kind", "label", "value", "note", "ref", "step", "predicted")
 
@@ -944,7 +947,7 @@ def _damage_text(exc) -> bool:
 
 def _check_event(e: Event, path) -> None:
     """An event read back has the types and values the writer gives it."""
-    ok = (isinstance(e.id, int) and e.kind in EVENT_KINDS
+    ok = (isinstance(e.id, int) and e.kind in _EVENT_KINDS
           and (e.label is None or isinstance(e.label, str))
           and (e.value is None or (isinstance(e.value, (int, float))
                                    and math.isfinite(e.value)))
