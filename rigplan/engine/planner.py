@@ -395,27 +395,33 @@ def over_limit(limit: Limit) -> Finding:
                    context={"limit": str(limit.name)})
 
 
-def float_notes(opt: FloatOption, n: int) -> list[Finding]:
+def float_notes(opt: FloatOption, n: int, labels=None) -> list[Finding]:
     """What the crew should know about running a closed string: left empty
-    it collapses or floats; or floating gains nothing."""
+    it collapses or floats; or floating gains nothing.  ``labels`` (running
+    order) name the joints and the collar's joint by label."""
     e = opt.empty
     if e is None:
         return []
-    about = {"context": {"valve_joint": opt.closure.valve_joint},
+
+    def label(k):
+        return str(labels[k - 1]) if labels is not None and k and 1 <= k <= len(labels) else None
+
+    m = opt.closure.valve_joint
+    about = {"context": {"valve_joint": m, "valve_label": label(m)},
              "quantities": {"fill_density": (opt.fill_density, Kind.DENSITY)}}
     notes = []
     if e.collapse_step:
         longest = e.longest_empty if np.isfinite(e.longest_empty) else float("nan")
         notes.append(Finding(PlanCode.EMPTY_COLLAPSES, Severity.WARNING, joint=e.collapse_step,
-                             context=about["context"],
+                             label=label(e.collapse_step), context=about["context"],
                              quantities={**about["quantities"],
                                          "longest_empty": (longest, Kind.LENGTH)}))
     if e.negative_step:
         notes.append(Finding(PlanCode.EMPTY_FLOATS, Severity.WARNING, joint=e.negative_step,
-                             **about))
+                             label=label(e.negative_step), **about))
     elif e.float_step:
         notes.append(Finding(PlanCode.EMPTY_TOO_LIGHT, Severity.WARNING, joint=e.float_step,
-                             **about))
+                             label=label(e.float_step), **about))
     if opt.schedule.feasible and opt.schedule.fill_to_top_through >= n:
         notes.append(Finding(PlanCode.FILL_ALL_THE_WAY, Severity.INFO, **about))
     return notes
@@ -652,7 +658,7 @@ def crew_notes(joints: JointArrays, trial: Trial) -> tuple[Finding, ...]:
              else [o for o in trial.options if o.empty is not None][:1])
     notes = []
     for o in shown:
-        notes += [f for f in float_notes(o, joints.n) if f not in notes]
+        notes += [f for f in float_notes(o, joints.n, joints.label) if f not in notes]
     return tuple(notes)
 
 

@@ -238,8 +238,15 @@ _UNRATED_PART = {"tension": "tension at the top of joint", "collapse": "collapse
                              "yield not given) of joint"}
 
 
+def _valve(f: Finding) -> str:
+    """The float equipment of a finding, by the collar joint's label when known."""
+    m = f.get("valve_joint")
+    label = f.get("valve_label")
+    return closure_name(m, None if not label else [""] * (m - 1) + [label])
+
+
 def _float_name(f: Finding, system: str) -> str:
-    return (f"{closure_name(f.get('valve_joint'))} with fill "
+    return (f"{_valve(f)} with fill "
             f"{fmt(f.value('fill_density'), Kind.DENSITY, system)}")
 
 
@@ -275,15 +282,15 @@ _WORDS = {
         f"{_UNRATED_PART[f.get('part')]} {f.joint}" + (f" ({f.label})" if f.label else "")),
     PlanCode.UNRATED_COMPONENT: lambda f, s: f"{f.get('component')} on hoisting path {f.get('path')!r}",
     PlanCode.EMPTY_COLLAPSES: lambda f, s: (
-        f"{_float_name(f, s)}: left empty the pipe would collapse by joint {f.joint}"
+        f"{_float_name(f, s)}: left empty the pipe would collapse by {_joint(f.joint, f.label)}"
         + (f"; never leave more than {_q(f, 'longest_empty', s, 1)} empty above the valve"
            if f.quantities['longest_empty'].known else "")),
     PlanCode.EMPTY_FLOATS: lambda f, s: (
-        f"{_float_name(f, s)}: left empty the string floats (negative hook load) from joint "
-        f"{f.joint}: fill it or it will not go down"),
+        f"{_float_name(f, s)}: left empty the string floats (negative hook load) from "
+        f"{_joint(f.joint, f.label)}: fill it or it will not go down"),
     PlanCode.EMPTY_TOO_LIGHT: lambda f, s: (
         f"{_float_name(f, s)}: left empty the string load falls below the minimum running "
-        f"weight from joint {f.joint}"),
+        f"weight from {_joint(f.joint, f.label)}"),
     PlanCode.SET_DOWN_TOO_HEAVY: lambda f, s: (
         f"the set-down weight {_q(f, 'set_down', s)} buckles a screen or overstresses a joint "
         "below the neutral point: "
@@ -622,8 +629,8 @@ TALLY_COLUMNS = (
     ("length", "Plan", "length", True),
     ("top_depth", "Top at", "length", False),
     ("max_tension", "Max tension", "force", False),
-    ("tension_util", "Tens. util", None, False),
-    ("collapse_util", "Coll. util", None, False),
+    ("tension_util", "Tension", None, False),
+    ("collapse_util", "Collapse", None, False),
     ("od", "OD", "diameter", True),
     ("wall", "Wall", "diameter", True),
     ("material", "Material", None, True),
@@ -663,8 +670,8 @@ def tally_cells(session) -> list:
         if lp is not None and k is not None:
             top = number(tops[k], "length", sys_)
             tension = number(lp.chosen.loads.envelope_max[k], "force", sys_)
-            t_util = ratio(lp.chosen.tension_utilization[k])
-            c_util = ratio(lp.chosen.collapse_utilization[k])
+            t_util = percent(lp.chosen.tension_utilization[k], missing="unrated")
+            c_util = percent(lp.chosen.collapse_utilization[k], missing="unrated")
         else:
             top = tension = t_util = c_util = ""
         cells = {
@@ -709,9 +716,20 @@ RUN_COLUMNS = (
     ("status", "Status", None),
     ("length", "Length", "length"),
     ("shoe", "Shoe at", "length"),
-    ("hook", "Hook load", "force"),
+    ("hook", "Hook", "force"),
     ("fill", "Fill", None),
 )
+
+#: The columns a narrow screen keeps first, most important first (the
+#: others follow as the width allows).
+RUN_PRIORITY = ("label", "status", "hook", "length", "fill", "shoe", "step")
+TALLY_PRIORITY = ("label", "status", "measured_length", "length", "tension_util",
+                  "collapse_util", "top_depth", "max_tension", "kind", "od", "wall",
+                  "material", "connection", "seq")
+
+#: Longest status text in a grid cell (a set-aside reason is cut with "...";
+#: the whole reason is in the run log and the tally export).
+STATUS_WIDTH = 24
 
 
 def run_cells(session) -> list:
@@ -731,11 +749,16 @@ def run_cells(session) -> list:
         else:
             shoe = hook = fill = ""
         rows.append((spec.label, {
-            "step": step, "label": spec.label, "status": joint_status(session, spec, reason=True),
+            "step": step, "label": spec.label,
+            "status": _cut(joint_status(session, spec, reason=True), STATUS_WIDTH),
             "length": length_cell(session, spec),
             "shoe": shoe, "hook": hook, "fill": fill,
         }))
     return rows
+
+
+def _cut(text: str, width: int) -> str:
+    return text if len(text) <= width else text[: width - 3] + "..."
 
 
 def length_basis(session, spec) -> str:
@@ -781,6 +804,7 @@ def running_summary(session) -> list:
     if lp is None:
         return [f"No plan: {session.error}"]
     n = lp.joints.n
+    lines.append(f"Next: {fill_instruction(lp, k, sys_)}")
     lines.append(f"Joints in the hole: {k} of {n}" +
                  (f"   next: {nxt.label}" if nxt is not None else "   all in"))
     shoe = float(lp.chosen.loads.shoe_depth[k - 1]) if k >= 1 else 0.0
@@ -792,7 +816,6 @@ def running_summary(session) -> list:
     lines.append(f"Hook limit ({lp.path.path}): {fmt(lp.path.hook_limit, 'force', sys_)}")
     if k >= 1:
         lines.append(f"Capacity margin now: {percent(lp.chosen.capacity_margin[k - 1])}")
-    lines.append(f"Next: {fill_instruction(lp, k, sys_)}")
     lines.append(f"Weight band: {session.band_text()}")
     return lines
 
