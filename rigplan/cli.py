@@ -101,19 +101,21 @@ def _load(args):
     plan = job.plan
     if getattr(args, "tally", None):
         plan = apply_tally_file(plan, args.tally)
-    fixed = False
+    state = None
+    from rigplan.files.runlog import log_path_for
     if getattr(args, "as_run", False):
-        from rigplan.files.runlog import log_path_for
         state = read_run_state(job.plan_path)
         if state is None:
             raise InputError(f"{job.plan_path}: --as-run", "no run log beside the plan: the "
                                                            "job has not been run in the app")
-        plan = apply_run_state(plan, state, str(log_path_for(job.plan_path)))
-        fixed = bool(state.run)
-    from rigplan.files.job import length_warnings
+    from rigplan.files.job import length_warnings, plan_as_run
+    base = plan
+    plan = apply_run_state(base, state, str(log_path_for(job.plan_path))
+                           if state is not None else "")
     extra = [w for w in length_warnings(plan) if w not in job.warnings]
     job = dataclasses.replace(job, plan=plan, warnings=tuple(job.warnings) + tuple(extra))
-    landing = plan_job(plan, job.rig, job.path_name, fixed_closure=fixed)
+    # the plan as run: the kind of run and the fill already in the pipe are facts
+    landing = plan_as_run(base, job.rig, state, job.path_name)
     return job, landing
 
 
