@@ -105,8 +105,13 @@ def _exit_for(landing) -> int:
 def cmd_check(args) -> int:
     from rigplan.present.report import plan_dict, text_renderables
     job, landing = _load(args)
+    from rigplan.cli_rack import liner_of
+    liner = liner_of(job, landing)
     if args.format == "json":
         doc = plan_dict(landing, job.plan, job.warnings, job.rig.name)
+        if liner is not None:
+            from rigplan.present.rack import liner_dict
+            doc["liner"] = {k: v for k, v in liner_dict(liner, {}).items() if k != "plan"}
         doc["exit_code"] = _exit_for(landing)
         json.dump(doc, sys.stdout, indent=1, allow_nan=False)
         sys.stdout.write("\n")
@@ -116,10 +121,17 @@ def cmd_check(args) -> int:
             for r in text_renderables(landing, job.plan, _system(args), job.warnings, job.rig.name,
                                       all_steps=not args.brief):
                 console.print(r)
+            if liner is not None:
+                from rigplan.present.rack import liner_lines
+                console.print("Liner in the old casing (rigplan liner gives the full profile):")
+                for line in liner_lines(liner, _system(args)):
+                    console.print("  " + line, markup=False)
         except SystemExit:
             # rich ends the process this way when the reader of a pipe (such
             # as `| head`) has gone: the verdict still decides the exit code
             pass
+    if liner is not None and not liner.assessment.fit.fits:
+        return EXIT_LIMIT
     return _exit_for(landing)
 
 

@@ -2,7 +2,6 @@
 
 from __future__ import annotations
 
-import dataclasses
 import json
 import sys
 from pathlib import Path
@@ -21,12 +20,19 @@ def add_commands(sub, job_args) -> None:
     ln = sub.add_parser("liner", help="check a liner against an old casing's caliper log "
                                       "(LAS 2.0) and plan its running")
     job_args(ln)
-    ln.add_argument("--caliper", required=True, help="caliper log of the old casing (LAS 2.0)")
+    ln.add_argument("--caliper", default=None,
+                    help="caliper log of the old casing (LAS 2.0); default: the plan's "
+                         "existing_casing.caliper_log")
     ln.add_argument("--x", default=None, help="mnemonic of the X caliper curve (default: found)")
     ln.add_argument("--y", default=None, help="mnemonic of the Y caliper curve (default: found)")
     ln.add_argument("--format", choices=("text", "json"), default="text")
     ln.add_argument("--every", default=None,
                     help="spacing of the profile rows, e.g. '10 ft' (default: about 40 rows)")
+
+
+def _system(args) -> str:
+    from rigplan.cli import _system as system
+    return system(args)
 
 
 def _inputs(args, job) -> list:
@@ -51,33 +57,20 @@ def _refuse_input(out: Path, args, job) -> None:
 
 def cmd_place(args, load) -> int:
     """Best running order of the tallied rack (see ``rigplan.engine.placement``)."""
-    from rigplan.engine.placement import best_running_order
-    from rigplan.engine.planner import plan_landing
-    from rigplan.engine.rating import rate_joints
-    from rigplan.files.formats.tally import tally_from_plan, write_tally
+    from rigplan.files.formats.tally import write_tally
+    from rigplan.files.linerjob import placed_tally_rows, running_order_for
     from rigplan.present.rack import placement_dict, placement_lines
     if not args.tally and not _plan_names_tally(args.plan):
         raise InputError(f"{args.plan}: --tally", "placement needs the rack's tally (measured "
                                                   "walls and roundness): give --tally FILE")
     job, landing = load(args)
     plan = job.plan
-    specs = list(plan.running_joints())
-
-    def plan_for(order):
-        return plan_landing(rate_joints(order), plan.hole, job.rig, plan.settings,
-                            closure=plan.closure, path=job.path_name, grout=plan.grout)
-
-    result = best_running_order(specs, plan_for, plan.closure)
-    tallied = [s.label for s in specs]
+    result = running_order_for(plan, job.rig, job.path_name)
+    tallied = [s.label for s in plan.running_joints()]
     if args.output:
         out = Path(args.output)
         _refuse_input(out, args, job)
-        running = [i for i, j in enumerate(plan.joints) if not j.rejected]
-        joints = list(plan.joints)
-        for pos, src in enumerate(result.perm):
-            joints[running[pos]] = plan.joints[running[src]]
-        rows = tally_from_plan(dataclasses.replace(plan, joints=tuple(joints)))
-        rows = [dataclasses.replace(r, run_order=i) for i, r in enumerate(rows, start=1)]
+        rows = placed_tally_rows(plan, result)
         try:
             write_tally(rows, out, args.units,
                         comment=f"Running order proposed by rigplan place for {plan.name}: "
@@ -91,7 +84,7 @@ def cmd_place(args, load) -> int:
         json.dump(doc, sys.stdout, allow_nan=False)
         sys.stdout.write("\n")
     else:
-        for line in placement_lines(result, tallied, args.units):
+        for line in placement_lines(result, tallied, _system(args)):
             print(line)
         if args.output:
             print(f"wrote {args.output} (use it with --tally, or t in the app)")
@@ -113,7 +106,7 @@ def cmd_liner(args, load) -> int:
     from rigplan.present.rack import CAUTION_OLD_CASING, liner_dict, liner_lines, liner_profile_rows
     from rigplan.present.report import plan_dict
     job, landing = load(args)
-    lj = liner_job(job, job.plan, landing, args.caliper, args.x, args.y)
+    lj = liner_job(job.plan_path, job.plan, landing, args.caliper, args.x, args.y)
     ok = lj.assessment.fit.fits and landing.lands and lj.assessment.old_collapse.least_margin >= 0
     if args.format == "json":
         doc = liner_dict(lj, plan_dict(landing, job.plan, job.warnings, job.rig.name))
@@ -126,14 +119,14 @@ def cmd_liner(args, load) -> int:
         every = U.parse(args.every, "length", "ft" if args.units == "us" else "m", "--every")
         if not every > 0:
             raise InputError("--every", f"expected a length greater than zero, got {args.every!r}")
-    for line in liner_lines(lj, args.units):
+    for line in liner_lines(lj, _system(args)):
         print(line)
     from rich.console import Console
     from rich.table import Table
     t = Table(title="Old casing along the log")
     for col in ("depth", "mean ID", "smallest ID", "ellipticity", "collapse rating", "clearance"):
         t.add_column(col, justify="right")
-    for row in liner_profile_rows(lj, args.units, every):
+    for row in liner_profile_rows(lj, _system(args), every):
         t.add_row(*row)
     console = Console(highlight=False, width=None if sys.stdout.isatty() else 110)
     console.print(t)
@@ -145,3 +138,13 @@ def cmd_liner(args, load) -> int:
     from rigplan import CAUTION
     print(f"Caution: {CAUTION}")
     return 0 if ok else 1
+
+
+def liner_of(job, landing):
+    """The liner checks of a plan that names its old casing and caliper log (else None)."""
+    from rigplan.files.formats.linerfile import read_existing_casing
+    from rigplan.files.linerjob import liner_job
+    spec = read_existing_casing(job.plan_path)
+    if spec is None or spec.caliper_log is None:
+        return None
+    return liner_job(job.plan_path, job.plan, landing)

@@ -140,11 +140,15 @@ def test_undo_appends_an_event_and_deletes_nothing(log):
     r1 = log.record_run("J1", 6.1)
     r2 = log.record_run("J2", 6.2)
     rj = log.reject("J9", "split coupling")
-    log.observe(2, 1000.0)
+    ob = log.observe(2, 1000.0)
 
-    u1 = log.undo()                     # cancels the reject (latest)
+    u0 = log.undo()                     # cancels the reading (latest entry)
     ev = log.events()
-    assert len(ev) == 5
+    assert (ev[-1].kind, ev[-1].ref) == ("undo", ob) and ev[-1].id == u0
+    assert log.state().observations == []
+    u1 = log.undo()                     # then the reject
+    ev = log.events()
+    assert len(ev) == 6
     assert (ev[-1].kind, ev[-1].ref, ev[-1].label) == ("undo", rj, "J9")
     assert ev[-1].id == u1
     assert log.state().rejected == {}
@@ -156,12 +160,121 @@ def test_undo_appends_an_event_and_deletes_nothing(log):
     assert log.state().run == []
     assert log.undo() is None           # nothing left; no row written
     ev = log.events()
-    assert len(ev) == 7
-    assert [e.ref for e in ev if e.kind == "undo"] == [rj, r2, r1]
+    assert len(ev) == 8
+    assert [e.ref for e in ev if e.kind == "undo"] == [ob, rj, r2, r1]
     # the original entries are all still there, unchanged
     assert [(e.id, e.label) for e in ev if e.kind == "run"] == [(r1, "J1"), (r2, "J2")]
-    # weight readings are not undone
-    assert len(log.state().observations) == 1
+    assert [e.id for e in ev if e.kind == "observe"] == [ob]
+
+
+def test_planned_length_is_recorded_as_planned_not_measured(log):
+    # a length nobody measured is never a measurement (project rule)
+    log.record_run("J1", 6.096, basis="planned")
+    log.record_run("J2", 6.1)                       # typed: measured
+    log.record_run("J3", None)                      # nothing given: planned
+    st = log.state()
+    assert st.run == [("J1", None), ("J2", 6.1), ("J3", None)]
+    assert st.basis == {"J1": "planned", "J2": "measured", "J3": "planned"}
+    assert st.planned_at_entry == {"J1": 6.096, "J3": None}
+    assert [e.basis for e in log.events()] == ["planned", "measured", "planned"]
+    with pytest.raises(InputError, match="basis"):
+        log.record_run("J4", 6.1, basis="guessed")
+    with pytest.raises(InputError, match="measured length"):
+        log.record_run("J4", None, basis="measured")
+
+
+def test_negative_reading_is_refused(log):
+    with pytest.raises(InputError, match=">= 0"):
+        log.observe(1, -500.0)
+    assert log.events() == []
+
+
+def test_version_1_log_is_upgraded_without_touching_an_entry(tmp_path):
+    # A log written by the version-1 schema (no basis column; readings not
+    # undoable): the writer upgrades it in place, every entry kept as it
+    # was; a planned length accepted then is read as planned.
+    p = tmp_path / "old.rigrun.sqlite"
+    conn = sqlite3.connect(p, isolation_level=None)
+    conn.executescript("""
+        CREATE TABLE meta (key TEXT PRIMARY KEY, value TEXT NOT NULL);
+        CREATE TABLE events (id INTEGER PRIMARY KEY AUTOINCREMENT, ts TEXT NOT NULL,
+            kind TEXT NOT NULL, label TEXT, value REAL, note TEXT NOT NULL DEFAULT '',
+            ref INTEGER, step INTEGER, predicted REAL);
+        CREATE TRIGGER events_undo_target BEFORE INSERT ON events
+        WHEN NEW.kind = 'undo' AND (SELECT kind FROM events WHERE id = NEW.ref) IS NOT 'run'
+         AND (SELECT kind FROM events WHERE id = NEW.ref) IS NOT 'reject'
+        BEGIN SELECT RAISE(ABORT, 'no'); END;
+        INSERT INTO events (ts, kind, label, value, note) VALUES
+            ('2026-01-01T00:00:00.000+00:00', 'run', 'J1', 6.1, 'planned length accepted'),
+            ('2026-01-01T00:01:00.000+00:00', 'run', 'J2', 6.2, '');
+        INSERT INTO events (ts, kind, value, step, predicted) VALUES
+            ('2026-01-01T00:02:00.000+00:00', 'observe', 9000.0, 2, 8800.0);
+        PRAGMA application_id=1380405324;
+        PRAGMA user_version=1;
+    """)
+    conn.close()
+    with RunLog(p, read_only=True) as ro:       # a reader reads it as it is
+        assert ro.state().basis == {"J1": "planned", "J2": "measured"}
+    before = [(e.id, e.ts, e.kind, e.label, e.value, e.note) for e in RunLog(p).events()]
+    with RunLog(p) as lg:
+        assert lg.state().run == [("J1", None), ("J2", 6.2)]
+        lg.undo()                                 # the reading, now undoable
+        assert lg.state().observations == []
+        after = [(e.id, e.ts, e.kind, e.label, e.value, e.note) for e in lg.events()]
+    assert after[:3] == before[:3]
+    assert sqlite3.connect(p).execute("PRAGMA user_version").fetchone()[0] == SCHEMA_VERSION
+
+
+def test_one_writer_lock_and_read_only_follower(tmp_path):
+    from rigplan.files.runlog import RunLogLocked, RunLogReadOnly
+    p = tmp_path / "w.rigrun.sqlite"
+    writer = RunLog.open_writer(p)
+    try:
+        with pytest.raises(RunLogLocked, match="another rigplan records this job") as err:
+            RunLog.open_writer(p)
+        assert err.value.holder["pid"] == os.getpid()
+        reader = RunLog(p, read_only=True)
+        assert reader.changed()                   # first call
+        assert not reader.changed()
+        writer.record_run("J1", 6.0)
+        assert reader.changed()                   # follows the writer's entries
+        assert reader.state().run == [("J1", 6.0)]
+        with pytest.raises(RunLogReadOnly):
+            reader.record_run("J2", 6.0)
+        assert not reader.try_lock()
+    finally:
+        writer.close()
+    assert reader.try_lock()                      # the writer went: take over
+    reader.record_run("J2", 6.0)
+    reader.close()
+    with RunLog.open_writer(p) as again:          # lock released on close
+        assert [lab for lab, _ in again.state().run] == ["J1", "J2"]
+
+
+@pytest.mark.skipif(not hasattr(signal, "SIGKILL"), reason="needs SIGKILL (POSIX)")
+def test_lock_is_released_when_the_writer_is_killed(tmp_path):
+    # flock(2): the lock goes with the last descriptor, which the kernel
+    # closes when the process dies, however it dies.
+    p = tmp_path / "w.rigrun.sqlite"
+    proc = _spawn("""
+        import sys, time
+        from rigplan.files.runlog import RunLog
+        log = RunLog.open_writer(sys.argv[1])
+        print("locked", flush=True)
+        time.sleep(60)
+        """, p)
+    try:
+        assert proc.stdout.readline().strip() == "locked"
+        from rigplan.files.runlog import RunLogLocked
+        with pytest.raises(RunLogLocked):
+            RunLog.open_writer(p)
+    finally:
+        os.kill(proc.pid, signal.SIGKILL)
+        proc.wait()
+        proc.stdout.close()
+        proc.stderr.close()
+    with RunLog.open_writer(p) as lg:
+        lg.record_run("J1", 6.0)
 
 
 def test_undo_then_rerun_with_corrected_length(log):
@@ -440,28 +553,36 @@ def test_uncommitted_entry_leaves_no_trace(tmp_path):
 def test_export_tally_csv_to_path(log, tmp_path):
     log.record_run("J1", 6.096, 'shoe, "float"')     # comma and quotes: RFC 4180 quoting
     log.reject("J2", "bent")
-    log.record_run("J3", None)
+    log.record_run("J3", 6.1, basis="planned")
     log.record_run("J4", 6.2)
     log.undo()                                          # J4 not in the hole
     out = tmp_path / "tally.csv"
     log.export_tally_csv(out, planned={"J1": 6.1, "J2": 6.1, "J3": 6.1, "J4": 6.1, "J5": None})
     raw = out.read_bytes()
-    assert raw.startswith(b"seq,label,measured_length_m,status,note,time\r\n")  # RFC 4180 CRLF
+    assert raw.startswith(b"seq,label,status,measured_length [m],planned_length [m],"
+                          b"length_source,note,time\r\n")  # RFC 4180 CRLF
     assert raw.count(b"\r\n") == 6 and b"\n" not in raw.replace(b"\r\n", b"")
     rows = list(csv.DictReader(io.StringIO(raw.decode("utf-8"), newline="")))
-    got = [(r["seq"], r["label"], r["measured_length_m"], r["status"], r["note"]) for r in rows]
+    got = [(r["seq"], r["label"], r["status"], r["measured_length [m]"], r["planned_length [m]"],
+            r["length_source"], r["note"]) for r in rows]
     assert got == [
-        ("1", "J1", "6.0960", "run", 'shoe, "float"'),
-        ("2", "J3", "", "run", ""),
-        ("", "J2", "", "rejected", "bent"),
-        ("", "J4", "", "not run", "planned 6.1000 m"),
-        ("", "J5", "", "not run", ""),
+        ("1", "J1", "run", "6.0960", "6.1000", "measured", 'shoe, "float"'),
+        ("2", "J3", "run", "", "6.1000", "planned", ""),
+        ("", "J2", "rejected", "", "6.1000", "", "bent"),
+        ("", "J4", "not run", "", "6.1000", "", ""),
+        ("", "J5", "not run", "", "", "", ""),
     ]
     times = {e.label: e.ts for e in log.events() if e.kind in ("run", "reject")}
     assert rows[0]["time"] == times["J1"] and rows[2]["time"] == times["J2"]
     assert rows[3]["time"] == ""
     # atomic write leaves no temporary file behind
     assert sorted(x.name for x in tmp_path.iterdir() if x.name.startswith(".")) == []
+    # and it reads back as a tally sheet
+    from rigplan.files.formats.tally import read_tally
+    back = {r.label: r for r in read_tally(out)}
+    assert back["J1"].measured_length == pytest.approx(6.096, rel=1e-12)
+    assert back["J3"].measured_length is None and back["J3"].length_source == "planned"
+    assert back["J2"].status == "rejected" and back["J5"].status == "not run"
 
 
 def test_export_tally_csv_to_open_file_and_without_plan(log):
@@ -469,8 +590,8 @@ def test_export_tally_csv_to_open_file_and_without_plan(log):
     buf = io.StringIO(newline="")
     log.export_tally_csv(buf)
     rows = list(csv.reader(io.StringIO(buf.getvalue(), newline="")))
-    assert rows[0] == ["seq", "label", "measured_length_m", "status", "note", "time"]
-    assert rows[1][:5] == ["1", "A1", "5.8000", "run", ""]
+    assert rows[0][:4] == ["seq", "label", "status", "measured_length [m]"]
+    assert rows[1][:6] == ["1", "A1", "run", "5.8000", "", "measured"]
     assert len(rows) == 2
 
 

@@ -143,6 +143,8 @@ class LimitName(enum.StrEnum):
     STAGE1_HOISTING = "stage 1 hoisting"
     LANDING_STRING = "landing string"
     STAGE2_HOISTING = "stage 2 hoisting"
+    SCREEN_BUCKLING = "screen buckling"     # set-down compression vs critical buckling load
+    BUCKLING_STRESS = "buckling stress"     # axial + helical bending stress vs yield
 
 
 @dataclass(frozen=True)

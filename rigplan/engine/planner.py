@@ -17,9 +17,11 @@ Order of trial (first that keeps every limit wins), one named step each in
 3. two stages on the rig's landing string (:func:`try_stages`);
 4. otherwise: cannot land, with the reasons.
 
-Then :func:`check_hole_depth` and :func:`check_unrated` may overrule the
-verdict (a string longer than the hole cannot land; a loaded unrated part
-means landing cannot be confirmed).
+Then :func:`check_hole_depth`, :func:`check_set_down` and
+:func:`check_unrated` may overrule the verdict (a string longer than the
+hole cannot land; a set-down weight that buckles a screen or overstresses a
+joint below the neutral point is over a limit; a loaded unrated part means
+landing cannot be confirmed).
 """
 
 from __future__ import annotations
@@ -30,6 +32,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from rigplan.engine.buckling import BucklingCheck, check_buckling
 from rigplan.engine.axial import (RunningLoads, StepProfile, neutral_point_depth, running_loads,
                                   step_profile)
 from rigplan.engine.findings import Finding, Kind, Limit, LimitName, Severity, Verdict
@@ -90,6 +93,10 @@ class PlanCode(enum.StrEnum):
     EMPTY_TOO_LIGHT = "plan.empty_too_light"
     #: every joint must be filled to the top: floating gains nothing
     FILL_ALL_THE_WAY = "plan.fill_all_the_way"
+    #: the set-down weight buckles a screen or overstresses a joint below the
+    #: neutral point: quantities ``set_down`` and ``max_set_down`` (the most
+    #: that keeps both limits; nan: not known)
+    SET_DOWN_TOO_HEAVY = "plan.set_down_too_heavy"
 
 
 #: Limit margins below this count as over the limit [-].  A fill schedule
@@ -158,6 +165,8 @@ class LandingPlan:
     neutral_point : depth of the neutral point when landed with the
         set-down weight [m] (nan: all in tension)
     grouting : the grout check and lifts (None: no grout planned)
+    buckling : buckling below the neutral point with the set-down weight
+        (None: nothing set down)
     landed : the landed string with the set-down weight (true force and
         effective tension at every joint face)
     unrated : loaded parts with no rating (findings)
@@ -182,6 +191,7 @@ class LandingPlan:
     landed: StepProfile
     grouting: GroutPlan | None = None
     unrated: tuple[Finding, ...] = ()
+    buckling: BucklingCheck | None = None
     reasons: tuple[Finding, ...] = ()
     notes: tuple[Finding, ...] = ()
 
@@ -644,6 +654,61 @@ def landed_profile(inp: PlanInputs, trial: Trial) -> StepProfile:
                         slack_off=inp.settings.set_down_weight)
 
 
+def check_set_down(inp: PlanInputs, trial: Trial,
+                   landed: StepProfile) -> tuple[Trial, BucklingCheck | None]:
+    """Buckling below the neutral point with the set-down weight
+    (:func:`rigplan.engine.buckling.check_buckling`, vertical hole, the
+    tension design factor on the combined stress).  Two limits join the
+    chosen run's: a screen in effective compression above its critical
+    buckling load (``screen buckling``), and the axial plus helical bending
+    stress of a joint against its yield (``buckling stress``); either over
+    its limit means the string cannot be landed with that set-down weight.
+    Joints in compression whose buckling cannot be worked out (modulus,
+    hole diameter or yield unknown) are unrated parts."""
+    if not inp.settings.set_down_weight > 0:
+        return trial, None
+    joints = inp.joints
+    modulus = joints.modulus if joints.modulus is not None else np.full(joints.n, np.nan)
+    screens = np.array([k in PERFORATED_KINDS for k in joints.kind], dtype=bool)
+    set_down = float(inp.settings.set_down_weight)
+    chk = check_buckling(joints, landed, inp.hole.diameter, modulus,
+                         inp.settings.design.tension, set_down=set_down, screens=screens)
+    label = joints.label
+    limits = []
+    screen = (screens[:len(chk.compression)] & (chk.compression > 0)
+              & np.isfinite(chk.sinusoidal_load))
+    if np.any(screen):
+        with np.errstate(divide="ignore", invalid="ignore"):
+            ratio = np.where(chk.sinusoidal_load > 0, chk.compression / chk.sinusoidal_load, np.inf)
+        j = int(np.argmax(np.where(screen, ratio, -np.inf)))
+        margin = 1.0 - ratio[j] if np.isfinite(ratio[j]) else -1.0
+        limits.append(Limit(LimitName.SCREEN_BUCKLING, float(chk.compression[j]),
+                            float(chk.sinusoidal_load[j]), float(margin), Kind.FORCE,
+                            joint=j + 1, label=label[j]))
+    util = chk.stress_utilization
+    if np.any(np.isfinite(util)):
+        j = int(np.nanargmax(util))
+        stress = chk.design_factor * (chk.axial_stress[j] + chk.bending_stress[j])
+        limits.append(Limit(LimitName.BUCKLING_STRESS, float(stress),
+                            float(joints.yield_strength[j]), float(1.0 - util[j]), Kind.STRESS,
+                            joint=j + 1, label=label[j]))
+    unknown = tuple(Finding(PlanCode.UNRATED_PART, Severity.WARNING, joint=j + 1,
+                            label=label[j], context={"part": "buckling"})
+                    for j in np.flatnonzero(chk.unknown).tolist())
+    ok = all(lim.margin >= -MARGIN_TOLERANCE for lim in limits)
+    chosen = dataclasses.replace(trial.chosen, limits=trial.chosen.limits + tuple(limits),
+                                 unrated=trial.chosen.unrated + unknown,
+                                 ok=trial.chosen.ok and ok)
+    trial = dataclasses.replace(trial, chosen=chosen)
+    over = [lim for lim in limits if lim.margin < -MARGIN_TOLERANCE]
+    if over and trial.verdict is not None and trial.verdict.lands:
+        action = Finding(PlanCode.SET_DOWN_TOO_HEAVY, Severity.ACTION,
+                         quantities={"set_down": (set_down, Kind.FORCE),
+                                     "max_set_down": (chk.max_set_down, Kind.FORCE)})
+        trial = trial.add(*(over_limit(lim) for lim in over), action, verdict=CANNOT_LAND)
+    return trial, chk
+
+
 def governing_limit(trial: Trial) -> Limit:
     """The limit with the least margin of the chosen run; the hole depth for
     a string longer than the hole; the staged setting's least margin when it
@@ -690,9 +755,10 @@ def plan_landing(joints: JointArrays, hole: Hole, rig: Rig, settings: Settings,
     trial = try_stages(inp, trial)
     trial = cannot_land(trial)
     trial = check_hole_depth(inp, trial)
+    landed = landed_profile(inp, trial)
+    trial, buckling = check_set_down(inp, trial, landed)
     unrated = unrated_parts(inp, trial)
     trial = check_unrated(trial, unrated)
-    landed = landed_profile(inp, trial)
     return LandingPlan(
         verdict=trial.verdict, governing=governing_limit(trial),
         path=cap, dead_load=inp.dead_load, joints=joints, hole=hole, settings=settings,
@@ -703,6 +769,7 @@ def plan_landing(joints: JointArrays, hole: Hole, rig: Rig, settings: Settings,
                        else float("nan")),
         grouting=plan_grouting(inp, grout), landed=landed,
         unrated=unrated, reasons=trial.reasons, notes=crew_notes(joints, trial),
+        buckling=buckling,
     )
 
 

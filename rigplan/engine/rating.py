@@ -317,6 +317,7 @@ def rate_joints(specs: Sequence[JointSpec], materials: Mapping[str, Material] | 
         body_rating=base.body_rating[w], connection_rating=base.connection_rating[w],
         collapse_method=tuple(base.collapse_method[i] for i in which),
         yield_strength=base.yield_strength[w], rating_wall=base.rating_wall[w],
+        modulus=base.modulus[w],
     )
 
 
@@ -407,5 +408,5 @@ def rate_each_joint(specs: Sequence[JointSpec], materials: Mapping[str, Material
         body_rating=body,
         connection_rating=connection,
         collapse_method=tuple(str(x) for x in method),
-        yield_strength=sy, rating_wall=t_min,
+        yield_strength=sy, rating_wall=t_min, modulus=e_mod,
     )

@@ -108,6 +108,8 @@ class JointArrays:
     yield_strength : ndarray  minimum yield of each joint's material [Pa]
         (optional; used for collapse under axial load)
     rating_wall : ndarray  the wall the ratings use [m] (minimum or measured)
+    modulus : ndarray  Young's modulus of each joint's material [Pa] (optional,
+        nan: unknown; used for buckling below the neutral point)
     """
 
     label: tuple
@@ -123,6 +125,7 @@ class JointArrays:
     collapse_method: tuple = ()
     yield_strength: np.ndarray | None = None   # minimum yield [Pa] (nan: unknown)
     rating_wall: np.ndarray | None = None      # wall the ratings use [m]
+    modulus: np.ndarray | None = None          # Young's modulus [Pa] (nan: unknown)
 
     def __post_init__(self):
         n = len(self.length)
@@ -148,6 +151,7 @@ class JointArrays:
             collapse_method=tuple(self.collapse_method[sl]) if self.collapse_method else (),
             yield_strength=None if self.yield_strength is None else self.yield_strength[sl],
             rating_wall=None if self.rating_wall is None else self.rating_wall[sl],
+            modulus=None if self.modulus is None else self.modulus[sl],
         )
 
 

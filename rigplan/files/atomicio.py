@@ -12,6 +12,12 @@ complete new one, never a mix or a truncated file:
 A symbolic link as target is followed: the file it points to is replaced and
 the link stays.  An existing file's permission bits are kept; a new file
 gets the usual ``0o666`` less the process umask.
+
+With ``backup=True`` the version being replaced is kept beside it as
+``<name>.~N~`` (N = 1, 2, ... the next free number, as GNU ``cp
+--backup=numbered`` names them): a hard link to the old file made before the
+rename, so the old content is never copied or at risk; where the file system
+has no hard links it is copied (and fsynced) first.
 """
 
 from __future__ import annotations
@@ -20,7 +26,7 @@ import os
 import secrets
 import stat
 
-__all__ = ["atomic_write_bytes", "atomic_write_text", "fsync_directory"]
+__all__ = ["atomic_write_bytes", "atomic_write_text", "backup_path", "fsync_directory"]
 
 
 def fsync_directory(directory: str | os.PathLike) -> None:
@@ -37,7 +43,46 @@ def fsync_directory(directory: str | os.PathLike) -> None:
         os.close(fd)
 
 
-def atomic_write_bytes(path: str | os.PathLike, data: bytes) -> None:
+def backup_path(path: str | os.PathLike) -> str:
+    """The next free numbered backup name of ``path``: ``<path>.~N~``.
+
+    >>> import tempfile, pathlib
+    >>> d = pathlib.Path(tempfile.mkdtemp())
+    >>> backup_path(d / "plan.toml").endswith("plan.toml.~1~")
+    True
+    """
+    target = os.fspath(path)
+    n = 1
+    while os.path.lexists(f"{target}.~{n}~"):
+        n += 1
+    return f"{target}.~{n}~"
+
+
+def _keep_backup(target: str) -> str | None:
+    """Keep the current ``target`` as a numbered backup; return its name."""
+    if not os.path.exists(target):
+        return None
+    while True:
+        backup = backup_path(target)
+        try:
+            os.link(target, backup)
+            return backup
+        except FileExistsError:
+            continue        # taken meanwhile: the next number
+        except OSError:
+            break           # no hard links here: copy
+    with open(target, "rb") as src:
+        data = src.read()
+    fd = os.open(backup, os.O_WRONLY | os.O_CREAT | os.O_EXCL, 0o666)
+    with os.fdopen(fd, "wb") as fh:
+        fh.write(data)
+        fh.flush()
+        os.fsync(fh.fileno())
+    return backup
+
+
+def atomic_write_bytes(path: str | os.PathLike, data: bytes, *,
+                       backup: bool = False) -> str | None:
     """Replace the file at ``path`` with ``data``, atomically and durably.
 
     Parameters
@@ -46,6 +91,14 @@ def atomic_write_bytes(path: str | os.PathLike, data: bytes) -> None:
         Target file; its directory must exist.
     data : bytes
         Complete new content.
+    backup : bool
+        Keep the version replaced as ``<path>.~N~`` (see the module notes).
+
+    Returns
+    -------
+    str or None
+        The backup's path (None without ``backup`` or when there was no
+        file to keep).
 
     Raises
     ------
@@ -72,6 +125,7 @@ def atomic_write_bytes(path: str | os.PathLike, data: bytes) -> None:
             os.fsync(fh.fileno())
         if mode is not None:
             os.chmod(tmp, mode)
+        kept = _keep_backup(target) if backup else None
         os.replace(tmp, target)
     except BaseException:
         try:
@@ -80,14 +134,17 @@ def atomic_write_bytes(path: str | os.PathLike, data: bytes) -> None:
             pass
         raise
     fsync_directory(directory)
+    return kept
 
 
-def atomic_write_text(path: str | os.PathLike, text: str, *, encoding: str = "utf-8") -> None:
+def atomic_write_text(path: str | os.PathLike, text: str, *, encoding: str = "utf-8",
+                      backup: bool = False) -> str | None:
     """Replace the file at ``path`` with ``text``, atomically and durably.
 
     The text is encoded as given: no newline translation (write ``"\\r\\n"``
-    yourself where a format asks for it).  See :func:`atomic_write_bytes`.
+    yourself where a format asks for it).  See :func:`atomic_write_bytes`;
+    returns the backup's path with ``backup=True``.
     """
     if not isinstance(text, str):
         raise TypeError(f"atomic_write_text: expected str, got {type(text).__name__}")
-    atomic_write_bytes(path, text.encode(encoding))
+    return atomic_write_bytes(path, text.encode(encoding), backup=backup)

@@ -46,19 +46,26 @@ def old_casing_from_spec(spec):
                      ellipticity=spec.ellipticity), f"minimum wall ({100 * (1 - under):.1f} % of specified)"
 
 
-def liner_job(job, plan, landing, caliper_path, x_curve=None, y_curve=None) -> LinerJob:
+def liner_job(plan_path, plan, landing, caliper_path=None, x_curve=None,
+              y_curve=None) -> LinerJob:
     """Check a liner against the old casing logged in ``caliper_path``.
 
-    ``job``/``plan``/``landing`` come from the usual loading and planning of
-    the plan file (the liner is the string; the old casing is the hole).
+    ``plan``/``landing`` come from the usual loading and planning of the
+    plan file at ``plan_path`` (the liner is the string; the old casing is
+    the hole).  Without ``caliper_path``, the plan's
+    ``existing_casing.caliper_log``.
     """
     from rigplan.engine.liner import assess_liner, liner_ods, shape_from_diameters
     from rigplan.files.formats.linerfile import read_caliper_las, read_existing_casing
-    spec = read_existing_casing(job.plan_path)
+    spec = read_existing_casing(plan_path)
     if spec is None:
-        raise InputError(f"{job.plan_path}: existing_casing",
+        raise InputError(f"{plan_path}: existing_casing",
                          "required for a liner job: an [existing_casing] table with od, wall, "
                          "material, top and bottom")
+    caliper_path = caliper_path or spec.caliper_log
+    if caliper_path is None:
+        raise InputError(f"{plan_path}: existing_casing.caliper_log",
+                         "no caliper log: give --caliper LOG.las or caliper_log in the plan")
     log = read_caliper_las(caliper_path, x_curve, y_curve)
     casing, basis = old_casing_from_spec(spec)
     shape = shape_from_diameters(log.depth, log.diameters)
@@ -89,3 +96,56 @@ def _depths(spec) -> str:
     from rigplan.files import units
     return (f"old casing from {units.format(spec.top, 'length', 'us', 1)} to "
             f"{units.format(spec.bottom, 'length', 'us', 1)}")
+
+
+def running_order_for(plan, rig, path_name=None):
+    """The best running order of a plan's (tallied) running joints.
+
+    ``rigplan.engine.placement.best_running_order`` with the job's hole,
+    rig, path, settings, float equipment and grout bound in.
+    """
+    from rigplan.engine.placement import best_running_order
+    from rigplan.engine.planner import plan_landing
+    from rigplan.engine.rating import rate_joints
+
+    def plan_for(order):
+        return plan_landing(rate_joints(order), plan.hole, rig, plan.settings,
+                            closure=plan.closure, path=path_name, grout=plan.grout)
+
+    try:
+        return best_running_order(list(plan.running_joints()), plan_for, plan.closure)
+    except InputError:
+        raise
+    except ValueError as err:
+        raise InputError(plan.source or plan.name, str(err)) from None
+
+
+def placed_tally_rows(plan, result):
+    """Tally rows of every joint of ``plan`` in the proposed order, with run_order.
+
+    Set-aside joints keep their places; running joints follow
+    ``result.perm``.
+    """
+    import dataclasses
+    from rigplan.files.formats.tally import tally_from_plan
+    running = [i for i, j in enumerate(plan.joints) if not j.rejected]
+    joints = list(plan.joints)
+    for pos, src in enumerate(result.perm):
+        joints[running[pos]] = plan.joints[running[src]]
+    rows = tally_from_plan(dataclasses.replace(plan, joints=tuple(joints)))
+    return [dataclasses.replace(r, run_order=i) for i, r in enumerate(rows, start=1)]
+
+
+def free_path(path):
+    """``path`` if no file is there, else the first free ``stem-2.suffix``, ``-3`` ..."""
+    from pathlib import Path
+    p = Path(path)
+    if not p.exists():
+        return p
+    name, suffix = p.name.split(".", 1) if "." in p.name else (p.name, "")
+    k = 2
+    while True:
+        cand = p.with_name(f"{name}-{k}" + (f".{suffix}" if suffix else ""))
+        if not cand.exists():
+            return cand
+        k += 1

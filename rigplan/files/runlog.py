@@ -14,22 +14,40 @@ replayed from the events; opening an existing log resumes where it stopped.
 
 Event kinds:
 
-``run``      a joint went in the hole: ``label``, ``value`` = measured length
-             [m] or none, ``note``;
+``run``      a joint went in the hole: ``label``, ``value`` = its length [m]
+             or none, ``basis`` = ``measured`` (typed from the tape) or
+             ``planned`` (the planned length accepted, nothing measured),
+             ``note``;
 ``reject``   a joint was set aside: ``label``, ``note`` = reason;
-``undo``     cancels the latest run or reject not yet undone: ``ref`` = its
-             id, ``label`` copied from it;
+``undo``     cancels the latest run, reject or reading not yet undone:
+             ``ref`` = its id, ``label`` copied from it;
 ``observe``  a weight-indicator reading: ``step`` (joints in the hole),
-             ``value`` = hook load [N], ``predicted`` = planned hook load [N].
+             ``value`` = hook load [N], ``predicted`` = planned hook load [N]
+             at the time of entry (kept for the record; a reading is judged
+             against the plan as it stands now).
+
+One writer per job: :meth:`RunLog.open_writer` takes an exclusive lock
+(``flock``) on a sidecar file ``<log>.lock`` for as long as the log is open.
+The kernel releases it when the process ends, however it ends (a SIGKILL
+included), so a stale lock never blocks the crew.  A second program on the
+same job gets :class:`RunLogLocked` (naming the holder) and may open the log
+read-only (``read_only=True``) and follow the writer's entries
+(:meth:`RunLog.changed`).
+
+Schema version 2 added ``basis`` and undoable readings; a version-1 log is
+upgraded in place when a writer opens it (a column and a trigger are added,
+no entry is touched).
 """
 
 from __future__ import annotations
 
 import csv
 import io
+import json
 import math
 import numbers
 import os
+import socket
 import sqlite3
 import threading
 from dataclasses import dataclass, field
@@ -45,6 +63,8 @@ __all__ = [
     "Event",
     "Observation",
     "RunLog",
+    "RunLogLocked",
+    "RunLogReadOnly",
     "RunLogWriteError",
     "RunState",
     "SchemaVersionError",
@@ -52,7 +72,7 @@ __all__ = [
 ]
 
 #: Schema version written to ``PRAGMA user_version``.
-SCHEMA_VERSION = 1
+SCHEMA_VERSION = 2
 
 #: ``PRAGMA application_id`` marking a rigplan run log (ASCII "RGPL").
 APPLICATION_ID = 0x5247504C
@@ -60,8 +80,18 @@ APPLICATION_ID = 0x5247504C
 #: Suffix of a run-log file.
 LOG_SUFFIX = ".rigrun.sqlite"
 
-#: Columns of the exported tally.
-TALLY_COLUMNS = ("seq", "label", "measured_length_m", "status", "note", "time")
+#: Suffix of the writer's lock file beside the log.
+LOCK_SUFFIX = ".lock"
+
+#: How a run's length was obtained.
+BASES = ("measured", "planned")
+
+#: Note of a version-1 entry that accepted the planned length.
+_V1_PLANNED_NOTE = "planned length accepted"
+
+#: Columns of the exported tally (lengths in metres; readable as a tally).
+TALLY_COLUMNS = ("seq", "label", "status", "measured_length [m]", "planned_length [m]",
+                 "length_source", "note", "time")
 
 EVENT_KINDS = ("run", "reject", "undo", "observe")
 
@@ -80,6 +110,7 @@ CREATE TABLE events (
     ref       INTEGER REFERENCES events(id),
     step      INTEGER,
     predicted REAL,
+    basis     TEXT CHECK (basis IS NULL OR basis IN ('measured', 'planned')),
     CHECK (kind NOT IN ('run', 'reject') OR (label IS NOT NULL AND label <> '')),
     CHECK ((kind = 'undo') = (ref IS NOT NULL)),
     CHECK (kind <> 'observe' OR (step IS NOT NULL AND value IS NOT NULL))
@@ -90,12 +121,24 @@ CREATE TRIGGER events_no_update BEFORE UPDATE ON events
 BEGIN SELECT RAISE(ABORT, 'the run log is append-only'); END;
 CREATE TRIGGER events_no_delete BEFORE DELETE ON events
 BEGIN SELECT RAISE(ABORT, 'the run log is append-only'); END;
+"""
+
+_UNDO_TRIGGER = """
 CREATE TRIGGER events_undo_target BEFORE INSERT ON events
 WHEN NEW.kind = 'undo'
  AND (SELECT kind FROM events WHERE id = NEW.ref) IS NOT 'run'
  AND (SELECT kind FROM events WHERE id = NEW.ref) IS NOT 'reject'
-BEGIN SELECT RAISE(ABORT, 'an undo must point at a run or reject entry'); END;
+ AND (SELECT kind FROM events WHERE id = NEW.ref) IS NOT 'observe'
+BEGIN SELECT RAISE(ABORT, 'an undo must point at a run, reject or reading entry'); END;
 """
+
+#: Version 1 -> 2: the basis column, and readings may be undone.
+_UPGRADE_1_TO_2 = (
+    "ALTER TABLE events ADD COLUMN basis TEXT "
+    "CHECK (basis IS NULL OR basis IN ('measured', 'planned'))",
+    "DROP TRIGGER events_undo_target",
+    _UNDO_TRIGGER.strip(),
+)
 
 _ACTIVE_FOR_LABEL = """
 SELECT e.id, e.kind, e.note FROM events AS e
@@ -106,12 +149,13 @@ ORDER BY e.id
 
 _LATEST_UNDOABLE = """
 SELECT e.id, e.label FROM events AS e
-WHERE e.kind IN ('run', 'reject')
+WHERE e.kind IN ('run', 'reject', 'observe')
   AND NOT EXISTS (SELECT 1 FROM events AS u WHERE u.kind = 'undo' AND u.ref = e.id)
 ORDER BY e.id DESC LIMIT 1
 """
 
-_COLUMNS = "id, ts, kind, label, value, note, ref, step, predicted"
+_COLUMNS = "id, ts, kind, label, value, note, ref, step, predicted, basis"
+_COLUMNS_V1 = "id, ts, kind, label, value, note, ref, step, predicted, NULL"
 
 
 class SchemaVersionError(InputError):
@@ -120,6 +164,22 @@ class SchemaVersionError(InputError):
 
 class RunLogWriteError(OSError):
     """An entry could not be committed; it was NOT recorded (keep it and retry)."""
+
+
+class RunLogLocked(InputError):
+    """Another program holds the job's run log for writing.
+
+    ``holder`` is what the writer wrote in the lock file (``pid``, ``host``,
+    ``since``), empty when unreadable.
+    """
+
+    def __init__(self, where: str, message: str, holder: dict | None = None):
+        super().__init__(where, message)
+        self.holder = dict(holder or {})
+
+
+class RunLogReadOnly(InputError):
+    """The log was opened read-only (another program records this job)."""
 
 
 @dataclass(frozen=True)
@@ -134,7 +194,9 @@ class Event:
     note : free text; the reason for a reject
     ref : id of the entry an undo cancels
     step : joints in the hole at a weight reading (observe)
-    predicted : planned hook load [N] at that step (observe, or None)
+    predicted : planned hook load [N] at that step when entered (observe,
+        or None)
+    basis : 'measured' or 'planned' (run; None in a version-1 log)
     """
 
     id: int
@@ -146,6 +208,23 @@ class Event:
     ref: int | None
     step: int | None = None
     predicted: float | None = None
+    basis: str | None = None
+
+    @property
+    def length_basis(self) -> str | None:
+        """How a run's length was obtained: 'measured', 'planned' or None.
+
+        Version-1 entries carry no basis: an entry with no length or with
+        the note the app wrote when the planned length was accepted counts
+        as planned.
+        """
+        if self.kind != "run":
+            return None
+        if self.basis is not None:
+            return self.basis
+        if self.value is None or self.note == _V1_PLANNED_NOTE:
+            return "planned"
+        return "measured"
 
 
 @dataclass(frozen=True)
@@ -154,7 +233,9 @@ class Observation:
 
     step : joints in the hole [-] (0 = empty hook)
     hook_load_n : hook load read [N]
-    predicted_n : planned hook load [N], None when not given
+    predicted_n : planned hook load [N] when the reading was entered, None
+        when not given (kept for the record: judge the reading against the
+        plan as it stands now)
     """
 
     id: int
@@ -170,17 +251,25 @@ class RunState:
     """The run as replayed from the log.
 
     run : joints in the hole in running order, ``(label, measured length [m]
-        or None)``, undone entries left out
+        or None)``, undone entries left out; None when nothing was measured
+        (the planned length was accepted)
     rejected : label -> reason for joints set aside (not undone)
-    observations : weight readings in the order taken
+    observations : weight readings in the order taken (undone ones left out)
     next_index : 0-based running-order index of the next joint (the number of
         joints in the hole; array index 0 is joint 1)
+    basis : label -> 'measured' or 'planned' for each joint in the hole
+    planned_at_entry : label -> the planned length [m] accepted for a joint
+        run on its planned length (None when not recorded)
+    last_id : id of the latest event (0 for an empty log)
     """
 
     run: list = field(default_factory=list)
     rejected: dict = field(default_factory=dict)
     observations: list = field(default_factory=list)
     next_index: int = 0
+    basis: dict = field(default_factory=dict)
+    planned_at_entry: dict = field(default_factory=dict)
+    last_id: int = 0
 
 
 def log_path_for(plan_path: str | os.PathLike) -> Path:
@@ -217,11 +306,19 @@ class RunLog:
     path : str or path-like
         The log file (see :func:`log_path_for`); created when missing, its
         directory must exist.
+    lock : bool
+        Take the job's writer lock (see :meth:`open_writer`); raises
+        :class:`RunLogLocked` when another program holds it.
+    read_only : bool
+        Open for reading only: every method that records raises
+        :class:`RunLogReadOnly`.  The file is not created or upgraded.
 
     Raises
     ------
     SchemaVersionError
         The file was written by a newer rigplan.
+    RunLogLocked
+        ``lock`` was asked and another program holds the log.
     rigplan.errors.InputError
         The file cannot be opened or is not a rigplan run log.
 
@@ -231,28 +328,92 @@ class RunLog:
     open the same file.
     """
 
-    def __init__(self, path: str | os.PathLike):
+    def __init__(self, path: str | os.PathLike, *, lock: bool = False,
+                 read_only: bool = False):
         self.path = Path(path)
         self._lock = threading.RLock()
         self._conn = None
+        self._lock_fd = None
+        self.read_only = bool(read_only)
+        self._has_basis = True
+        self._data_version = None
         where = str(self.path)
         if self.path.is_dir():
             raise InputError(where, "expected a run-log file, found a directory")
+        if self.read_only and not self.path.exists():
+            raise InputError(where, "no run log to read (the job has not been run)")
+        if lock and not self.read_only:
+            self._lock_fd = _take_lock(self.lock_path)
         try:
-            conn = sqlite3.connect(where, isolation_level=None, timeout=10.0,
-                                   check_same_thread=False)
-        except sqlite3.Error as exc:
-            raise InputError(where, f"cannot open the run log ({exc})") from exc
-        try:
-            self._open(conn)
-        except sqlite3.DatabaseError as exc:
-            conn.close()
-            raise InputError(where, f"expected a rigplan run log (SQLite file), "
-                                    f"cannot read it ({exc})") from exc
+            try:
+                conn = sqlite3.connect(where, isolation_level=None, timeout=10.0,
+                                       check_same_thread=False)
+            except sqlite3.Error as exc:
+                raise InputError(where, f"cannot open the run log ({exc})") from exc
+            try:
+                self._open(conn)
+            except sqlite3.DatabaseError as exc:
+                conn.close()
+                raise InputError(where, f"expected a rigplan run log (SQLite file), "
+                                        f"cannot read it ({exc})") from exc
+            except BaseException:
+                conn.close()
+                raise
         except BaseException:
-            conn.close()
+            self._release_lock()
             raise
         self._conn = conn
+
+    @classmethod
+    def open_writer(cls, path: str | os.PathLike) -> "RunLog":
+        """Open the log as the job's one writer (exclusive lock held until
+        :meth:`close`); raises :class:`RunLogLocked` when another program
+        records this job."""
+        return cls(path, lock=True)
+
+    @property
+    def lock_path(self) -> Path:
+        """The writer's lock file: ``<log>.lock`` beside the log."""
+        return self.path.with_name(self.path.name + LOCK_SUFFIX)
+
+    @property
+    def holds_lock(self) -> bool:
+        return self._lock_fd is not None
+
+    def holder(self) -> dict:
+        """What the writer holding the lock wrote about itself (may be empty)."""
+        return _read_holder(self.lock_path)
+
+    def try_lock(self) -> bool:
+        """Become the writer if nobody else is (a read-only log turns writable).
+
+        Returns True when this log now holds the lock.
+        """
+        with self._lock:
+            if self._lock_fd is not None:
+                return True
+            try:
+                fd = _take_lock(self.lock_path)
+            except RunLogLocked:
+                return False
+            self._lock_fd = fd
+            if self.read_only:
+                self.read_only = False
+                try:
+                    self._upgrade(self._connection())
+                except BaseException:
+                    self.read_only = True
+                    self._release_lock()
+                    raise
+            return True
+
+    def _release_lock(self) -> None:
+        fd, self._lock_fd = self._lock_fd, None
+        if fd is not None:
+            try:
+                os.close(fd)   # closing the descriptor releases the flock
+            except OSError:
+                pass
 
     @classmethod
     def for_plan(cls, plan_path: str | os.PathLike) -> "RunLog":
@@ -267,6 +428,11 @@ class RunLog:
         conn.execute("PRAGMA foreign_keys=ON")
         version, app_id, n_tables = self._header(conn)
         self._check_header(version, app_id, n_tables)
+        if self.read_only:
+            if version == 0:
+                raise InputError(where, "the run log is empty and not yet set up by its writer")
+            self._has_basis = _has_column(conn, "events", "basis")
+            return
         mode = conn.execute("PRAGMA journal_mode=WAL").fetchone()[0]
         if str(mode).lower() != "wal":
             raise InputError(where, f"cannot use write-ahead logging for the run log "
@@ -278,7 +444,7 @@ class RunLog:
                 self._check_header(version, app_id, n_tables)
                 if version == 0:
                     # one by one: executescript() would COMMIT first
-                    for statement in _split_sql(_SCHEMA):
+                    for statement in _split_sql(_SCHEMA + _UNDO_TRIGGER):
                         conn.execute(statement)
                     conn.execute("INSERT INTO meta (key, value) VALUES ('created', ?)", (_utc_now(),))
                     conn.execute("INSERT INTO meta (key, value) VALUES ('created_by', ?)",
@@ -290,6 +456,28 @@ class RunLog:
                 if conn.in_transaction:
                     conn.execute("ROLLBACK")
                 raise
+        self._upgrade(conn)
+
+    def _upgrade(self, conn: sqlite3.Connection) -> None:
+        """Bring a version-1 log to version 2 (adds a column and a trigger;
+        no entry is changed).  Readers of either version keep working."""
+        if conn.execute("PRAGMA user_version").fetchone()[0] >= SCHEMA_VERSION:
+            self._has_basis = True
+            return
+        conn.execute("BEGIN IMMEDIATE")
+        try:
+            if conn.execute("PRAGMA user_version").fetchone()[0] < 2:
+                for statement in _UPGRADE_1_TO_2:
+                    conn.execute(statement)
+                conn.execute("INSERT OR REPLACE INTO meta (key, value) VALUES ('upgraded', ?)",
+                             (f"{_utc_now()} to version 2 by rigplan {__version__}",))
+                conn.execute("PRAGMA user_version=2")
+            conn.execute("COMMIT")
+        except BaseException:
+            if conn.in_transaction:
+                conn.execute("ROLLBACK")
+            raise
+        self._has_basis = True
 
     @staticmethod
     def _header(conn):
@@ -319,10 +507,13 @@ class RunLog:
         return self._conn
 
     def _append(self, kind, label=None, value=None, note="", ref=None, step=None,
-                predicted=None, check=None) -> int:
+                predicted=None, check=None, basis=None) -> int:
         """Commit one event in its own immediate transaction; return its id."""
         with self._lock:
             conn = self._connection()
+            if self.read_only:
+                raise RunLogReadOnly(str(self.path), "opened read-only: another program "
+                                                     "records this job (nothing was recorded)")
             try:
                 conn.execute("BEGIN IMMEDIATE")
                 try:
@@ -331,9 +522,9 @@ class RunLog:
                         if extra is not None:  # undo: the checker resolves target
                             ref, label = extra
                     cur = conn.execute(
-                        "INSERT INTO events (ts, kind, label, value, note, ref, step, predicted)"
-                        " VALUES (?, ?, ?, ?, ?, ?, ?, ?)",
-                        (_utc_now(), kind, label, value, note, ref, step, predicted))
+                        "INSERT INTO events (ts, kind, label, value, note, ref, step, predicted,"
+                        " basis) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?)",
+                        (_utc_now(), kind, label, value, note, ref, step, predicted, basis))
                     event_id = cur.lastrowid
                     conn.execute("COMMIT")
                 except BaseException:
@@ -360,7 +551,8 @@ class RunLog:
             raise InputError(where, f"expected the note as text, got {type(note).__name__}")
         return note
 
-    def record_run(self, label: str, measured_length_m: float | None, note: str = "") -> int:
+    def record_run(self, label: str, measured_length_m: float | None, note: str = "",
+                   basis: str | None = None) -> int:
         """Record that joint ``label`` went in the hole; return the event id.
 
         Parameters
@@ -368,9 +560,14 @@ class RunLog:
         label : str
             Joint label (surrounding blanks are dropped).
         measured_length_m : float or None
-            Tally length measured on site [m], > 0; None when not measured.
+            Tally length [m], > 0: measured on site, or with
+            ``basis="planned"`` the planned length accepted; None when not
+            measured and not given.
         note : str
             Free text kept with the entry.
+        basis : 'measured', 'planned' or None
+            How the length was obtained; default 'measured' with a length,
+            'planned' without one.
 
         Raises
         ------
@@ -388,6 +585,12 @@ class RunLog:
                 raise InputError(f"{where}.measured_length_m",
                                  f"expected a measured length > 0 m or none, got {measured_length_m!r}")
             measured_length_m = float(measured_length_m)
+        if basis is None:
+            basis = "planned" if measured_length_m is None else "measured"
+        if basis not in BASES:
+            raise InputError(f"{where}.basis", f"expected one of {', '.join(BASES)}, got {basis!r}")
+        if basis == "measured" and measured_length_m is None:
+            raise InputError(f"{where}.basis", "a measured run needs its measured length")
         note = self._check_note(f"{where}.note", note)
 
         def check(conn):
@@ -398,7 +601,8 @@ class RunLog:
                 raise InputError(where, f"joint {label!r} was set aside (entry {eid}: "
                                         f"{reason!r}); undo the rejection first")
 
-        return self._append("run", label=label, value=measured_length_m, note=note, check=check)
+        return self._append("run", label=label, value=measured_length_m, note=note, check=check,
+                            basis=basis)
 
     def reject(self, label: str, reason: str) -> int:
         """Record that joint ``label`` was set aside, with the reason; return the id."""
@@ -416,11 +620,11 @@ class RunLog:
         return self._append("reject", label=label, note=reason, check=check)
 
     def undo(self, note: str = "") -> int | None:
-        """Cancel the latest run or reject entry not yet undone.
+        """Cancel the latest run, reject or reading entry not yet undone.
 
         Appends an ``undo`` event pointing at it (nothing is deleted) and
         returns the undo's id; returns None when there is nothing to undo.
-        Repeated calls walk further back.  Weight readings are not undone.
+        Repeated calls walk further back.
         """
         note = self._check_note(self._where("undo.note"), note)
 
@@ -453,8 +657,9 @@ class RunLog:
         where = self._where(f"observe step {step!r}")
         if not isinstance(step, numbers.Integral) or isinstance(step, bool) or step < 0:
             raise InputError(where, f"expected the step as a whole number of joints >= 0, got {step!r}")
-        if not _is_real(hook_load_n) or not math.isfinite(hook_load_n):
-            raise InputError(f"{where}.hook_load_n", f"expected a hook load in N, got {hook_load_n!r}")
+        if not _is_real(hook_load_n) or not math.isfinite(hook_load_n) or hook_load_n < 0:
+            raise InputError(f"{where}.hook_load_n",
+                             f"expected a hook load >= 0 N, got {hook_load_n!r}")
         if predicted_n is not None:
             if not _is_real(predicted_n) or not math.isfinite(predicted_n):
                 raise InputError(f"{where}.predicted_n",
@@ -468,25 +673,94 @@ class RunLog:
 
     def events(self) -> list:
         """Every event in the order recorded."""
+        cols = _COLUMNS if self._has_basis else _COLUMNS_V1
         with self._lock:
             rows = self._connection().execute(
-                f"SELECT {_COLUMNS} FROM events ORDER BY id").fetchall()
+                f"SELECT {cols} FROM events ORDER BY id").fetchall()
         return [_event(r) for r in rows]
 
     def state(self) -> RunState:
         """Replay the log into the present state of the run."""
         return _replay(self.events())
 
-    def export_tally_csv(self, path_or_file, planned=None) -> None:
-        """Write the tally as CSV (RFC 4180, CRLF line ends).
+    def changed(self) -> bool:
+        """True when another connection committed since the last call (the
+        first call returns True).  Cheap: for following a writer."""
+        with self._lock:
+            conn = self._connection()
+            if not self._has_basis:
+                self._has_basis = _has_column(conn, "events", "basis")
+            v = conn.execute("PRAGMA data_version").fetchone()[0]
+        changed = v != self._data_version
+        self._data_version = v
+        return changed
 
-        Columns: ``seq`` (running order, 1 = first joint in the hole),
-        ``label``, ``measured_length_m`` [m, 4 decimals; blank when not
-        measured], ``status`` (``run``, ``rejected`` or ``not run``),
-        ``note`` (the reason for a rejection), ``time`` (UTC, ISO 8601).
-        Joints in the hole come first in running order, then those set aside,
-        then, when ``planned`` is given, the planned joints not yet run, with
-        ``planned <length> m`` as note.
+    def tally_entries(self, planned=None) -> list:
+        """The tally as rows, in the order of the exported sheet.
+
+        Each row is a dict: ``seq`` (running order, None when not run),
+        ``label``, ``status`` (``run``, ``rejected`` or ``not run``),
+        ``length`` [m] (the length recorded, measured or accepted, None when
+        none), ``basis`` (``measured``, ``planned`` or None), ``planned``
+        [m] (from ``planned`` or the length accepted, None when unknown),
+        ``note``, ``time`` (UTC, ISO 8601; empty when not run).  Joints in
+        the hole come first in running order, then those set aside, then,
+        when ``planned`` (label -> planned length [m] or None, in running
+        order) is given, the planned joints not yet run.
+        """
+        plan_items = []
+        if planned is not None:
+            try:
+                plan_items = list(planned.items())
+            except AttributeError:
+                raise InputError("planned", "expected a mapping of label -> planned length m") from None
+            for label, length in plan_items:
+                if length is not None and (not _is_real(length) or not math.isfinite(length)
+                                           or length <= 0):
+                    raise InputError(f"planned[{label!r}]",
+                                     f"expected a planned length > 0 m or none, got {length!r}")
+        plan_len = {str(k).strip(): v for k, v in plan_items}
+        events = self.events()
+        undone = {e.ref for e in events if e.kind == "undo"}
+        out = []
+        done = set()
+        seq = 0
+        for e in events:
+            if e.kind == "run" and e.id not in undone:
+                seq += 1
+                done.add(e.label)
+                basis = e.length_basis
+                planned_len = plan_len.get(e.label)
+                if planned_len is None and basis == "planned":
+                    planned_len = e.value
+                out.append(dict(seq=seq, label=e.label, status="run", length=e.value,
+                                basis=basis, planned=planned_len, note=e.note, time=e.ts))
+        for e in events:
+            if e.kind == "reject" and e.id not in undone:
+                done.add(e.label)
+                out.append(dict(seq=None, label=e.label, status="rejected", length=None,
+                                basis=None, planned=plan_len.get(e.label), note=e.note,
+                                time=e.ts))
+        for label, length in plan_items:
+            label = str(label).strip()
+            if label in done:
+                continue
+            out.append(dict(seq=None, label=label, status="not run", length=None, basis=None,
+                            planned=length, note="", time=""))
+        return out
+
+    def export_tally_csv(self, path_or_file, planned=None) -> None:
+        """Write the tally as CSV in metres (RFC 4180, CRLF line ends).
+
+        The sheet reads back as a tally (:mod:`rigplan.files.formats.tally`;
+        ``rigplan check --tally``).  Columns: ``seq`` (running order, 1 =
+        first joint in the hole), ``label``, ``status`` (``run``,
+        ``rejected`` or ``not run``), ``measured_length [m]`` (blank unless
+        measured on site), ``planned_length [m]``, ``length_source``
+        (``measured`` or ``planned``: the planned length accepted, nothing
+        measured), ``note``, ``time`` (UTC, ISO 8601); rows as in
+        :meth:`tally_entries`.  The app writes the same sheet in the job's
+        units (:func:`rigplan.files.formats.tally.run_tally_text`).
 
         Parameters
         ----------
@@ -498,37 +772,15 @@ class RunLog:
             Planned joints in running order, label -> planned length [m] (or
             None).
         """
-        events = self.events()
-        undone = {e.ref for e in events if e.kind == "undo"}
-        done_labels = set()
+        rows = self.tally_entries(planned)
         buf = io.StringIO()
         writer = csv.writer(buf, lineterminator="\r\n")
         writer.writerow(TALLY_COLUMNS)
-        seq = 0
-        for e in events:
-            if e.kind == "run" and e.id not in undone:
-                seq += 1
-                done_labels.add(e.label)
-                writer.writerow([seq, e.label, _format_length(e.value), "run", e.note, e.ts])
-        for e in events:
-            if e.kind == "reject" and e.id not in undone:
-                done_labels.add(e.label)
-                writer.writerow(["", e.label, "", "rejected", e.note, e.ts])
-        if planned is not None:
-            try:
-                items = list(planned.items())
-            except AttributeError:
-                raise InputError("planned", "expected a mapping of label -> planned length m") from None
-            for label, length in items:
-                if length is not None and (not _is_real(length) or not math.isfinite(length)
-                                           or length <= 0):
-                    raise InputError(f"planned[{label!r}]",
-                                     f"expected a planned length > 0 m or none, got {length!r}")
-                label = str(label).strip()
-                if label in done_labels:
-                    continue
-                note = "" if length is None else f"planned {length:.4f} m"
-                writer.writerow(["", label, "", "not run", note, ""])
+        for r in rows:
+            measured = r["length"] if r["basis"] == "measured" else None
+            writer.writerow(["" if r["seq"] is None else r["seq"], r["label"], r["status"],
+                             _format_length(measured), _format_length(r["planned"]),
+                             r["basis"] or "", r["note"], r["time"]])
         text = buf.getvalue()
         if hasattr(path_or_file, "write"):
             path_or_file.write(text)
@@ -540,11 +792,13 @@ class RunLog:
     # -- life cycle ----------------------------------------------------------
 
     def close(self) -> None:
-        """Close the file (everything recorded is already on disk)."""
+        """Close the file (everything recorded is already on disk) and let
+        go of the writer's lock."""
         with self._lock:
             if self._conn is not None:
                 self._conn.close()
                 self._conn = None
+            self._release_lock()
 
     def __enter__(self) -> "RunLog":
         return self
@@ -579,12 +833,64 @@ def _replay(events) -> RunState:
     state = RunState()
     for e in events:
         if e.kind == "run" and e.id not in undone:
-            state.run.append((e.label, e.value))
+            basis = e.length_basis
+            state.run.append((e.label, e.value if basis == "measured" else None))
+            state.basis[e.label] = basis
+            if basis == "planned":
+                state.planned_at_entry[e.label] = e.value
         elif e.kind == "reject" and e.id not in undone:
             state.rejected[e.label] = e.note
-        elif e.kind == "observe":
+        elif e.kind == "observe" and e.id not in undone:
             state.observations.append(Observation(
                 id=e.id, ts=e.ts, step=e.step, hook_load_n=e.value,
                 predicted_n=e.predicted, note=e.note))
     state.next_index = len(state.run)
+    state.last_id = events[-1].id if events else 0
     return state
+
+
+def _has_column(conn, table: str, column: str) -> bool:
+    return any(row[1] == column for row in conn.execute(f"PRAGMA table_info({table})"))
+
+
+def _take_lock(lock_path: Path) -> int:
+    """Exclusive, non-blocking ``flock`` on the lock file; return its descriptor.
+
+    Writes who holds it (pid, host, time) into the file for the message a
+    second program shows.  Raises :class:`RunLogLocked` when held elsewhere.
+    """
+    try:
+        import fcntl
+    except ImportError:  # pragma: no cover - no flock on Windows: no lock
+        return os.open(os.devnull, os.O_RDONLY)
+    where = str(lock_path)
+    try:
+        fd = os.open(where, os.O_RDWR | os.O_CREAT, 0o666)
+    except OSError as exc:
+        raise InputError(where, f"cannot create the run log's lock file ({exc.strerror})") from exc
+    try:
+        fcntl.flock(fd, fcntl.LOCK_EX | fcntl.LOCK_NB)
+    except OSError:
+        os.close(fd)
+        holder = _read_holder(lock_path)
+        who = (f" (program {holder.get('pid', '?')} on {holder.get('host', '?')}, since "
+               f"{holder.get('since', '?')})") if holder else ""
+        raise RunLogLocked(str(lock_path.with_name(lock_path.name[:-len(LOCK_SUFFIX)])),
+                           f"another rigplan records this job{who}; open it read-only or "
+                           "close the other one first", holder) from None
+    try:
+        info = json.dumps({"pid": os.getpid(), "host": socket.gethostname(),
+                           "since": _utc_now()}).encode("utf-8")
+        os.ftruncate(fd, 0)
+        os.pwrite(fd, info, 0)
+    except OSError:
+        pass  # the lock holds without the note
+    return fd
+
+
+def _read_holder(lock_path: Path) -> dict:
+    try:
+        data = json.loads(Path(lock_path).read_text(encoding="utf-8") or "{}")
+    except (OSError, ValueError):
+        return {}
+    return data if isinstance(data, dict) else {}

@@ -11,6 +11,7 @@ import math
 import numpy as np
 
 from rigplan.files import units as U
+from rigplan.present import wording as W
 
 CAUTION_OLD_CASING = (
     "Old casing is rated on the minimum wall its standard allows and the roundness the "
@@ -25,7 +26,7 @@ def _f(x):
 
 
 def _pct(x) -> str:
-    return "n/a" if x is None or not math.isfinite(x) else f"{100 * x:.1f} %"
+    return W.percent(x)
 
 
 # ---------------------------------------------------------------------------
@@ -127,13 +128,13 @@ def liner_profile_rows(lj, system: str, every: float | None = None) -> list:
     keep[-1] = True
     rows = []
     for i in np.flatnonzero(keep):
-        rows.append((U.format(z[i], "length", system, 1),
-                     U.format(a.shape.mean_id[i], "diameter", system, 3),
-                     U.format(a.shape.min_id[i], "diameter", system, 3),
+        rows.append((W.fmt(z[i], "length", system, 1),
+                     W.fmt(a.shape.mean_id[i], "diameter", system, 3),
+                     W.fmt(a.shape.min_id[i], "diameter", system, 3),
                      f"{100 * a.shape.ellipticity[i]:.2f} %",
-                     U.format(a.rating[i], "pressure", system, 0),
+                     W.fmt(a.rating[i], "pressure", system, 0),
                      "" if not np.isfinite(a.fit.clearance[i])
-                     else U.format(a.fit.clearance[i], "diameter", system, 3)))
+                     else W.fmt(a.fit.clearance[i], "diameter", system, 3)))
     return rows
 
 
@@ -141,7 +142,7 @@ def liner_lines(lj, system: str) -> list:
     """Summary lines for ``rigplan liner``."""
     a = lj.assessment
     fit = a.fit
-    f = lambda v, k, d=None: U.format(v, k, system, d)   # noqa: E731
+    f = lambda v, k, d=None: W.fmt(v, k, system, d)   # noqa: E731
     lines = [f"Old casing: {f(lj.casing.od, 'diameter', 3)} OD x {f(lj.casing.wall, 'diameter', 3)} "
              f"wall, {f(lj.casing.top, 'length', 1)} to {f(lj.casing.bottom, 'length', 1)}; "
              f"ratings on the {lj.basis}",

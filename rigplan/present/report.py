@@ -103,6 +103,7 @@ def plan_dict(landing, plan=None, warnings=(), rig_name: str = "") -> dict:
         "connections": connections,
         "joints": joints,
         "neutral_point": _f(landing.neutral_point),
+        "buckling": buckling_dict(landing),
         "fill_window": None, "fill_schedule": None, "float_options": [],
         "stages": None, "grouting": None,
         "unrated": unrated, "unrated_codes": unrated_codes,
@@ -165,6 +166,26 @@ def plan_dict(landing, plan=None, warnings=(), rig_name: str = "") -> dict:
     if g is not None:
         out["grouting"] = grouting_dict(g)
     return out
+
+
+def buckling_dict(landing) -> dict | None:
+    """JSON view of the buckling check below the neutral point (None when
+    nothing is set down); per joint only those in effective compression."""
+    b = landing.buckling
+    if b is None:
+        return None
+    j = landing.joints
+    rows = [{"joint": i + 1, "label": j.label[i], "mode": W.BUCKLING_MODES[int(b.mode[i])],
+             "compression": _f(b.compression[i]), "sinusoidal_load": _f(b.sinusoidal_load[i]),
+             "helical_load": _f(b.helical_load[i]), "clearance": _f(b.clearance[i]),
+             "axial_stress": _f(b.axial_stress[i]), "bending_stress": _f(b.bending_stress[i]),
+             "stress_utilization": _f(b.stress_utilization[i])}
+            for i in range(len(b.compression)) if b.compression[i] > 0]
+    return {"set_down": _f(landing.settings.set_down_weight),
+            "compressed_length": _f(b.compressed_length),
+            "sinusoidal_length": _f(b.sinusoidal_length),
+            "helical_length": _f(b.helical_length), "max_set_down": _f(b.max_set_down),
+            "design_factor": _f(b.design_factor), "joints": rows}
 
 
 def chain_dict(chain) -> dict:
@@ -291,6 +312,8 @@ def text_renderables(landing, plan=None, system: str = "us", warnings=(), rig_na
     if np.isfinite(landing.neutral_point):
         head.append(f"\nNeutral point when landed with the set-down weight: "
                     f"{_q(landing.neutral_point, 'length', system, 1)}")
+    if landing.buckling is not None:
+        head.append("\n" + W.set_down_text(landing, system))
     out.append(Panel(head, title="rigplan", expand=False))
 
     out.append(chain_table(cap, system))

@@ -222,7 +222,9 @@ def closing_words(empty_limit: str, full_limit: str | None) -> str:
 
 
 _UNRATED_PART = {"tension": "tension at the top of joint", "collapse": "collapse of joint",
-                 "burst": "burst of joint"}
+                 "burst": "burst of joint",
+                 "buckling": "buckling below the neutral point (modulus, hole diameter or "
+                             "yield not given) of joint"}
 
 
 def _float_name(f: Finding, system: str) -> str:
@@ -271,6 +273,11 @@ _WORDS = {
     PlanCode.EMPTY_TOO_LIGHT: lambda f, s: (
         f"{_float_name(f, s)}: left empty the string load falls below the minimum running "
         f"weight from joint {f.joint}"),
+    PlanCode.SET_DOWN_TOO_HEAVY: lambda f, s: (
+        f"the set-down weight {_q(f, 'set_down', s)} buckles a screen or overstresses a joint "
+        "below the neutral point: "
+        + (f"set down at most {_q(f, 'max_set_down', s)}"
+           if f.quantities['max_set_down'].known else "set down less")),
     PlanCode.FILL_ALL_THE_WAY: lambda f, s: (
         f"{_float_name(f, s)}: fill every joint to the top all the way down; floating gains "
         "nothing here"),
@@ -379,10 +386,45 @@ def path_text(lp, system: str) -> str:
     """The hoisting path in use, what governs it and what it allows."""
     p = lp.path
     case = f" ({p.governing_case})" if p.governing_case is not None else ""
-    return (f"Hoisting path: {p.path}, governed by {p.governing or 'nothing rated'}{case}; "
-            f"allows a string load of {fmt(p.string_limit, Kind.FORCE, system)} "
-            f"(hook load {fmt(p.hook_limit, Kind.FORCE, system)} with "
-            f"{fmt(lp.dead_load, Kind.FORCE, system)} of gear on the hook)")
+    from rigplan.engine.hoisting import ChainFigure as F
+    return (f"Hoisting path: {p.path}, governed by {p.governing or 'nothing rated'}{case}: "
+            f"{F.STRING_LIMIT} {fmt(p.string_limit, Kind.FORCE, system)} + {F.DEAD_LOAD} "
+            f"{fmt(lp.dead_load, Kind.FORCE, system)} = {F.HOOK_LIMIT} "
+            f"{fmt(p.hook_limit, Kind.FORCE, system)}")
+
+
+#: Buckling modes of :mod:`rigplan.engine.buckling`, in words.
+BUCKLING_MODES = ("straight", "sinusoidal", "helical")
+
+
+def set_down_text(lp, system: str) -> str:
+    """The landed string below the neutral point with the set-down weight:
+    the length in compression, where it buckles, the worst combined stress
+    and the most that may be set down ("" when nothing is set down)."""
+    b = lp.buckling
+    if b is None:
+        return ""
+    words = [f"Set down {fmt(lp.settings.set_down_weight, Kind.FORCE, system)}: "
+             f"{fmt(b.compressed_length, Kind.LENGTH, system, 1)} in effective compression "
+             f"above the shoe"]
+    if not b.buckles:
+        words.append("it stays straight (below the critical buckling load)")
+    else:
+        words.append(f"it buckles over the lowest {fmt(b.sinusoidal_length, Kind.LENGTH, system, 1)}"
+                     + (f", helically over {fmt(b.helical_length, Kind.LENGTH, system, 1)}"
+                        if b.helical_length > 0 else ""))
+    util = b.stress_utilization
+    if any(u == u for u in util):
+        import numpy as np
+        j = int(np.nanargmax(util))
+        words.append(f"worst combined stress at {_joint(j + 1, lp.joints.label[j])}: axial "
+                     f"{fmt(b.axial_stress[j], Kind.STRESS, system)} + bending "
+                     f"{fmt(b.bending_stress[j], Kind.STRESS, system)}, utilization "
+                     f"{percent(util[j])} (design factor {b.design_factor:g})")
+    if b.max_set_down == b.max_set_down:
+        words.append(f"at most {fmt(b.max_set_down, Kind.FORCE, system)} keeps the screens "
+                     "straight and the stress within its limit")
+    return "; ".join(words)
 
 
 def switch_text(lp) -> str:
@@ -616,8 +658,9 @@ def tally_cells(session) -> list:
             "od": number(spec.od, "diameter", sys_),
             "wall": number(spec.wall, "diameter", sys_),
             "length": number(spec.length, "length", sys_),
-            "measured_length": "" if spec.measured_length is None
-            else number(spec.measured_length, "length", sys_),
+            "measured_length": ("planned" if session.length_basis(spec.label) == "planned"
+                                else "" if spec.measured_length is None
+                                else number(spec.measured_length, "length", sys_)),
             "connection": spec.connection,
             "top_depth": top,
             "max_tension": tension,
@@ -670,14 +713,28 @@ def run_cells(session) -> list:
             fill = fill_marker(lp, k + 1)
         else:
             shoe = hook = fill = ""
-        length = spec.run_length
         rows.append((spec.label, {
             "step": step, "label": spec.label, "status": joint_status(session, spec, reason=True),
-            "length": number(length, "length", sys_) + ("" if spec.measured_length is not None
-                                                          else " (plan)"),
+            "length": length_cell(session, spec),
             "shoe": shoe, "hook": hook, "fill": fill,
         }))
     return rows
+
+
+def length_basis(session, spec) -> str:
+    """``measured`` (taped on site, by the run log or a tally), ``planned``
+    (run on the planned length, nothing measured) or ``plan`` (not run yet,
+    no tally length)."""
+    basis = session.length_basis(spec.label)
+    if basis is not None:
+        return basis
+    return "measured" if spec.measured_length is not None else "plan"
+
+
+def length_cell(session, spec) -> str:
+    """A joint's length with how it is known: ``20.08 measured``, ``20.00
+    planned`` (in the hole, not measured) or ``20.00 plan`` (not run)."""
+    return f"{number(spec.run_length, 'length', session.units)} {length_basis(session, spec)}"
 
 
 def fill_marker(lp, step: int) -> str:

@@ -75,8 +75,12 @@ class RigplanApp(App):
 
     # -- layout --------------------------------------------------------------
 
+    #: Seconds between looks at the run log when following another writer.
+    FOLLOW_INTERVAL = 1.0
+
     def compose(self) -> ComposeResult:
         yield Header()
+        yield Static("", id="read-only-banner", markup=False)
         with TabbedContent(initial="overview", id="tabs"):
             with TabPane("1 Overview", id="overview"):
                 yield OverviewPane(id="overview-pane")
@@ -95,7 +99,9 @@ class RigplanApp(App):
         self._tabs = self.query_one("#tabs", TabbedContent)
         self._caution = self.query_one("#caution", Static)
         self._panes = {tab: self.query_one(f"#{tab}-pane") for tab in TABS}
+        self._banner = self.query_one("#read-only-banner", Static)
         self.refresh_views()
+        self.set_interval(self.FOLLOW_INTERVAL, self.follow_log)
         # The widgets and the plan built so far live for the whole session:
         # move them out of the collector's sight so a full collection does not
         # stall a keystroke on site.
@@ -107,6 +113,24 @@ class RigplanApp(App):
 
     def on_unmount(self) -> None:
         self.session.close()
+
+    def follow_log(self) -> None:
+        """Read-only copy: show the writer's new entries; take over as the
+        writer once the other copy has closed."""
+        s = self.session
+        if not s.read_only:
+            return
+        try:
+            changed = s.follow()
+        except (InputError, OSError) as exc:
+            self._banner.update(f"{s.read_only_text()}  (cannot read the run log: {exc})")
+            return
+        if not s.read_only:
+            self.refresh_views()
+            self.notify("The other copy of rigplan has closed: this one now records the job.",
+                        timeout=8)
+        elif changed:
+            self.refresh_views()
 
     @property
     def active_tab(self) -> str:
@@ -125,6 +149,9 @@ class RigplanApp(App):
                           + f"  |  {'US field' if s.units == 'us' else 'SI'} units"
                           + ("  |  edited, not saved" if s.dirty else ""))
         self._caution.update(P.cautions_text(lp))
+        banner = s.read_only_text()
+        self._banner.update(banner)
+        self._banner.display = bool(banner)
         self._stale = set(TABS)
         self._show(self.active_tab)
         if self.active_tab != "overview":
@@ -233,6 +260,10 @@ class RigplanApp(App):
 
         self.push_screen(ChoiceScreen("Job settings", choices, choice_id="settings"), picked)
 
+    def action_rack(self) -> None:
+        from rigplan.tui.rack import RackScreen
+        self.push_screen(RackScreen(self.session))
+
     def action_help(self) -> None:
         self.push_screen(HelpScreen(help_sections()))
 
@@ -264,14 +295,23 @@ class RigplanApp(App):
 
     # -- running -------------------------------------------------------------
 
-    def action_record_run(self, prefill: str | None = None) -> None:
+    def _read_only(self) -> bool:
+        """Refuse an entry in a read-only session (another app records)."""
+        if self.session.read_only:
+            self.notify(self.session.read_only_text(), severity="warning", timeout=8)
+            return True
+        return False
+
+    def action_record_run(self) -> None:
         s = self.session
+        if self._read_only():
+            return
         nxt = s.next_joint()
         if nxt is None:
             self.notify("Every joint of the plan is in the hole.", severity="warning")
             return
         unit = P.unit("length", s.units)
-        default = P.fmt(nxt.length, "length", s.units, 2)
+        default = P.plain(nxt.length, "length", s.units, 2)
         caution = ""
         if s.landing is None:
             caution = "  There is no plan (see the Overview): record only what was run."
@@ -280,55 +320,59 @@ class RigplanApp(App):
 
         def parse(text: str):
             t = text.strip()
-            if t == default:
-                return (nxt.length, "planned length accepted")
-            if t == "":
-                return (None, "not measured")
-            force = t.endswith("!")
-            v = U.parse(t.rstrip("!").strip(), "length", unit, f"{nxt.label} measured length")
-            if not v > 0:
-                raise InputError(f"{nxt.label} measured length", f"expected a length > 0, got {t!r}")
-            if not force and not LENGTH_CHECK[0] * nxt.length <= v <= LENGTH_CHECK[1] * nxt.length:
-                raise InputError(f"{nxt.label} measured length",
-                                 f"{P.fmt(v, 'length', s.units, 2)} is far from the planned "
-                                 f"{default}: check the tape (end the entry with ! to keep it)")
-            return (v, "")
+            if t in (default, ""):
+                # nothing typed: the planned length stands, nothing measured
+                length, basis = None, "planned"
+            else:
+                force = t.endswith("!")
+                v = U.parse(t.rstrip("!").strip(), "length", unit,
+                            f"{nxt.label} measured length")
+                if not v > 0:
+                    raise InputError(f"{nxt.label} measured length",
+                                     f"expected a length > 0, got {t!r}")
+                if not force and not LENGTH_CHECK[0] * nxt.length <= v <= LENGTH_CHECK[1] * nxt.length:
+                    raise InputError(f"{nxt.label} measured length",
+                                     f"{P.fmt(v, 'length', s.units, 2)} is far from the planned "
+                                     f"{default}: check the tape (end the entry with ! to keep it)")
+                length, basis = v, "measured"
+            # committed here: a write error keeps the prompt open with the text
+            event_id = s.record_run(length, basis=basis)
+            return (event_id, length, basis)
 
         def done(result) -> None:
             if result is None:
                 return
-            length, note = result
-            try:
-                event_id = s.record_run(length, note)
-            except RunLogWriteError as exc:
-                self._error(exc)
-                # nothing entered is lost: ask again with the same value
-                self.action_record_run(prefill=P.fmt(length, "length", s.units, 4)
-                                       if length is not None else "")
-                return
-            except InputError as exc:
-                self._error(exc)
-                return
-            self._committed(f"{nxt.label} in the hole "
-                            f"({P.fmt(length, 'length', s.units) if length else 'not measured'}), "
-                            f"entry {event_id}")
+            event_id, length, basis = result
+            shown = (P.fmt(length, "length", s.units) + " measured" if basis == "measured"
+                     else f"planned {default}, not measured")
+            self._committed(f"{nxt.label} in the hole ({shown}), entry {event_id}")
 
         self.push_screen(PromptScreen(
             f"{nxt.label} goes in the hole: measured length",
-            value=default if prefill is None else prefill,
-            hint=f"Enter keeps the planned {default}.  A bare number is in {unit}; "
-                 "20 ft 6 in, 20' 6\" or 6.25 m also work.  Empty: not measured." + caution,
+            value=default,
+            hint=f"Type the length taped.  Enter on {default} records the planned length "
+                 f"(marked planned, not measured).  A bare number is in {unit}; "
+                 "20 ft 6 in, 20' 6\" or 6.25 m also work." + caution,
             parse=parse, prompt_id="prompt-run"), done)
 
     def action_undo(self) -> None:
         s = self.session
+        if self._read_only():
+            return
         last = s.last_undoable()
         if last is None:
             self.notify("Nothing to undo.", severity="warning")
             return
-        what = (f"the run of {last.label}"
-                + (f" ({P.fmt(last.value, 'length', s.units)})" if last.value is not None else "")
-                if last.kind == "run" else f"setting {last.label} aside ({last.note})")
+        if last.kind == "run":
+            basis = last.length_basis
+            what = f"the run of {last.label}" + (
+                f" ({P.fmt(last.value, 'length', s.units)} measured)"
+                if basis == "measured" and last.value is not None else " (planned length)")
+        elif last.kind == "observe":
+            what = (f"the weight reading {P.fmt(last.value, 'force', s.units)} "
+                    f"with {last.step} joints in the hole")
+        else:
+            what = f"setting {last.label} aside ({last.note})"
 
         def done(yes) -> None:
             if not yes:
@@ -354,6 +398,8 @@ class RigplanApp(App):
 
     def action_reject(self) -> None:
         s = self.session
+        if self._read_only():
+            return
         target = self._reject_target()
         if target is None:
             self.notify("No joint left to set aside.", severity="warning")
@@ -363,16 +409,13 @@ class RigplanApp(App):
             if not text.strip():
                 raise InputError("reason", "give the reason the joint is set aside "
                                            "(e.g. dented pin end, bad thread, short)")
-            return text.strip()
+            reason = text.strip()
+            return s.reject(target.label, reason), reason
 
-        def done(reason) -> None:
-            if reason is None:
+        def done(result) -> None:
+            if result is None:
                 return
-            try:
-                event_id = s.reject(target.label, reason)
-            except (RunLogWriteError, InputError) as exc:
-                self._error(exc)
-                return
+            event_id, reason = result
             self._committed(f"{target.label} set aside: {reason} (entry {event_id})")
 
         self.push_screen(PromptScreen(f"Set {target.label} aside: reason", parse=parse,
@@ -380,21 +423,20 @@ class RigplanApp(App):
 
     def action_observe(self) -> None:
         s = self.session
+        if self._read_only():
+            return
         unit = P.unit("force", s.units)
         predicted = s.predicted_hook_load()
+        top = s.hook_rating()
 
         def parse(text: str):
-            v = U.parse(text.strip(), "force", unit, "weight reading")
-            return v
+            value = s.reading_value(text)
+            return s.observe(value)
 
-        def done(value) -> None:
-            if value is None:
+        def done(result) -> None:
+            if result is None:
                 return
-            try:
-                event_id, check = s.observe(value)
-            except (RunLogWriteError, InputError) as exc:
-                self._error(exc)
-                return
+            event_id, check = result
             self.refresh_views()
             head, causes = P.weight_text(check, s.units)
             if check is not None and check.outside:
@@ -406,8 +448,10 @@ class RigplanApp(App):
         self.push_screen(PromptScreen(
             f"Weight indicator: hook load with {s.step} joints in the hole",
             hint=(f"Planned now: {P.fmt(predicted, 'force', s.units)}." if predicted is not None
-                  else "No planned hook load to compare with (no plan, or a staged setting).")
-            + f"  A bare number is in {unit}.",
+                  else "No planned hook load to compare with (no plan).")
+            + f"  A bare number is in {unit}; from 0 to the rig's hook rating"
+            + (f" ({P.fmt(top, 'force', s.units)})." if top == top else ".")
+            + "  z undoes a reading.",
             parse=parse, prompt_id="prompt-weight"), done)
 
     def action_band(self) -> None:
@@ -519,7 +563,9 @@ class RigplanApp(App):
             self._error(exc)
             return
         self.refresh_views()
-        self.notify(f"Plan saved to {path}", timeout=6)
+        kept = self.session.last_backup
+        self.notify(f"Plan saved to {path}" + (f"; the previous version kept as {kept.name}"
+                                               if kept else ""), timeout=6)
 
 
 #: A measured length outside this share of the planned one is asked again

@@ -91,6 +91,10 @@ ACTIONS = (
                "Change the hole fluid, fill fluid, float equipment, design factors, running "
                "and set-down weights or the rig profile; the plan updates at once",
                short="Settings"),
+    ActionSpec("rack", "k", "k", "Rack order and old casing",
+               "Best running order of the gauged joints (rack placement); for a liner job the "
+               "old casing from its caliper log: roundness, collapse rating, clearance",
+               short="Rack"),
     ActionSpec("help", "question_mark,f1", "? F1", "Keys", "List every key"),
     ActionSpec("quit", "q", "q", "Quit", "Leave the app (the run log is already saved)"),
 )

@@ -22,8 +22,10 @@ def _unfocusable(button: Button) -> Button:
 class PromptScreen(ModalScreen):
     """Ask for one value.  Enter accepts, Escape cancels.
 
-    ``parse`` turns the text into the result; when it raises InputError the
-    message is shown under the field and the text stays as typed.
+    ``parse`` turns the text into the result (and may commit it); when it
+    raises InputError, or OSError (a write that failed: disk full, file
+    locked), the message is shown under the field and the text stays as
+    typed, ready to retry.
     """
 
     BINDINGS = [Binding("escape", "cancel", "Cancel", id="prompt.cancel")]
@@ -56,8 +58,10 @@ class PromptScreen(ModalScreen):
             return
         try:
             result = self._parse(text)
-        except InputError as exc:
-            self.query_one("#prompt-error", Static).update(str(exc))
+        except (InputError, OSError) as exc:
+            self.query_one("#prompt-error", Static).update(
+                str(exc) + ("  (not saved: Enter retries, Esc gives up)"
+                            if isinstance(exc, OSError) else ""))
             return
         self.dismiss(result)
 

@@ -26,6 +26,7 @@ class OverviewPane(VerticalScroll):
         yield Static("", id="fill-plan", classes="line", markup=False)
         yield Static("", id="float-line", classes="line", markup=False)
         yield Static("", id="switch-line", classes="line", markup=False)
+        yield Static("", id="set-down-line", classes="line", markup=False)
         yield Static("", id="progress", classes="line", markup=False)
         yield Static("", id="reasons", classes="line dim", markup=False)
         yield Static("", id="warnings", classes="line dim", markup=False)
@@ -40,7 +41,7 @@ class OverviewPane(VerticalScroll):
             verdict.add_class("bad")
             self.query_one("#governing", Static).update(f"The planner refused the input: {session.error}")
             for wid in ("#path-line", "#next-action", "#fill-plan", "#float-line",
-                        "#switch-line", "#reasons"):
+                        "#switch-line", "#set-down-line", "#reasons"):
                 self.query_one(wid, Static).update("")
         else:
             verdict.update(P.verdict_text(lp))
@@ -52,6 +53,7 @@ class OverviewPane(VerticalScroll):
             self.query_one("#fill-plan", Static).update(P.fill_plan_text(lp, sys_))
             self.query_one("#float-line", Static).update(P.float_text(lp, sys_))
             self.query_one("#switch-line", Static).update(P.switch_text(lp))
+            self.query_one("#set-down-line", Static).update(P.set_down_text(lp, sys_))
             notes = P.reason_lines(lp, sys_)
             self.query_one("#reasons", Static).update(
                 Text("\n".join(notes)) if notes else "")

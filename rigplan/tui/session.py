@@ -26,7 +26,7 @@ from pathlib import Path
 
 from rigplan.errors import InputError
 from rigplan.files.job import apply_run_state, length_warnings, load_job, plan_job, rated_joints
-from rigplan.files.runlog import RunLog, log_path_for
+from rigplan.files.runlog import RunLog, RunLogLocked, log_path_for
 from rigplan.engine.stringmodel import CONNECTION_KINDS, JOINT_KINDS, StringPlan
 from rigplan.files import units as U
 from rigplan.present import wording as P
@@ -155,21 +155,58 @@ class JobSession:
         self.band_fraction = float(band_fraction)
         self.band_force = float(band_force)
         self.dirty = False
+        self.last_backup: Path | None = None
         self.last_event_id: int | None = None
         self.last_check: WeightCheck | None = None
-        self.log = RunLog(log_path_for(self.plan_path))
+        self.lock_holder: dict = {}
+        log_path = log_path_for(self.plan_path)
+        try:
+            self.log = RunLog.open_writer(log_path)
+        except RunLogLocked as exc:
+            # Another app records this job: follow it, read-only.
+            self.lock_holder = exc.holder
+            self.log = RunLog(log_path, read_only=True)
+        self.log.changed()
         self.state = self.log.state()
         self.plan: StringPlan = self.base_plan
         self.landing = None
         self.error = ""
         self.length_warnings = []
         self.recompute()
-        obs = self.state.observations
-        if obs:
-            o = obs[-1]
-            if o.predicted_n is not None:
-                self.last_check = compare_reading(o.hook_load_n, o.predicted_n,
-                                                  self.band_fraction, self.band_force, o.step)
+
+    # -- one writer per job ----------------------------------------------------
+
+    @property
+    def read_only(self) -> bool:
+        """Another program records this job: this one only follows."""
+        return self.log.read_only
+
+    def read_only_text(self) -> str:
+        """The banner of a read-only session ('' when this one records)."""
+        if not self.read_only:
+            return ""
+        h = self.lock_holder
+        who = (f" (program {h.get('pid', '?')} on {h.get('host', '?')}, since "
+               f"{h.get('since', '?')})") if h else ""
+        return (f"READ-ONLY: another rigplan records this job{who}. This copy follows its "
+                "entries; nothing can be recorded here until that one is closed.")
+
+    def follow(self) -> bool:
+        """Read the writer's new entries (read-only session), or take over
+        when the writer has gone.  True when something changed."""
+        took_over = False
+        if self.read_only:
+            took_over = self.log.try_lock()
+            if took_over:
+                self.lock_holder = {}
+        if not self.log.changed() and not took_over:
+            return False
+        state = self.log.state()
+        if not took_over and state.last_id == self.state.last_id and state.run == self.state.run:
+            return False
+        self.state = state
+        self.recompute()
+        return True
 
     # -- the plan ------------------------------------------------------------
 
@@ -186,6 +223,25 @@ class JobSession:
         except InputError as exc:
             self.landing = None
             self.error = str(exc)
+        self._judge_last_reading()
+
+    def _judge_last_reading(self) -> None:
+        obs = self.state.observations
+        self.last_check = self.judge(obs[-1]) if obs else None
+
+    def judge(self, observation) -> WeightCheck | None:
+        """A reading against the plan AS IT STANDS NOW (not the prediction
+        kept from when it was entered); None without a prediction."""
+        predicted = self.predicted_hook_load(observation.step)
+        if predicted is None:
+            return None
+        return compare_reading(observation.hook_load_n, predicted, self.band_fraction,
+                               self.band_force, observation.step)
+
+    def readings(self) -> list:
+        """Every reading (not undone) with its check against the current
+        plan: ``[(Observation, WeightCheck or None)]``, oldest first."""
+        return [(o, self.judge(o)) for o in self.state.observations]
 
     def close(self) -> None:
         self.log.close()
@@ -240,14 +296,27 @@ class JobSession:
         self.state = self.log.state()
         self.recompute()
 
-    def record_run(self, measured_length_m: float | None, note: str = "") -> int:
-        """Record the next joint as run (committed at once); return the event id."""
+    def record_run(self, measured_length_m: float | None, note: str = "",
+                   basis: str | None = None) -> int:
+        """Record the next joint as run (committed at once); return the event id.
+
+        ``basis``: ``"measured"`` (typed from the tape) or ``"planned"`` (the
+        planned length accepted, nothing measured); by default measured when
+        a length is given.
+        """
         j = self.next_joint()
         if j is None:
             raise InputError("run", "every joint of the plan is in the hole already")
-        event_id = self.log.record_run(j.label, measured_length_m, note)
+        if basis == "planned" and measured_length_m is None:
+            measured_length_m = j.length
+        event_id = self.log.record_run(j.label, measured_length_m, note, basis=basis)
         self._after_event(event_id)
         return event_id
+
+    def length_basis(self, label: str) -> str | None:
+        """How the length of a joint in the hole was obtained: 'measured' or
+        'planned' (None when it is not in the hole)."""
+        return self.state.basis.get(label)
 
     def reject(self, label: str, reason: str) -> int:
         """Set joint ``label`` aside with a reason (committed at once)."""
@@ -260,11 +329,11 @@ class JobSession:
         return event_id
 
     def last_undoable(self):
-        """The latest run or reject entry not yet undone (Event) or None."""
+        """The latest run, reject or reading entry not yet undone (Event) or None."""
         events = self.log.events()
         undone = {e.ref for e in events if e.kind == "undo"}
         for e in reversed(events):
-            if e.kind in ("run", "reject") and e.id not in undone:
+            if e.kind in ("run", "reject", "observe") and e.id not in undone:
                 return e
         return None
 
@@ -296,18 +365,54 @@ class JobSession:
             return None
         return float(loads[k - 1])
 
+    def hook_rating(self) -> float:
+        """The most any hoisting path of the rig is rated to carry at the
+        hook [N]: the weakest rated component of each path, the strongest
+        path (nan when nothing is rated).  A reading above it is a slip."""
+        from rigplan.engine.hoisting import rig_capacity
+        best = math.nan
+        for cap in rig_capacity(self.rig):
+            ratings = [rating for _name, _kind, rating, _allowed in cap.components
+                       if finite(rating)]
+            if ratings and not (min(ratings) <= best):
+                best = min(ratings)
+        return best
+
+    def reading_value(self, text: str) -> float:
+        """A weight-indicator reading typed by the crew, in N.
+
+        A bare number is in the display unit of force; refused below zero
+        and above the rig's hook rating (:meth:`hook_rating`), with one line
+        saying why.
+        """
+        where = "weight reading"
+        unit = P.unit("force", self.units)
+        t = text.strip()
+        if not t:
+            raise InputError(where, f"expected the hook load read off the weight indicator "
+                                    f"(a bare number is in {unit})")
+        value = U.parse(t, "force", unit, where)
+        if value < 0:
+            raise InputError(where, f"a hook load cannot be below zero, got {t!r}")
+        top = self.hook_rating()
+        if finite(top) and value > top:
+            raise InputError(where, f"{P.fmt(value, 'force', self.units)} is above the rig's "
+                                    f"hook rating ({P.fmt(top, 'force', self.units)}): "
+                                    "check the indicator and the units")
+        return value
+
     def observe(self, hook_load_n: float, note: str = "") -> tuple:
-        """Record a weight reading now; return (event id, WeightCheck or None)."""
+        """Record a weight reading now; return (event id, WeightCheck or None).
+
+        The prediction at entry is kept in the log beside the reading; the
+        check returned (and every later one) is against the current plan.
+        """
         predicted = self.predicted_hook_load()
         event_id = self.log.observe(self.step, hook_load_n, predicted, note)
         self.last_event_id = event_id
         self.state = self.log.state()
-        check = None
-        if predicted is not None:
-            check = compare_reading(hook_load_n, predicted, self.band_fraction,
-                                    self.band_force, self.step)
-        self.last_check = check
-        return event_id, check
+        self._judge_last_reading()
+        return event_id, self.last_check
 
     def set_band(self, text: str) -> str:
         """Set the agreement band from ``"10 %"``, ``"0.1"`` or a force (``"2000 lbf"``)."""
@@ -335,10 +440,7 @@ class JobSession:
                 if not force > 0:
                     raise InputError("band", f"expected a force > 0, got {text!r}")
                 self.band_fraction, self.band_force = 0.0, force
-        if self.last_check is not None:
-            c = self.last_check
-            self.last_check = compare_reading(c.observed, c.predicted, self.band_fraction,
-                                              self.band_force, c.step)
+        self._judge_last_reading()
         return self.band_text()
 
     def band_text(self) -> str:
@@ -588,7 +690,10 @@ class JobSession:
     def import_tally(self, path) -> int:
         """Apply a tally CSV's measured lengths, walls and set-asides by label.
 
-        Returns the number of rows applied.
+        A row about a joint the run log already holds must agree with the
+        log (the app's own export does): it is then left to the log.  A row
+        that contradicts the log is refused and nothing is applied.
+        Returns the number of rows applied to the plan.
         """
         from rigplan.files.formats.planfile import apply_tally
         from rigplan.files.formats.tally import read_tally
@@ -596,24 +701,42 @@ class JobSession:
         if not p.is_absolute():
             p = self.plan_path.parent / p
         rows = read_tally(p)
+        logged = dict(self.state.run)
+        fresh = []
         for row in rows:
-            if self.in_hole(row.label) and (row.status == "rejected"
-                                            or row.measured_length is not None):
-                raise InputError(f"{p}: row {row.row}",
-                                 f"{row.label} is in the hole by the run log, which holds its "
-                                 "measured length; undo its run first or correct the tally")
-            if self.set_aside(row.label) and row.status != "rejected":
-                raise InputError(f"{p}: row {row.row}",
-                                 f"{row.label} is set aside in the run log; undo the rejection "
-                                 "first or mark it rejected in the tally")
-        joints = apply_tally(list(self.base_plan.joints), rows, str(p))
-        self.apply_plan(self._check_plan(self._with_joints(joints, self._collar_label(self.base_plan))))
-        return len(rows)
+            where = f"{p}: row {row.row}"
+            if self.in_hole(row.label):
+                if row.status != "run":
+                    raise InputError(where, f"{row.label} is in the hole by the run log, the "
+                                            f"tally says {row.status}; undo its run first or "
+                                            "correct the tally")
+                have = logged.get(row.label)
+                same = (row.measured_length is None and have is None) or (
+                    row.measured_length is not None and have is not None
+                    and abs(row.measured_length - have) <= 1e-9 * max(have, 1.0))
+                if not same:
+                    raise InputError(where, f"{row.label} is in the hole by the run log, which "
+                                            "holds its length; undo its run first or correct "
+                                            "the tally")
+                continue
+            if self.set_aside(row.label):
+                if row.status != "rejected":
+                    raise InputError(where, f"{row.label} is set aside in the run log; undo the "
+                                            "rejection first or mark it rejected in the tally")
+                continue
+            fresh.append(row)
+        joints = apply_tally(list(self.base_plan.joints), fresh, str(p))
+        plan = self._check_plan(self._with_joints(joints, self._collar_label(self.base_plan)))
+        if plan != self.base_plan:
+            self.apply_plan(plan)
+        return len(fresh)
 
     def save_plan(self) -> Path:
-        """Write the edited plan over its file (atomically, in the file's units)."""
-        from rigplan.files.formats.planfile import write_plan
-        write_plan(self.base_plan, self.plan_path, system=self.file_units)
+        """Write the edited plan over its file: atomically, keeping the file's
+        comments, layout and notations where the values did not change, and
+        the previous version beside it (``<plan>.~N~``)."""
+        from rigplan.files.formats.plansave import save_plan
+        self.last_backup = save_plan(self.base_plan, self.plan_path)
         self.dirty = False
         return self.plan_path
 
@@ -621,10 +744,20 @@ class JobSession:
         return self.plan_path.with_name(self.plan_path.stem + EXPORT_SUFFIX)
 
     def export_tally(self) -> Path:
-        """Write the run log's tally as CSV beside the plan; return the path."""
+        """Write the run log's tally as CSV beside the plan, in the job's
+        units (the plan file's ``units``); return the path.  The sheet reads
+        back with ``t`` and ``rigplan check --tally``."""
+        from rigplan import CAUTION
+        from rigplan.files.atomicio import atomic_write_text
+        from rigplan.files.formats.tally import run_tally_text
         planned = {j.label: j.length for j in self.base_plan.joints if not j.rejected}
+        entries = self.log.tally_entries(planned)
+        comment = (f"rigplan site tally: {self.base_plan.name}"
+                   + (f", well {self.base_plan.well}" if self.base_plan.well else "")
+                   + f"\nfrom the run log {self.log.path.name}; length_source planned = "
+                   "the planned length was accepted, nothing was measured\n" + CAUTION)
         path = self.export_path()
-        self.log.export_tally_csv(path, planned=planned)
+        atomic_write_text(path, run_tally_text(entries, self.file_units, comment))
         return path
 
     # -- lookups for the screens -----------------------------------------------

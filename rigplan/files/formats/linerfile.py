@@ -9,6 +9,7 @@ A liner job's plan carries, beside the usual tables::
     top = "0 ft"
     bottom = "400 ft"
     ellipticity = 0.01         # optional: assumed where no log is given
+    caliper_log = "old.las"    # optional: the log, relative to the plan file
 
     [liner_fit]                # optional
     clearance = "0.5 in"       # least diametral clearance the liner needs
@@ -41,7 +42,7 @@ from rigplan.files import units
 DEFAULT_CLEARANCE = 0.5 * 0.0254
 
 EXISTING_KEYS = ("od", "wall", "material", "top", "bottom", "ellipticity",
-                 "outside_density", "outside_level")
+                 "outside_density", "outside_level", "caliper_log")
 FIT_KEYS = ("clearance", "coupling_od", "centralizer_od", "centralizer_every")
 
 #: Mnemonics taken as the X and Y calipers when no curve is named.
@@ -77,6 +78,7 @@ class ExistingCasingSpec:
     coupling_od: float = math.nan
     centralizer_od: float = math.nan
     centralizer_every: int = 0
+    caliper_log: Path | None = None
 
 
 def read_existing_casing(plan_path) -> ExistingCasingSpec | None:
@@ -112,6 +114,13 @@ def read_existing_casing(plan_path) -> ExistingCasingSpec | None:
         raise InputError(t.where("outside_density"), "expected a fluid density from 800 to "
                                                      "2600 kg/m3 (6.7 to 21.7 ppg)")
     level = t.quantity("outside_level", "length", default=math.nan, nonnegative=True)
+    log_name = t.text("caliper_log", default=None)
+    log_path = None
+    if log_name is not None:
+        if not log_name.strip():
+            raise InputError(t.where("caliper_log"), "expected the path of an LAS file, got an "
+                                                     "empty text")
+        log_path = Path(plan_path).parent / log_name
     fit = {}
     if "liner_fit" in data:
         f = Table(data["liner_fit"], source, "liner_fit", system, FIT_KEYS)
@@ -125,7 +134,8 @@ def read_existing_casing(plan_path) -> ExistingCasingSpec | None:
             raise InputError(f.where("centralizer_every"), "give centralizer_od as well "
                                                            "(e.g. centralizer_od = \"9.5 in\")")
     return ExistingCasingSpec(od=od, wall=wall, material=material, top=top, bottom=bottom,
-                              ellipticity=e, outside_density=rho, outside_level=level, **fit)
+                              ellipticity=e, outside_density=rho, outside_level=level,
+                              caliper_log=log_path, **fit)
 
 
 @dataclass(frozen=True)

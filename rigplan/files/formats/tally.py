@@ -14,11 +14,17 @@ Columns (any order; only ``label`` is required, the others may be left out):
 * ``label``: joint label as in the plan (``J1`` is the bottom joint);
 * ``measured_length [unit]``: a length; the unit in brackets is the unit of
   bare numbers, a value may carry its own (``20 ft 1-1/2 in``); empty = not
-  measured yet;
+  measured (the planned length stands);
 * ``kind``: one of :data:`rigplan.engine.stringmodel.JOINT_KINDS`, or empty;
-* ``status``: ``run`` (default) or ``rejected`` (set aside, not run);
+* ``status``: ``run`` (default), ``rejected`` (set aside, not run) or
+  ``not run`` (not in the hole yet);
 * ``note``: free text;
-* ``measured_wall [unit]``: measured minimum wall (a diameter kind), or empty.
+* ``measured_wall [unit]``: measured minimum wall (a diameter kind), or empty;
+* ``seq``, ``planned_length [unit]``, ``length_source`` (``measured`` or
+  ``planned``) and ``time``: written by the app's tally export for the
+  record; read and checked, but the plan takes its planned lengths from the
+  plan file, not from here.  A row whose ``length_source`` is ``planned``
+  has no measured length.
 
 Without a unit in the header every value of that column must carry its own
 unit.  Numbers never use a decimal comma or a thousands separator (the field
@@ -37,11 +43,14 @@ from rigplan.files import units
 from rigplan.errors import InputError
 from rigplan.engine.stringmodel import JOINT_KINDS
 
-COLUMNS = ("label", "measured_length", "kind", "status", "note", "measured_wall", "run_order")
-STATUSES = ("run", "rejected")
+COLUMNS = ("label", "measured_length", "kind", "status", "note", "measured_wall", "run_order",
+           "seq", "planned_length", "length_source", "time")
+STATUSES = ("run", "rejected", "not run")
+LENGTH_SOURCES = ("measured", "planned")
 #: Largest running position a tally may give (the most joints in one string).
 MAX_RUN_ORDER = 100_000
-_QUANTITY_COLUMNS = {"measured_length": "length", "measured_wall": "diameter"}
+_QUANTITY_COLUMNS = {"measured_length": "length", "measured_wall": "diameter",
+                     "planned_length": "length"}
 _HEADER_CELL = re.compile(r"^\s*(?P<name>[A-Za-z_]+)\s*(?:\[(?P<unit>[^\]]*)\])?\s*$")
 
 
@@ -52,12 +61,16 @@ class TallyRow:
     label : joint label
     measured_length : measured length [m] (None = not measured)
     kind : joint kind or None (not stated)
-    status : "run" or "rejected"
+    status : "run", "rejected" or "not run"
     note : free text
     measured_wall : measured minimum wall [m] (None = not measured)
     run_order : running position, 1 = first in the hole (None = as planned);
         given for every joint or for none, it re-orders interchangeable joints
     row : line number in the file it came from (0 when made in code)
+    planned_length : planned length [m] written for the record (None)
+    length_source : "measured", "planned" or None (not stated)
+    seq : running order written by the export (None)
+    time : when it was entered (text, as written)
     """
 
     label: str
@@ -68,6 +81,10 @@ class TallyRow:
     measured_wall: float | None = None
     run_order: int | None = None
     row: int = field(default=0, compare=False)
+    planned_length: float | None = None
+    length_source: str | None = None
+    seq: int | None = None
+    time: str = ""
 
 
 def _header(cells, source: str, line: int):
@@ -143,9 +160,10 @@ def parse_tally(text: str, source: str = "<tally>") -> list:
         if kind is not None and kind not in JOINT_KINDS:
             raise InputError(f"{where}, kind", f"unknown kind {kind!r}; expected one of "
                                                f"{', '.join(JOINT_KINDS)} or empty")
-        status = (values.get("status", "") or "run").lower()
+        status = " ".join((values.get("status", "") or "run").lower().split())
         if status not in STATUSES:
-            raise InputError(f"{where}, status", f"expected run or rejected, got {values['status']!r}")
+            raise InputError(f"{where}, status", f"expected run or rejected (or not run), got "
+                                                 f"{values['status']!r}")
         order_text = values.get("run_order", "")
         run_order = None
         if order_text:
@@ -153,9 +171,32 @@ def parse_tally(text: str, source: str = "<tally>") -> list:
                 raise InputError(f"{where}, run_order", f"expected a whole number 1..{MAX_RUN_ORDER} "
                                                         f"(1 = first in the hole), got {order_text!r}")
             run_order = int(order_text)
+        basis = (values.get("length_source", "") or "").lower() or None
+        if basis is not None and basis not in LENGTH_SOURCES:
+            raise InputError(f"{where}, length_source", f"expected measured, planned or empty, "
+                                                        f"got {values['length_source']!r}")
+        if basis == "planned" and q["measured_length"] is not None:
+            raise InputError(f"{where}, measured_length", "the row says the planned length was "
+                                                          "accepted (length_source planned): "
+                                                          "leave measured_length empty")
+        if basis == "measured" and q["measured_length"] is None:
+            raise InputError(f"{where}, measured_length", "expected the measured length "
+                                                          "(length_source measured)")
+        if status != "run" and basis is not None:
+            raise InputError(f"{where}, length_source", f"a joint {status} has no length "
+                                                        "source: leave it empty")
+        seq_text = values.get("seq", "")
+        seq = None
+        if seq_text:
+            if not seq_text.isdigit() or int(seq_text) < 1:
+                raise InputError(f"{where}, seq", f"expected the running order as a whole "
+                                                  f"number >= 1 or empty, got {seq_text!r}")
+            seq = int(seq_text)
         rows.append(TallyRow(label=label, measured_length=q["measured_length"], kind=kind,
                              status=status, note=values.get("note", ""),
-                             measured_wall=q["measured_wall"], run_order=run_order, row=line))
+                             measured_wall=q["measured_wall"], run_order=run_order, row=line,
+                             planned_length=q["planned_length"], length_source=basis,
+                             seq=seq, time=values.get("time", "")))
     if columns is None:
         raise InputError(source, "empty tally: expected a header line "
                                  f"({', '.join(COLUMNS)}) and one row per joint")
@@ -208,6 +249,41 @@ def write_tally(rows, path, system: str = "us", comment: str = "") -> None:
     from rigplan.files.atomicio import atomic_write_text
 
     atomic_write_text(path, tally_text(rows, system, comment))
+
+
+#: Columns of the app's tally export (:func:`run_tally_text`).
+EXPORT_COLUMNS = ("seq", "label", "status", "measured_length", "planned_length",
+                  "length_source", "note", "time")
+
+
+def run_tally_text(entries, system: str = "us", comment: str = "") -> str:
+    """CSV text of the site tally from the run log, in ``system``'s units.
+
+    ``entries`` are :meth:`rigplan.files.runlog.RunLog.tally_entries` rows.
+    A joint run on its planned length (nothing measured) has an empty
+    ``measured_length`` and ``length_source`` ``planned``.  Lengths are
+    written to 12 significant digits, so the sheet reads back (with
+    :func:`parse_tally`, the app's ``t`` or ``rigplan check --tally``) to the
+    same plan within 5e-13 relative.  Comment lines start with ``#``.
+    """
+    if system not in units.SYSTEMS:
+        raise ValueError(f"unknown unit system {system!r}; known: si, us")
+    unit = units.unit_label("length", system)
+    buf = io.StringIO(newline="")
+    for line in comment.splitlines():
+        buf.write(f"# {line}".rstrip() + "\n")
+    w = csv.writer(buf, lineterminator="\n")
+    w.writerow(["seq", "label", "status", f"measured_length [{unit}]",
+                f"planned_length [{unit}]", "length_source", "note", "time"])
+    for e in entries:
+        measured = e["length"] if e["basis"] == "measured" else None
+        w.writerow([
+            "" if e["seq"] is None else e["seq"], e["label"], e["status"],
+            "" if measured is None else _number(measured, "length", system),
+            "" if e["planned"] is None else _number(e["planned"], "length", system),
+            e["basis"] or "", e["note"], e["time"],
+        ])
+    return buf.getvalue()
 
 
 def tally_from_plan(plan) -> list:
