@@ -89,7 +89,10 @@ def _prepare(joints, hole, closure, fill_level):
                 raise InputError(
                     f"fill_level[{k}]",
                     f"expected a depth below the floor >= 0 m, got {h!r}")
-    outer = [_circle_area(d) for d in ods]
+    if joints.displaced_area is None:
+        outer = [_circle_area(d) for d in ods]
+    else:   # the bore plus the joint's own material (Archimedes), JointArrays.pressure_outside_area
+        outer = [_circle_area(b) + float(a) for b, a in zip(bores, joints.displaced_area.tolist())]
     inner = [_circle_area(d) for d in bores]
     # tops[j] = L_1 + ... + L_j, summed joint by joint (tops[0] = 0)
     tops = [0.0]

@@ -26,10 +26,15 @@ def _parser() -> argparse.ArgumentParser:
                     "bundled demo job.")
     sub = p.add_subparsers(dest="command")
 
-    def job_args(sp, need_rig=True):
+    def job_args(sp, need_rig=True, many_rigs=False):
         sp.add_argument("plan", help="string plan file (strings/*.toml)")
-        sp.add_argument("--rig", required=need_rig,
-                        help="rig capacity profile (rigs/*.toml, or a bundled rig's name)")
+        if many_rigs:
+            sp.add_argument("--rig", required=need_rig, action="append",
+                            help="rig capacity profile (rigs/*.toml, a bundled rig's name, or "
+                                 "a folder of profiles); repeat to weigh several rigs")
+        else:
+            sp.add_argument("--rig", required=need_rig,
+                            help="rig capacity profile (rigs/*.toml, or a bundled rig's name)")
         sp.add_argument("--path", default=None,
                         help="hoisting path to use (default: the one with most capacity)")
         sp.add_argument("--units", choices=("us", "si"), default="us",
@@ -45,7 +50,7 @@ def _parser() -> argparse.ArgumentParser:
                              "lengths, rejections): the plan as run so far")
 
     c = sub.add_parser("check", help="check whether the rig can land the string")
-    job_args(c)
+    job_args(c, many_rigs=True)
     c.add_argument("--format", choices=("text", "json"), default="text")
     c.add_argument("--brief", action="store_true",
                    help="text: show only the first and last steps and the summary")
@@ -54,10 +59,25 @@ def _parser() -> argparse.ArgumentParser:
                         "more than 60 joints shows the first and last 20 and the most loaded)")
     o = sub.add_parser("open", help="open the terminal app on a job")
     job_args(o)
-    r = sub.add_parser("report", help="write the printable job plan (HTML or text)")
-    job_args(r)
+    r = sub.add_parser("report", help="write the job packet (PDF, HTML, Markdown, CSV or JSON)")
+    job_args(r, many_rigs=True)
     r.add_argument("-o", "--output", required=True,
-                   help="output file: .html for a printable page, anything else for text")
+                   help="output file; its suffix picks the format: .pdf, .html, .md, "
+                        ".csv (running schedule and tally) or .json")
+    r.add_argument("--revision", default=None, help="revision shown on the cover "
+                                                    "(default: the plan's [report] revision)")
+    r.add_argument("--date", default=None, help="date shown on the cover "
+                                                "(default: the plan's [report] date)")
+    r.add_argument("--prepared-by", default=None, help="name in the prepared-by block")
+    r.add_argument("--reviewed-by", default=None, help="name in the reviewed-by block")
+    r.add_argument("--paper", choices=("letter", "a4"), default=None,
+                   help="PDF paper size (default: letter for US units, A4 for SI)")
+    r.add_argument("--band", type=float, default=None,
+                   help="weight band on the crew sheet, percent of the predicted hook load "
+                        "(default 10)")
+    r.add_argument("--stamp", action="store_true",
+                   help="print the time of writing in the page footer (the file then differs "
+                        "from run to run)")
     d = sub.add_parser("demo", help="check every bundled demo job and list the verdicts")
     d.add_argument("--units", choices=("us", "si"), default="us")
     sub.add_parser("rigs", help="list the bundled rig profiles and their hoisting paths")
@@ -69,7 +89,8 @@ def _parser() -> argparse.ArgumentParser:
 def _load(args):
     import dataclasses
     from rigplan.files.job import apply_run_state, apply_tally_file, load_job, plan_job, read_run_state
-    job = load_job(args.plan, args.rig, args.path, args.materials)
+    rig = args.rig[0] if isinstance(args.rig, list) else args.rig
+    job = load_job(args.plan, rig, args.path, args.materials)
     plan = job.plan
     if getattr(args, "tally", None):
         plan = apply_tally_file(plan, args.tally)
@@ -105,8 +126,15 @@ def _exit_for(landing) -> int:
     return EXIT_LANDS if landing.lands else EXIT_LIMIT
 
 
+def _many_rigs(args) -> bool:
+    rigs = args.rig if isinstance(args.rig, list) else [args.rig]
+    return len(rigs) > 1 or any(Path(r).is_dir() for r in rigs)
+
+
 def cmd_check(args) -> int:
     from rigplan.present.report import plan_dict, text_renderables
+    if _many_rigs(args):
+        return cmd_check_rigs(args)
     job, landing = _load(args)
     from rigplan.cli_rack import liner_of
     liner = liner_of(job, landing)
@@ -139,26 +167,141 @@ def cmd_check(args) -> int:
     return _exit_for(landing)
 
 
-def cmd_report(args) -> int:
-    from rich.console import Console
-    from rigplan.files.atomicio import atomic_write_text
-    from rigplan.present.report import text_renderables
-    job, landing = _load(args)
-    out = Path(args.output)
-    console = Console(record=True, width=110, file=open("/dev/null", "w") if sys.platform != "win32"
-                      else None, highlight=False)
-    for r in text_renderables(landing, job.plan, _system(args), job.warnings, job.rig.name):
-        console.print(r)
-    if out.suffix.lower() in (".html", ".htm"):
-        text = console.export_html(inline_styles=True)
-        title = (f"<title>rigplan: {job.plan.name} - {landing.verdict.value}</title>\n"
-                 "<style>@media print { pre { font-size: 7pt; white-space: pre; } "
-                 "body { margin: 1cm; } }</style>")
-        text = text.replace("<head>", "<head>\n" + title, 1)
+def _weigh(args, plan_override=None):
+    """(job, candidates) for every rig and path named on the command line."""
+    from rigplan.present.packet.rigs import expand_rigs, weigh_rigs
+    job, landing = _load(_with_first_rig(args))
+    plan = plan_override or job.plan
+    rigs = expand_rigs(args.rig if isinstance(args.rig, list) else [args.rig], job.plan_path)
+    fixed = False
+    if getattr(args, "as_run", False):
+        from rigplan.files.job import read_run_state
+        state = read_run_state(job.plan_path)
+        fixed = bool(state is not None and state.run)
+    return job, weigh_rigs(plan, rigs, args.path, fixed_closure=fixed)
+
+
+def _with_first_rig(args):
+    import copy
+    from rigplan.present.packet.rigs import expand_rigs
+    one = copy.copy(args)
+    rigs = args.rig if isinstance(args.rig, list) else [args.rig]
+    one.rig = str(expand_rigs(rigs[:1], args.plan)[0]) if Path(rigs[0]).is_dir() else rigs[0]
+    return one
+
+
+def cmd_check_rigs(args) -> int:
+    """``check`` with several rigs: one table of every rig path's verdict and margin."""
+    from rigplan.present.packet.content import rig_choice_table
+    job, cands = _weigh(args)
+    choices = [c.choice for c in cands]
+    if args.format == "json":
+        doc = {"plan": job.plan.name, "rigs": [
+            {"rig": c.rig, "path": c.path, "verdict": c.verdict, "lands": c.lands,
+             "governing": c.governing, "margin": c.margin if c.margin == c.margin else None,
+             "string_limit": c.string_limit if c.string_limit == c.string_limit else None,
+             "hook_limit": c.hook_limit if c.hook_limit == c.hook_limit else None,
+             "chosen": c.chosen} for c in choices],
+            "units": "SI base units: N; margins are fractions"}
+        doc["exit_code"] = EXIT_LANDS if any(c.lands for c in choices) else EXIT_LIMIT
+        json.dump(doc, sys.stdout, indent=1, allow_nan=False)
+        sys.stdout.write("\n")
     else:
-        text = console.export_text()
+        from rich.table import Table
+        t = rig_choice_table(choices, _system(args), mark="* lands with the largest margin")
+        rt = Table(title=f"{job.plan.name}: {t.title.lower()}", caption=t.note or None)
+        for col, a in zip(t.columns, t.align):
+            rt.add_column(col, justify="right" if a == "r" else "left")
+        for row in t.rows:
+            rt.add_row(*row)
+        console = _console()
+        console.print(rt)
+        from rigplan import CAUTION
+        console.print(f"CAUTION: {CAUTION}")
+    return EXIT_LANDS if any(c.lands for c in choices) else EXIT_LIMIT
+
+
+def _input_files(args, job) -> list:
+    """Every file the command reads (a report may be written onto none of them)."""
+    files = [args.plan, getattr(args, "tally", None), getattr(args, "materials", None),
+             job.rig_path]
+    rigs = args.rig if isinstance(args.rig, list) else [args.rig]
+    files += [r for r in rigs if r and Path(r).exists()]
+    if job.plan_path is not None:
+        from rigplan.files.runlog import log_path_for
+        files.append(log_path_for(job.plan_path))
+    return [Path(f) for f in files if f]
+
+
+def refuse_input_overwrite(out: Path, inputs) -> None:
+    """An output path that is one of the inputs is refused (exit 2): nothing the
+    user entered is overwritten."""
+    target = Path(out).resolve()
+    for f in inputs:
+        try:
+            same = Path(f).resolve() == target or (Path(f).exists() and target.exists()
+                                                   and target.samefile(f))
+        except OSError:
+            same = False
+        if same:
+            raise InputError(f"{out}", "this is one of the input files; expected a new "
+                                       "output path (the report never overwrites an input)")
+
+
+def cmd_report(args) -> int:
+    import dataclasses
+    from rigplan.files.atomicio import atomic_write_bytes
+    from rigplan.files.job import apply_run_state, read_run_state
+    from rigplan.present.packet import FORMATS, format_for, render
+    from rigplan.present.packet.content import AsRun, DEFAULT_BAND, ReportInfo
+    out = Path(args.output)
+    fmt = format_for(out)
+    if fmt is None:
+        raise InputError(f"{out}", "unknown report format: expected a file name ending in "
+                         + ", ".join(sorted(FORMATS)))
+    # the plan as planned (a tally CSV applied), planned on the chosen rig
+    import copy
+    plain = copy.copy(args)
+    plain.as_run = False
+    if _many_rigs(args):
+        job, cands = _weigh(plain)
+        best = next(c for c in cands if c.choice.chosen)
+        choices = [c.choice for c in cands]
+        job = dataclasses.replace(best.job, plan_path=job.plan_path, warnings=job.warnings)
+        landing = best.landing
+        path_name = best.job.path_name
+    else:
+        job, landing = _load(plain)
+        choices, path_name = [], args.path
+    refuse_input_overwrite(out, _input_files(args, job))
+    meta = dict(job.plan.report)
+    band = DEFAULT_BAND if args.band is None else args.band / 100.0
+    if not 0 < band < 1:
+        raise InputError("--band", f"expected a percent between 0 and 100, got {args.band}")
+    stamp = ""
+    if args.stamp:
+        from datetime import datetime, timezone
+        stamp = datetime.now(timezone.utc).strftime("%Y-%m-%d %H:%M UTC")
+    info = ReportInfo(revision=args.revision if args.revision is not None else meta.get("revision", ""),
+                      date=args.date if args.date is not None else meta.get("date", ""),
+                      prepared_by=args.prepared_by if args.prepared_by is not None
+                      else meta.get("prepared_by", ""),
+                      reviewed_by=args.reviewed_by if args.reviewed_by is not None
+                      else meta.get("reviewed_by", ""),
+                      paper=args.paper or "", band=band, stamp=stamp)
+    as_run = None
+    if args.as_run:
+        from rigplan.files.job import plan_job
+        state = read_run_state(job.plan_path)
+        if state is None:
+            raise InputError(f"{job.plan_path}: --as-run", "no run log beside the plan: the "
+                                                           "job has not been run in the app")
+        run_plan = apply_run_state(job.plan, state)
+        run_landing = plan_job(run_plan, job.rig, path_name, fixed_closure=bool(state.run))
+        as_run = AsRun(job.plan, landing, state, run_plan, run_landing)
+    data = render(fmt, job, landing, _system(args), info, choices, as_run, job.rig.name)
     try:
-        atomic_write_text(out, text)
+        atomic_write_bytes(out, data)
     except OSError as err:
         raise InputError(f"{out}", f"cannot write the report ({err.strerror or err}): expected "
                                    "a writable file path") from None

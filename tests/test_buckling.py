@@ -30,7 +30,7 @@ from rigplan.engine.axial import neutral_point_depth, step_profile
 from rigplan.engine.buckling import (HELICAL, SINUSOIDAL, STRAIGHT, check_buckling,
                                      chen_helical_critical_load, dawson_paslay_critical_load,
                                      helical_bending_stress, helical_critical_load,
-                                     helical_onset_vertical, helical_pitch,
+                                     helical_onset_vertical, helical_pitch, helical_shortening,
                                      lubinski_critical_load, radial_clearance,
                                      second_moment_of_area, sinusoidal_critical_load)
 from rigplan.engine.stringmodel import G, Closure, Hole, JointArrays
@@ -135,6 +135,40 @@ def test_helix_tubing_in_casing_worked_example():
     assert_allclose(p / INCH, 431.0, rtol=2e-4)
     s = helical_bending_stress(2.375 * INCH, i, r, f)
     assert_allclose(s / PSI, 9528, rtol=2e-4)
+
+
+def test_slack_off_shortening_lubinski_althouse_logan_example():
+    # Published example: Lubinski, Althouse and Logan (1962), in the text on
+    # tubing free to move in the packer: "consider that 20,000 lb had been
+    # slacked-off ... Using Eqs. 6 and 7, we obtain dL1 + dL2 = -49.7 in."
+    # Eq. 6 is Hooke's law, dL1 = -F L / (E A_s); Eq. 7 the helical
+    # shortening dL2 = -r^2 F^2 / (8 E I w).  The example's string, from
+    # memory and not checked against the paper: 10,000 ft of 2-7/8 in
+    # 6.5 lb/ft tubing (bore 2.441 in) in 7 in 26 lb/ft casing (bore
+    # 6.276 in), w = 6.5 lb/ft.  By hand:
+    #   A_s = pi/4 (2.875^2 - 2.441^2) = 1.8120 in^2
+    #   I   = pi/64 (2.875^4 - 2.441^4) = 1.6110 in^4
+    #   r   = (6.276 - 2.875) / 2 = 1.7005 in,  w = 6.5 / 12 = 0.54167 lb/in
+    #   dL1 = 20,000 x 120,000 / (30e6 x 1.8120) = 44.15 in
+    #   dL2 = 1.7005^2 x 20,000^2 / (8 x 30e6 x 1.6110 x 0.54167) = 5.52 in
+    #   total 49.67 in, published 49.7 in.  The helix is 20,000 / 6.5 =
+    #   3,077 ft long, inside the string (Eq. 7 valid).
+    od, bore = 2.875 * INCH, 2.441 * INCH
+    area = math.pi / 4 * (od ** 2 - bore ** 2)
+    i = second_moment_of_area(od, bore)
+    r = radial_clearance(6.276 * INCH, od)
+    e = E_STEEL_PSI * PSI
+    f = 20_000 * LBF
+    w = 6.5 * LBF / FT
+    hooke = f * 10_000 * FT / (e * area)
+    helix = helical_shortening(r, e, i, w, f)
+    assert_allclose(helix / INCH, 5.52, atol=0.01)
+    assert_allclose((hooke + helix) / INCH, 49.7, atol=0.05)
+    # the same shortening from the helix pitch (the Eq. 7 derivation):
+    # integral of 2 pi^2 r^2 / p(F)^2 over the buckled length F / w
+    z = np.linspace(0.0, f / w, 20001)
+    per_length = 2 * math.pi ** 2 * r ** 2 / np.asarray(helical_pitch(e, i, f - w * z)) ** 2
+    assert_allclose(np.trapezoid(per_length, z), helix, rtol=1e-6)
 
 
 @settings(max_examples=60, deadline=None)

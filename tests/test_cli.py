@@ -141,7 +141,7 @@ def test_report_html(tmp_path, capsys):
     assert main(["report", str(STRINGS / "cv7-16in-floated.toml"), "--rig", "mw80",
                  "-o", str(out)]) == 0
     text = out.read_text()
-    assert "<html" in text.lower() and "CAUTION" in text
+    assert "<html" in text.lower() and "caution" in text.lower()
 
 
 def test_engine_imports_without_textual_or_rich():

@@ -446,3 +446,58 @@ def test_max_lift_agrees_with_brute_force(case, rho_g):
         # Just above the returned top some joint is over its rating / DF.
         step = 1e-6 * z
         assert worst(min(z, lift.top_height + step)) > 1.0 - 1e-9
+
+
+# ---------------------------------------------------------------------------
+# heat of hydration: thermoplastic casing derated while the grout sets
+
+
+def test_pvc_collapse_derated_for_the_heat_of_hydration():
+    # PVC derating table (Uni-Bell Handbook of PVC Pipe, from memory): 1.00 at
+    # 73.4 F, 0.62 at 100 F.  A PVC string rated at the 73.4 F job temperature
+    # and a rise of 26.6 F (100 F while the grout sets) keeps 0.62 of its
+    # collapse rating; steel keeps all of it.  Tallest single lift from the
+    # shoe, uniform string, both fluids full (hydrostatics, module docstring):
+    # H = (P/DF - rho_o g Z + rho_i g Z) / ((rho_g - rho_o) g).
+    from rigplan.engine.grouting import grouting_collapse_ratings
+    from rigplan.engine.rating import rate_joints
+    from rigplan.engine.stringmodel import JointSpec
+    od = 8.625 * INCH
+    pvc = [JointSpec(f"P{i}", "blank", "pvc", od=od, wall=od / 17, length=6.0,
+                     connection="spline") for i in range(20)]
+    steel = JointSpec("S", "blank", "a53b", od=od, wall=0.25 * INCH, length=6.0)
+    joints = rate_joints(pvc + [steel])
+    rise = (100.0 - 73.4) / 1.8
+    rated = grouting_collapse_ratings(joints, rise)
+    assert_allclose(rated[:20], 0.62 * joints.collapse_rating[:20], rtol=1e-12)
+    assert rated[20] == joints.collapse_rating[20]
+    assert_allclose(grouting_collapse_ratings(joints, 0.0), joints.collapse_rating, rtol=0)
+    only_pvc = rate_joints(pvc)
+    z = 120.0
+    p = 0.62 * only_pvc.collapse_rating[0]
+    expected = (p / DF - MUD * G * z + WATER * G * z) / ((GROUT - MUD) * G)
+    plan = plan_grout_lifts(only_pvc, Hole(fluid_density=MUD),
+                            GroutSpec(density=GROUT, height=z, inside_density=WATER,
+                                      temperature_rise=rise), DF)
+    assert_allclose(plan.max_single_lift, expected, rtol=1e-9)
+    cool = plan_grout_lifts(only_pvc, Hole(fluid_density=MUD),
+                            GroutSpec(density=GROUT, height=z, inside_density=WATER), DF)
+    assert cool.max_single_lift > plan.max_single_lift
+
+
+def test_pvc_past_its_table_while_grouting_is_unrated():
+    # PVC is not rated above 140 F (derating table, from memory): a job at
+    # 110 F with a 40 F rise leaves no collapse rating: unrated, never assumed,
+    # and the grouting plan lists the joints it could not check.
+    from rigplan.engine.grouting import grouting_collapse_ratings
+    from rigplan.engine.rating import rate_joints
+    from rigplan.engine.stringmodel import JointSpec
+    od = 8.625 * INCH
+    pvc = [JointSpec(f"P{i}", "blank", "pvc", od=od, wall=od / 17, length=6.0,
+                     connection="spline") for i in range(5)]
+    joints = rate_joints(pvc, temperature=(110 - 32) / 1.8)
+    assert np.all(np.isnan(grouting_collapse_ratings(joints, 40 / 1.8)))
+    plan = plan_grout_lifts(joints, Hole(fluid_density=MUD),
+                            GroutSpec(density=GROUT, height=10.0, inside_density=WATER,
+                                      temperature_rise=40 / 1.8), DF)
+    assert plan.unrated == tuple(f"P{i}" for i in range(5))

@@ -50,13 +50,15 @@ def test_ellipticity_from_measured_diameters():
 
 
 def test_minimum_wall_is_used_without_measurement():
-    # rigplan rule and ASTM A53/A53M: ratings on the wall 12.5 % under the
-    # specified wall (0.328125 in for 0.375 in).
+    # ASTM A53/A53M: the wall may be 12.5 % under the specified wall, and the
+    # Timoshenko formula has no tolerance built in, so non-API steel is rated on
+    # the minimum wall (0.328125 in for 0.375 in).
     spec = joint()
     wall, how = rating_wall(spec, get_material("a53b"))
     assert_allclose(wall / inch, 0.328125, rtol=1e-12)
-    assert how == "specified less 12.5 %"
+    assert how == "minimum wall"
     arrays = rate_joints([spec])
+    assert arrays.collapse_basis == arrays.burst_basis == arrays.tension_basis == ("minimum wall",)
     assert_allclose(arrays.collapse_rating[0],
                     timoshenko(16 * inch, wall, 35 * ksi, 0.01, 30e6 * psi, 0.3), rtol=1e-12)
     assert arrays.collapse_rating[0] < 470.0 * psi
@@ -88,47 +90,79 @@ def test_bore_uses_specified_wall_unless_entered():
     assert_allclose(arrays.od, [16 * inch, 16 * inch], rtol=1e-12)
 
 
-def test_burst_and_body_on_minimum_wall():
-    # Barlow 2 Sy t_min / D with t_min = 0.875 t equals API TR 5C3's
-    # 0.875 * 2 Y t / D: 7 in 23 lb/ft J-55 burst 4,360 psi (API casing tables,
-    # from memory, recomputed).  Body: 0.7854 (D^2 - d^2) Y on the minimum wall
-    # (API TR 5C3 body-yield formula).
-    arrays = rate_joints([joint(material="j55", od=7.0, wall=0.317)])
-    assert_allclose(arrays.burst_rating[0] / psi, 4360.0, atol=10.0)
-    t_min = 0.875 * 0.317
-    expected_body = 0.7854 * (7.0**2 - (7.0 - 2 * t_min) ** 2) * 55000
-    assert_allclose(arrays.body_rating[0] / lbf, expected_body, rtol=1e-4)
+def test_non_api_steel_burst_and_body_on_minimum_wall():
+    # Barlow 2 Y t / D and body yield Y pi t (D - t) with t the minimum wall
+    # 0.875 x 0.375 in (ASTM A53/A53M tolerance; formulas: API TR 5C3 body
+    # yield, Barlow), 16 in A53 B at 35 ksi, worked by hand:
+    # burst 2 x 35,000 x 0.328125 / 16 = 1,435.5 psi;
+    # body 35,000 x pi x 0.328125 x (16 - 0.328125) = 565,429 lbf.
+    arrays = rate_joints([joint()])
+    assert_allclose(arrays.burst_rating[0] / psi, 1435.5, atol=0.1)
+    assert_allclose(arrays.body_rating[0] / lbf, 565429, atol=2)
 
 
-# API casing tables (API 5C2 / 5CT), from memory, recomputed: collapse +-10 psi,
-# body yield +-500 lbf; with the measured wall equal to the specified wall the
-# rating reproduces the tables.
-API_ROWS = [
-    ("j55", 7.0, 0.317, 3270, 366000),
-    ("n80", 7.0, 0.540, 11390, 877000),
-    ("n80", 9.625, 0.395, 3090, 916000),
-    ("p110", 9.625, 0.472, 5300, 1493000),
-    ("k55", 13.375, 0.380, 1130, 853000),
-    ("h40", 16.0, 0.375, 630, 736000),
+# API casing tables (API 5C2 / API 5CT performance tables, computed by API TR
+# 5C3; from memory, recomputed with the formulas): grade, OD [in], wall [in],
+# regime, collapse [psi], internal yield [psi], pipe-body yield [lbf].  One row
+# per collapse regime at least, six sizes.
+API_TABLE_ROWS = [
+    ("n80", 7.0, 0.540, "yield", 11390, 10800, 877000),          # 7 in 38 lb/ft N-80
+    ("n80", 5.5, 0.304, "plastic", 6280, 7740, 397000),          # 5-1/2 in 17 lb/ft N-80
+    ("j55", 7.0, 0.317, "plastic", 3270, 4360, 366000),          # 7 in 23 lb/ft J-55
+    ("k55", 9.625, 0.352, "transition", 2020, 3520, 564000),     # 9-5/8 in 36 lb/ft K-55
+    ("j55", 10.75, 0.350, "transition", 1580, 3130, 629000),     # 10-3/4 in 40.5 lb/ft J-55
+    ("h40", 16.0, 0.375, "elastic", 630, 1640, 736000),          # 16 in 65 lb/ft H-40
+    ("k55", 20.0, 0.438, "elastic", 520, 2110, 1480000),         # 20 in 94 lb/ft K-55
 ]
 
 
-def test_api_grades_reproduce_tables_with_specified_wall():
-    specs = [joint(f"C{i}", material=m, od=od, wall=t, measured_wall=t * inch)
-             for i, (m, od, t, _, _) in enumerate(API_ROWS)]
+def test_api_grades_rated_on_the_specified_wall_match_the_tables():
+    # API TR 5C3: collapse (four regimes) and body yield on the specified wall,
+    # internal yield 0.875 x 2 Y t / D; within 10 psi and 1,000 lbf of the tables.
+    from rigplan.engine.collapse import api_5c3_regime
+    specs = [joint(f"C{i}", material=m, od=od, wall=t)
+             for i, (m, od, t, *_rest) in enumerate(API_TABLE_ROWS)]
     arrays = rate_joints(specs)
-    assert_allclose(arrays.collapse_rating / psi, [r[3] for r in API_ROWS], atol=10.0)
-    assert_allclose(arrays.body_rating / lbf, [r[4] for r in API_ROWS], atol=500.0)
-    assert set(arrays.collapse_method) == {"api_5c3"}
+    assert_allclose(arrays.collapse_rating / psi, [r[4] for r in API_TABLE_ROWS], atol=10.0)
+    assert_allclose(arrays.burst_rating / psi, [r[5] for r in API_TABLE_ROWS], atol=10.0)
+    assert_allclose(arrays.body_rating / lbf, [r[6] for r in API_TABLE_ROWS], atol=1000.0)
+    regimes = [api_5c3_regime(od * inch, t * inch, get_material(m).yield_strength)
+               for m, od, t, *_rest in API_TABLE_ROWS]
+    assert regimes == [r[3] for r in API_TABLE_ROWS]
+    assert set(arrays.collapse_basis) == set(arrays.burst_basis) == {"specified wall"}
+    assert set(arrays.tension_basis) == {"specified wall"}
+    assert not arrays.findings
 
 
-def test_api_grade_collapse_on_minimum_wall():
-    # rigplan rule: API TR 5C3 applied to the minimum wall (more conservative
-    # than the API tables, which use the specified wall).
-    arrays = rate_joints([joint(material="j55", od=7.0, wall=0.317)])
+def test_api_measured_wall_within_tolerance_keeps_the_table_rating():
+    # API TR 5C3: the constants already give minimum values over the 12.5 %
+    # tolerance; a measured wall inside it (0.33 in of 0.352 in, minimum 0.308 in)
+    # leaves 9-5/8 in 36 lb/ft K-55 at 2,020 psi (API tables, from memory).
+    arrays = rate_joints([joint(material="k55", od=9.625, wall=0.352, measured_wall=0.33 * inch)])
+    assert_allclose(arrays.collapse_rating[0] / psi, 2020, atol=10)
+    assert arrays.collapse_basis == ("specified wall",)
+    assert not arrays.findings
+
+
+def test_api_measured_wall_under_the_minimum_rates_that_joint():
+    # API TR 5C3 convention kept for a thin joint: rated as pipe whose specified
+    # wall is t_meas / 0.875, so collapse is the 5C3 formula there, internal
+    # yield 0.875 x 2 Y (t_meas / 0.875) / D = 2 Y t_meas / D (Barlow on the
+    # measured wall), body yield on the measured wall; worked by hand for
+    # 9-5/8 in K-55 measured 0.280 in (minimum 0.308 in):
+    # burst 2 x 55,000 x 0.280 / 9.625 = 3,200.0 psi;
+    # body 55,000 x pi x 0.280 x 9.345 = 452,116 lbf.
+    from rigplan.engine.rating import RatingCode
+    arrays = rate_joints([joint("T9", material="k55", od=9.625, wall=0.352,
+                                measured_wall=0.280 * inch)])
     assert_allclose(arrays.collapse_rating[0],
-                    api_5c3(7 * inch, 0.875 * 0.317 * inch, 55 * ksi), rtol=1e-12)
-    assert arrays.collapse_rating[0] < 3260 * psi
+                    api_5c3(9.625 * inch, 0.320 * inch, 55 * ksi), rtol=1e-12)
+    assert_allclose(arrays.burst_rating[0] / psi, 3200.0, atol=0.1)
+    assert_allclose(arrays.body_rating[0] / lbf, 452116, atol=2)
+    assert arrays.collapse_basis == arrays.burst_basis == arrays.tension_basis == ("measured wall",)
+    (finding,) = arrays.findings
+    assert finding.code == RatingCode.WALL_UNDER_MINIMUM and finding.label == "T9"
+    assert_allclose(finding.value("minimum_wall") / inch, 0.308, rtol=1e-12)
 
 
 # --- thermoplastic ------------------------------------------------------------------
@@ -147,6 +181,50 @@ def test_pvc_by_sdr():
     rated = rate_joints([joint(material="pvc", od=od, wall=od / 21, connection="spline",
                                connection_rating=20000.0)])
     assert rated.connection_rating[0] == 20000.0
+
+
+@pytest.mark.parametrize("ratio, pressure_class_psi", [(17.0, 250.0), (21.0, 200.0), (26.0, 160.0)])
+def test_pvc_pressure_rating_is_the_d2241_pressure_class(ratio, pressure_class_psi):
+    # ASTM D2241 pressure classes of PVC 1120 SDR-PR pipe at 73.4 F, from the
+    # ISO equation 2 S / (SDR - 1) with S = 2,000 psi: SDR 17 -> 250 psi,
+    # SDR 21 -> 200 psi, SDR 26 -> 160 psi.
+    od = 8.625
+    arrays = rate_joints([joint(material="pvc", od=od, wall=od / ratio, connection="spline")])
+    assert_allclose(arrays.burst_rating[0] / psi, pressure_class_psi, rtol=1e-12)
+    assert arrays.burst_basis == ("minimum wall",)
+
+
+def test_pvc_ratings_derated_for_temperature():
+    # PVC temperature derating table (Uni-Bell Handbook of PVC Pipe, from
+    # memory): 0.62 at 100 F.  SDR 21 at 100 F: 200 x 0.62 = 124 psi pressure
+    # rating; the F480 collapse 2 E / (1 - nu^2) / (SDR - 1)^3 = 116.9 psi at
+    # 73 F (E 400,000 psi, nu 0.38) times 0.62 = 72.5 psi.
+    od = 8.625
+    spec = joint(material="pvc", od=od, wall=od / 21, connection="spline")
+    cold = rate_joints([spec])
+    hot = rate_joints([spec], temperature=(100 - 32) / 1.8)
+    assert_allclose(hot.burst_rating[0] / psi, 124.0, rtol=1e-9)
+    assert_allclose(cold.collapse_rating[0] / psi, 116.88, atol=0.01)
+    assert_allclose(hot.collapse_rating[0] / psi, 116.88 * 0.62, atol=0.01)
+    assert_allclose(hot.body_rating[0], cold.body_rating[0], rtol=1e-15)   # tension not derated
+    assert hot.derating == ("pvc",) and hot.rating_temperature == pytest.approx(37.78, abs=0.01)
+    # steel is not derated
+    steel = rate_joints([joint()], temperature=(100 - 32) / 1.8)
+    assert_allclose(steel.collapse_rating, rate_joints([joint()]).collapse_rating, rtol=1e-15)
+
+
+def test_pvc_above_the_derating_table_is_unrated():
+    # The derating table stops at 140 F, the highest recommended service
+    # temperature of PVC (Uni-Bell Handbook of PVC Pipe, from memory): above it
+    # the pressure and collapse ratings are unrated (never assumed) and a
+    # finding says why.
+    from rigplan.engine.rating import RatingCode
+    od = 8.625
+    arrays = rate_joints([joint("P1", material="pvc", od=od, wall=od / 21, connection="spline",
+                                collapse_rating=150 * psi)], temperature=65.0)
+    assert math.isnan(arrays.collapse_rating[0]) and math.isnan(arrays.burst_rating[0])
+    assert arrays.collapse_basis == arrays.burst_basis == ("unrated",)
+    assert [f.code for f in arrays.findings] == [RatingCode.ABOVE_DERATING_TABLE]
 
 
 # --- screens, entered and unrated ratings --------------------------------------------

@@ -624,3 +624,55 @@ def test_plan_save_keeps_comments_and_notation_and_a_backup(job):
     assert backup.read_text() == text                 # the previous version beside it
     # 1100 kg/m3 read back (units exact by definition)
     assert read_plan(plan).plan.settings.fill_density == pytest.approx(1100.0, rel=1e-11)
+
+
+def demo_job(tmp_path, plan_name: str, rig_name: str) -> tuple:
+    """A bundled demo job copied into ``tmp_path`` (its run log goes there)."""
+    import shutil
+    root = Path(__file__).resolve().parents[1]
+    plan = tmp_path / plan_name
+    shutil.copy(root / "strings" / plan_name, plan)
+    return plan, root / "rigs" / rig_name
+
+
+async def test_landing_picture_warns_when_a_screen_moves(tmp_path):
+    # CV-7 (invented demo): screens J2-J5 under a float collar on top of J5.
+    # A joint above the screens taped 3 ft long puts them 3 ft deeper
+    # (identity of the tally sums, common practice, no source), more than
+    # the default 2 ft tolerance.
+    plan, rig = demo_job(tmp_path, "cv7-16in-floated.toml", "mw80.toml")
+    app = make_app(plan, rig)
+    async with app.run_test(size=SIZE) as pilot:
+        text = static_text(app, "#landing")
+        assert "Screen J2-J5" in text and "Float collar (top of J5)" in text
+        assert "WARNING" not in text
+        await pilot.press("3")
+        for _ in range(5):
+            await pilot.press("r", "enter")
+            await pilot.pause()
+        await pilot.press("r")
+        await answer(pilot, "23 ft")
+        box = app.query_one("#run-landing")
+        assert box.has_class("warning")
+        assert "WARNING: screen J2-J5 lands +3.00 ft" in str(box.content)
+        moved = app.session.landing_picture().moved
+        assert_allclose(moved[0].shift, 3 * ft, rtol=1e-9)
+
+
+async def test_each_joint_is_named_by_its_label_after_a_set_aside(job):
+    plan, rig = job
+    app = make_app(plan, rig)
+    async with app.run_test(size=SIZE) as pilot:
+        await pilot.press("3", "j")
+        await answer(pilot, "dented")            # J1 set aside: J2 runs first
+        nxt = app.session.next_joint().label
+        assert nxt == "J2"
+        texts = [static_text(app, w) for w in ("#next-action", "#fill-plan", "#float-line")]
+        texts.append("\n".join(P_lines(app)))
+        for t in texts:
+            assert not re.search(r"joint \d+ \(J\d+\)", t), t
+        assert "J2" in static_text(app, "#next-action")
+
+
+def P_lines(app) -> list:
+    return [str(app.query_one("#run-summary").content)]

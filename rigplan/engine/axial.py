@@ -14,7 +14,9 @@ axial force at the cut is::
          + sum_{i<=j} [ P_o(z_i) (A_o,i-1 - A_o,i)
                         + P_in,i(z_i) A_b,i - P_in,i-1(z_i) A_b,i-1 ]
 
-with ``A_o = pi D^2/4`` the outside and ``A_b = pi d^2/4`` the bore area,
+with ``A_o`` the outer area (``JointArrays.pressure_outside_area``: the bore
+plus the joint's own material, so each joint is buoyed by the fluid its
+material displaces) and ``A_b = pi d^2/4`` the bore area,
 ``A_o,0 = A_b,0 = 0``, ``P_o`` the annulus pressure and ``P_in,i`` the
 pressure of whatever fills the bore of joint ``i`` (hole fluid below the
 check valve, fill fluid above it).  A check valve is simply an interface
@@ -128,7 +130,8 @@ def string_geometry(joints: JointArrays, closure: Closure) -> StringGeometry:
     for the same, unchanged string.
     """
     valve = closure.valve_joint
-    inputs = (joints.length, joints.od, joints.bore, joints.weight)
+    inputs = (joints.length, joints.od, joints.bore, joints.weight,
+              joints.od if joints.displaced_area is None else joints.displaced_area)
     for entry in tuple(_GEOMETRY_CACHE):
         if entry[0] is joints and entry[1] == valve and all(
                 a.shape == np.shape(b) and bool((a == b).all()) for a, b in zip(entry[2], inputs)):
@@ -154,7 +157,7 @@ def _build_geometry(joints: JointArrays, closure: Closure) -> StringGeometry:
         raise ValueError("every joint length must be positive [m]")
     top = np.cumsum(length)
     bottom = np.concatenate(([0.0], top[:-1]))
-    ao = 0.25 * np.pi * np.asarray(joints.od, dtype=float) ** 2
+    ao = np.asarray(joints.pressure_outside_area, dtype=float)   # bore + own material (Archimedes)
     ab = 0.25 * np.pi * np.asarray(joints.bore, dtype=float) ** 2
     if np.any(ab >= ao):
         raise ValueError("each joint's bore must be smaller than its outside diameter")

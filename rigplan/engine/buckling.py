@@ -36,7 +36,7 @@ Methods used
   pitch ``p = pi sqrt(8 E I / F)``; the helix of radius ``r`` (the radial
   clearance) has curvature ``4 pi^2 r / (p^2 + 4 pi^2 r^2) ~ r F / (2 E I)``,
   so the outer-fibre bending stress is ``sigma_b = E kappa D / 2 = r D F /
-  (4 I)``.
+  (4 I)``, and the helix shortens the string by ``r^2 F^2 / (8 E I w)``.
 
 Water wells are drilled vertical here: the planner uses ``theta = 0``, so
 the sinusoidal and helical thresholds are Lubinski's and Wu and
@@ -82,6 +82,7 @@ __all__ = [
     "helical_critical_load",
     "helical_pitch",
     "helical_bending_stress",
+    "helical_shortening",
     "BucklingCheck",
     "check_buckling",
 ]
@@ -419,6 +420,54 @@ def helical_bending_stress(od, moment, clearance, force):
     f = np.maximum(np.asarray(force, dtype=float), 0.0)
     return _result(np.asarray(clearance, dtype=float) * np.asarray(od, dtype=float) * f
                    / (4.0 * np.asarray(moment, dtype=float)))
+
+
+def helical_shortening(clearance, modulus, moment, weight_per_length, force):
+    """Shortening of a string by helical buckling of its lower part, Lubinski,
+    Althouse and Logan 1962 (their Eq. 7).
+
+    .. math:: \\Delta L = \\frac{r^2 F^2}{8 E I w}
+
+    The helix of pitch ``p`` (:func:`helical_pitch`) shortens each unit
+    length by ``2 pi^2 r^2 / p^2 = r^2 F / (4 E I)``; with the force falling
+    by ``w`` per length up to the neutral point, ``F / w`` above the bottom,
+    the integral gives the formula.
+
+    Parameters
+    ----------
+    clearance : float or array
+        Radial clearance ``r`` [m].
+    modulus : float or array
+        Young's modulus ``E`` [Pa].
+    moment : float or array
+        Second moment of area ``I`` [m^4].
+    weight_per_length : float or array
+        Weight per length ``w`` [N/m] of the pipe with its contents less the
+        fluid it displaces, > 0.
+    force : float or array
+        Compressive effective force at the bottom ``F`` [N] (<= 0 gives 0).
+
+    Returns
+    -------
+    float or ndarray
+        Shortening [m] (a positive length).
+
+    Notes
+    -----
+    Vertical hole, helix from the bottom up to the neutral point, which must
+    lie inside the string (``F / w`` not more than its length); elastic, no
+    friction.  Source: Lubinski, Althouse and Logan (1962).
+
+    Examples
+    --------
+    >>> helical_shortening(1.0, 1.0, 1.0, 1.0, 4.0)   # 1 x 16 / 8
+    2.0
+    """
+    f = np.maximum(np.asarray(force, dtype=float), 0.0)
+    r = np.asarray(clearance, dtype=float)
+    return _result(r * r * f * f / (8.0 * np.asarray(modulus, dtype=float)
+                                     * np.asarray(moment, dtype=float)
+                                     * np.asarray(weight_per_length, dtype=float)))
 
 
 # ---------------------------------------------------------------------------

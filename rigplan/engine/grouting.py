@@ -52,8 +52,10 @@ maximum of linear functions of ``t``, so the height where it first reaches
 
 Validity: static columns after placement (no friction or surge while
 pumping), grout treated as a fluid until it sets (no gel strength), one
-fluid inside, incompressible fluids.  Heat of hydration (which weakens
-thermoplastic casing) is not modelled.
+fluid inside, incompressible fluids.  Heat of hydration weakens
+thermoplastic casing: the collapse ratings of joints whose material has a
+temperature-derating table are taken at the job temperature plus the
+grout's ``temperature_rise`` (:func:`grouting_collapse_ratings`).
 
 Sources: string mechanics (ADE 1986) ("Hydrostatics", "Collapse",
 "Grouting"); Bourgoyne et al., *Applied Drilling Engineering* (1986), ch. 7,
@@ -80,6 +82,7 @@ __all__ = [
     "lift_collapse_loads",
     "grout_collapse_loads",
     "grout_utilization",
+    "grouting_collapse_ratings",
     "SingleLift",
     "max_single_lift",
     "GroutPlan",
@@ -158,6 +161,50 @@ def _collapse_ratings(joints: JointArrays) -> np.ndarray:
         i = int(np.flatnonzero(bad)[0])
         raise InputError(f"joints[{joints.label[i]}].collapse_rating",
                          f"expected a collapse rating > 0 Pa (nan when unrated), got {rating[i]!r}")
+    return rating
+
+
+def grouting_collapse_ratings(joints: JointArrays, temperature_rise=0.0) -> np.ndarray:
+    """Collapse ratings while the grout sets [Pa]: thermoplastics derated for its heat.
+
+    .. math:: P_g = P_j \\, f(T_j + \\Delta T) / f(T_j)
+
+    Parameters
+    ----------
+    joints : JointArrays
+        Rated string: ``collapse_rating`` at the job temperature
+        ``rating_temperature`` [C], and each joint's ``derating`` table.
+    temperature_rise : float, optional
+        Rise of the casing temperature while the grout sets [K], >= 0
+        (cement's heat of hydration).
+
+    Returns
+    -------
+    ndarray
+        Ratings [Pa]; unchanged for joints without a derating table (steel);
+        nan (unrated) where unrated or where the table gives no rating at
+        the higher temperature (PVC above 140 F).
+
+    Notes
+    -----
+    Derating factors ``f`` from :func:`rigplan.engine.materials.temperature_factor`
+    (PVC: the table cited in ``rigplan.engine.materials.TEMPERATURE_DERATING``).
+    The heat of hydration of the grout is a known cause of PVC casing
+    collapse while grouting (ASTM F480, from memory); the rise is the
+    user's estimate, it is not computed here.
+    """
+    from rigplan.engine.materials import temperature_factor
+
+    rating = _collapse_ratings(joints).copy()
+    rise = _check_number("grout.temperature_rise", temperature_rise, "a temperature rise", "K")
+    if rise == 0.0 or not joints.derating:
+        return rating
+    t0 = float(joints.rating_temperature)
+    for table in set(joints.derating) - {""}:
+        k = np.array([d == table for d in joints.derating], dtype=bool)
+        f0 = temperature_factor(table, t0)
+        f1 = temperature_factor(table, t0 + rise)
+        rating[k] = rating[k] / f0 * f1        # nan past the table: unrated
     return rating
 
 
@@ -461,7 +508,7 @@ def grout_utilization(joints: JointArrays, hole: Hole, grout: GroutSpec,
     """
     df = _check_number("design_factors.collapse", collapse_factor, "a collapse design factor", "[-]",
                        positive=True)
-    rating = _collapse_ratings(joints)
+    rating = grouting_collapse_ratings(joints, grout.temperature_rise)
     return df * grout_collapse_loads(joints, hole, grout) / rating
 
 
@@ -505,7 +552,8 @@ def _utilization_minus_one(ts, lo, hi, allow, z_shoe, rho_o, h_o, rho_g, rho_i, 
 
 
 def max_single_lift(joints: JointArrays, hole: Hole, grout_density, inside_density,
-                    inside_level, collapse_factor, base_height=0.0) -> SingleLift:
+                    inside_level, collapse_factor, base_height=0.0,
+                    temperature_rise=0.0) -> SingleLift:
     """Tallest grout column that keeps every rated joint within rating / DF.
 
     The grout top rises from the base ``b``; every height it passes must
@@ -547,6 +595,9 @@ def max_single_lift(joints: JointArrays, hole: Hole, grout_density, inside_densi
     base_height : float, optional
         Height above the shoe of the top of grout already set [m]; the
         casing below it is encased and not loaded.
+    temperature_rise : float, optional
+        Heat of hydration: rise of the casing temperature [K]
+        (:func:`grouting_collapse_ratings`).
 
     Returns
     -------
@@ -564,7 +615,7 @@ def max_single_lift(joints: JointArrays, hole: Hole, grout_density, inside_densi
     rho_g, rho_i, h_i, df = _check_fluids(grout_density, inside_density, inside_level,
                                           collapse_factor)
     b = _check_height("grout.base_height", base_height, z_shoe, "a lift base height")
-    rating = _collapse_ratings(joints)
+    rating = grouting_collapse_ratings(joints, temperature_rise)
     return _max_lift(joints, bottom, top, z_shoe, rating, rho_o, h_o, rho_g, rho_i, h_i, df, b)
 
 
@@ -703,7 +754,7 @@ def plan_grout_lifts(joints: JointArrays, hole: Hole, grout: GroutSpec,
     rho_g, rho_i, h_i, df = _check_fluids(grout.density, grout.inside_density,
                                           grout.inside_level, collapse_factor)
     h_plan = _check_height("grout.height", grout.height, z_shoe, "a grout column height")
-    rating = _collapse_ratings(joints)
+    rating = grouting_collapse_ratings(joints, grout.temperature_rise)
 
     loads = _lift_loads(bottom, top, z_shoe, rho_o, h_o, rho_g, rho_i, h_i, 0.0, h_plan)
     util = df * loads / rating

@@ -23,6 +23,10 @@ __all__ = [
     "get_material",
     "register_material",
     "known_keys",
+    "TEMPERATURE_DERATING",
+    "REFERENCE_TEMPERATURE",
+    "JOB_TEMPERATURE_RANGE",
+    "temperature_factor",
 ]
 
 #: Pascal per psi (NIST SP 811, from the pound-force and the inch).
@@ -38,6 +42,85 @@ FAMILIES = ("steel", "stainless", "hsla", "api", "pvc", "fiberglass")
 
 #: Numeric fields; each needs an entry in ``Material.sources``.
 _NUMERIC_FIELDS = ("density", "yield_strength", "youngs_modulus", "poisson", "wall_under_tolerance")
+
+
+#: Temperature at which the ratings of thermoplastic pipe are stated [C]
+#: (73.4 F; ASTM D1785, D2241 and F480 rate at 73.4 F / 23 C).
+REFERENCE_TEMPERATURE = 23.0
+
+#: Job temperatures a plan may state [C]: from freezing to 60 C (140 F), the
+#: highest temperature of the PVC derating table below.
+JOB_TEMPERATURE_RANGE = (0.0, 60.0)
+
+
+def _f_to_c(deg_f):
+    return (deg_f - 32.0) * 5.0 / 9.0
+
+
+#: Temperature derating tables: key -> (temperatures [C], factors [-], source).
+#: A rating at the reference temperature times the factor at the service
+#: temperature, interpolated linearly; 1.0 at or below the first entry; nan
+#: above the last one (not recommended for service there: unrated).
+TEMPERATURE_DERATING = {
+    "pvc": (
+        tuple(_f_to_c(t) for t in (73.4, 80.0, 90.0, 100.0, 110.0, 120.0, 130.0, 140.0)),
+        (1.00, 0.88, 0.75, 0.62, 0.50, 0.40, 0.30, 0.22),
+        "PVC temperature derating factors for pressure ratings, 73 F 1.00, 80 F 0.88, 90 F "
+        "0.75, 100 F 0.62, 110 F 0.50, 120 F 0.40, 130 F 0.30, 140 F 0.22; 140 F the highest "
+        "recommended service temperature (Uni-Bell PVC Pipe Association, Handbook of PVC Pipe, "
+        "and the PVC pipe makers' technical manuals that reprint it, from memory).  Applied "
+        "to collapse as well as pressure: the modulus and the strength of PVC both fall with "
+        "temperature (common practice, no source; the factors are those of the long-term "
+        "pressure rating, conservative for short-term collapse)",
+    ),
+}
+
+
+def temperature_factor(table, temperature):
+    """Derating factor of a thermoplastic rating at a service temperature.
+
+    .. math:: f(T) = \\text{linear interpolation of the table};
+        \\; f = 1 \\; (T \\le T_0); \\; \\text{unrated} \\; (T > T_{max})
+
+    Parameters
+    ----------
+    table : str
+        Key of :data:`TEMPERATURE_DERATING` (``"pvc"``); ``""`` means no
+        derating (factor 1).
+    temperature : float or array_like
+        Service temperature [C].
+
+    Returns
+    -------
+    float or ndarray
+        Factor on the rating at 73.4 F / 23 C [-], 0 < f <= 1.  Nothing is
+        gained below 73 F (the factor stays 1); above the table's last
+        temperature (140 F / 60 C for PVC) the material is not recommended
+        and has no rating: nan (unrated, never assumed).
+
+    Notes
+    -----
+    PVC factors from the derating table cited in :data:`TEMPERATURE_DERATING`
+    (from memory); valid 73 to 140 F.
+
+    Examples
+    --------
+    PVC at 100 F (37.8 C): 0.62.
+
+    >>> round(temperature_factor("pvc", (100 - 32) * 5 / 9), 2)
+    0.62
+    """
+    import numpy as np
+
+    t = np.asarray(temperature, dtype=float)
+    if not table:
+        out = np.ones_like(t)
+    else:
+        temps, factors, _ = TEMPERATURE_DERATING[table]
+        out = np.interp(t, temps, factors, left=1.0, right=np.nan)
+        out = np.where(t > temps[-1] + 1e-9, np.nan, out)
+        out = np.where(np.isnan(t), np.nan, out)
+    return float(out) if out.ndim == 0 else out
 
 
 @dataclass(frozen=True)
@@ -69,6 +152,14 @@ class Material:
         One of :data:`FAMILIES`.
     sources : dict
         Field name -> source of that value.
+    design_stress : float
+        Hydrostatic design stress of a thermoplastic compound [Pa] (PVC 1120
+        / 12454: 2,000 psi at 73 F), the long-term hoop stress its pressure
+        rating is computed from; nan for metals or when unknown (then a
+        thermoplastic burst rating is unrated).
+    temperature_derating : str
+        Key of :data:`TEMPERATURE_DERATING` whose factors derate this
+        material's pressure and collapse ratings above 73 F; ``""`` for none.
     """
 
     key: str
@@ -81,6 +172,8 @@ class Material:
     collapse_method: str
     family: str
     sources: dict = field(default_factory=dict, hash=False)
+    design_stress: float = _NAN
+    temperature_derating: str = ""
 
     def __post_init__(self):
         where = f"material {self.key!r}"
@@ -108,6 +201,15 @@ class Material:
             raise ValueError(
                 f"{where}: wall_under_tolerance must satisfy 0 <= u < 1 [-] (e.g. 0.125); got {u:g}"
             )
+        s = float(self.design_stress)
+        if not math.isnan(s) and s <= 0:
+            raise ValueError(f"{where}: design_stress must be greater than 0 Pa (or nan); got {s:g}")
+        if not math.isnan(s) and not self.sources.get("design_stress"):
+            raise ValueError(f"{where}: no source given for design_stress")
+        if self.temperature_derating and self.temperature_derating not in TEMPERATURE_DERATING:
+            raise ValueError(
+                f"{where}: temperature_derating must be one of "
+                f"{', '.join(TEMPERATURE_DERATING)} or empty; got {self.temperature_derating!r}")
         missing = [name for name in _NUMERIC_FIELDS if not self.sources.get(name)]
         if missing:
             raise ValueError(f"{where}: no source given for {', '.join(missing)}")
@@ -211,11 +313,17 @@ _BUILT_IN = (
         wall_under_tolerance=0.0,
         collapse_method="thermoplastic",
         family="pvc",
+        design_stress=2000.0 * _PSI,
+        temperature_derating="pvc",
         sources={
+            "design_stress": "hydrostatic design stress of PVC 1120 (cell class 12454), 2,000 psi "
+                             "[13.8 MPa] for water at 73.4 F: hydrostatic design basis 4,000 psi "
+                             "times the 0.5 service factor (ASTM D2241 and D1785 appendices; "
+                             "Moser, Buried Pipe Design, pressure pipe: S = HDB / 2), from memory",
             "density": "about 1.40 g/cm^3 for rigid PVC compound, from memory",
             "yield_strength": "ASTM D1784 cell class 12454, tensile strength class 4: at least "
-                              "7,000 psi [48.3 MPa], from memory; short-term strength, not a "
-                              "long-term design stress",
+                              "7,000 psi [48.3 MPa], from memory; short-term strength for the "
+                              "body in tension only: pressure ratings use the design stress",
             "youngs_modulus": "ASTM D1784 cell class 12454, modulus class 5: at least 400,000 psi "
                               "[2,758 MPa]; the modulus ASTM F480 uses for collapse, from memory",
             "poisson": "0.38, the value ASTM F480 uses in its collapse appendix, from memory",

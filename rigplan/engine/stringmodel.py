@@ -18,7 +18,7 @@ Conventions (shared by every engine module):
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 
 import numpy as np
 
@@ -36,6 +36,11 @@ JOINT_KINDS = (
     "centralizer",
     "sump",
 )
+
+#: What a rating rests on: the specified wall (API TR 5C3 formulas), the
+#: minimum wall the standard allows (other steel, thermoplastic by SDR), a
+#: measured wall, the maker's figure (entered), or nothing (unrated).
+RATING_BASES = ("specified wall", "minimum wall", "measured wall", "maker's figure", "unrated")
 
 #: Connection kinds at the top of a joint.
 CONNECTION_KINDS = (
@@ -107,7 +112,21 @@ class JointArrays:
     collapse_method : tuple of str  how each collapse rating was obtained
     yield_strength : ndarray  minimum yield of each joint's material [Pa]
         (optional; used for collapse under axial load)
-    rating_wall : ndarray  the wall the ratings use [m] (minimum or measured)
+    rating_wall : ndarray  the wall the collapse rating uses [m] (specified,
+        minimum or measured, by the material's standard)
+    displaced_area : ndarray  cross-section of the joint's own material [m^2],
+        the area that displaces fluid: ``W / (rho g L)`` for an entered
+        weight (screen weight per length, coupled casing at its nominal
+        weight, a joint weight) with a known material density, else the
+        tube section ``pi/4 (D^2 - d^2)``.  None: the tube section.
+    collapse_basis, burst_basis, tension_basis : tuple of str  what each
+        joint's rating rests on, one of :data:`RATING_BASES`
+    derating : tuple of str  the temperature-derating table of each joint's
+        material (``""`` for none; see ``rigplan.engine.materials``)
+    rating_temperature : float  temperature the ratings are stated for [C]
+    findings : tuple of ``rigplan.engine.findings.Finding``  what the rating
+        found (a measured wall under the standard's minimum, an ellipticity
+        above the plan's assumption)
     modulus : ndarray  Young's modulus of each joint's material [Pa] (optional,
         nan: unknown; used for buckling below the neutral point)
     """
@@ -125,6 +144,13 @@ class JointArrays:
     collapse_method: tuple = ()
     yield_strength: np.ndarray | None = None   # minimum yield [Pa] (nan: unknown)
     rating_wall: np.ndarray | None = None      # wall the ratings use [m]
+    displaced_area: np.ndarray | None = None   # own material's section [m^2]
+    collapse_basis: tuple = ()
+    burst_basis: tuple = ()
+    tension_basis: tuple = ()
+    derating: tuple = ()
+    rating_temperature: float = 23.0
+    findings: tuple = ()
     modulus: np.ndarray | None = None          # Young's modulus [Pa] (nan: unknown)
 
     def __post_init__(self):
@@ -139,6 +165,22 @@ class JointArrays:
     def n(self) -> int:
         return len(self.length)
 
+    @property
+    def pressure_outside_area(self) -> np.ndarray:
+        """Outer area of each joint for the pressure-area faces [m^2].
+
+        ``A_e = pi/4 d^2 + A_s`` with ``A_s`` the :attr:`displaced_area`:
+        the section that holds the joint's own material and the bore, so
+        that a joint in one fluid is buoyed by exactly the fluid its
+        material displaces (Archimedes): open-ended in one fluid the true
+        force at the top is ``sum W_i (1 - rho_f / rho_i)``.  Without
+        ``displaced_area`` it is the area of the outside diameter.
+        """
+        bore = 0.25 * np.pi * np.asarray(self.bore, dtype=float) ** 2
+        if self.displaced_area is None:
+            return 0.25 * np.pi * np.asarray(self.od, dtype=float) ** 2
+        return bore + np.asarray(self.displaced_area, dtype=float)
+
     def subset(self, start: int, stop: int) -> "JointArrays":
         """Joints ``start..stop-1`` (0-based, running order) as a new string."""
         sl = slice(start, stop)
@@ -151,6 +193,15 @@ class JointArrays:
             collapse_method=tuple(self.collapse_method[sl]) if self.collapse_method else (),
             yield_strength=None if self.yield_strength is None else self.yield_strength[sl],
             rating_wall=None if self.rating_wall is None else self.rating_wall[sl],
+            displaced_area=None if self.displaced_area is None else self.displaced_area[sl],
+            collapse_basis=tuple(self.collapse_basis[sl]),
+            burst_basis=tuple(self.burst_basis[sl]),
+            tension_basis=tuple(self.tension_basis[sl]),
+            derating=tuple(self.derating[sl]),
+            rating_temperature=self.rating_temperature,
+            findings=tuple(f if f.joint is None else replace(f, joint=f.joint - start)
+                           for f in self.findings
+                           if f.joint is None or start < f.joint <= stop),
             modulus=None if self.modulus is None else self.modulus[sl],
         )
 
@@ -164,12 +215,16 @@ class Hole:
         (0 = full to the floor; deeper after lost returns)
     depth : drilled depth [m] (the string must fit: shoe depth <= depth)
     diameter : hole (bit) diameter [m], nan when not given
+    temperature : job temperature of the casing in the hole [C] (ground
+        and fluid), default 23 C (73 F), the temperature thermoplastic
+        ratings are stated at
     """
 
     fluid_density: float
     fluid_level: float = 0.0
     depth: float = float("nan")
     diameter: float = float("nan")
+    temperature: float = 23.0
 
 
 @dataclass(frozen=True)
@@ -216,6 +271,9 @@ class Settings:
     fill_density_alternatives : other fill fluids to compare [kg/m^3]
     float_collar_positions : joints to try for a float collar (besides a
         float shoe) when the planner compares float positions
+    screen_depth_tolerance : how far a screen interval may land from its
+        planned depth before the crew is warned [m]; default 2 ft (0.6096 m,
+        common practice, no source)
     """
 
     fill_density: float = 998.2
@@ -224,6 +282,7 @@ class Settings:
     design: DesignFactors = field(default_factory=DesignFactors)
     fill_density_alternatives: tuple = ()
     float_collar_positions: tuple = (1, 2, 3)
+    screen_depth_tolerance: float = 0.6096
 
 
 @dataclass(frozen=True)
@@ -234,12 +293,17 @@ class GroutSpec:
     height : grout column above the shoe [m] (the full planned column)
     inside_density : fluid inside the casing while grouting [kg/m^3]
     inside_level : depth to the inside fluid top [m] (0 = full)
+    temperature_rise : rise of the casing temperature over the job
+        temperature while the grout sets (heat of hydration) [K]; the
+        grouting collapse check derates thermoplastic casing at the job
+        temperature plus this rise
     """
 
     density: float
     height: float
     inside_density: float = 998.2
     inside_level: float = 0.0
+    temperature_rise: float = 0.0
 
 
 @dataclass(frozen=True)
@@ -263,6 +327,7 @@ class StringPlan:
     site: str = ""
     notes: str = ""
     source: str = ""
+    report: tuple = ()       # (key, text) pairs of the file's [report] table (packet facts)
 
     def running_joints(self) -> tuple:
         """The joints that go in the hole, in running order."""

@@ -19,7 +19,7 @@ from rigplan.engine.stringmodel import JointSpec, StringPlan
 #: Where the bundled demo lives: the repository's ``rigs/`` and ``strings/``
 #: (an editable install from the checkout), else those of the current folder.
 _PACKAGE = Path(__file__).resolve().parent
-_REPO = _PACKAGE.parent
+_REPO = _PACKAGE.parent.parent
 
 
 def demo_dir(kind: str) -> Path:
@@ -43,6 +43,7 @@ DEMO_JOBS = (
     ("cv9-14in-staged.toml", "mw80.toml", Verdict.LANDS_STAGED),
     ("cv12-pvc-floated.toml", "th30.toml", Verdict.LANDS_FLOATED),
     ("cv5-18in-thinwall.toml", "th30.toml", Verdict.CANNOT_LAND),
+    ("cv2-liner.toml", "th30.toml", Verdict.LANDS_OPEN),
 )
 
 
@@ -248,7 +249,7 @@ def rated_joints(plan: StringPlan):
     if not specs:
         raise InputError(plan.source or plan.name, "the string has no joints to run")
     try:
-        return rate_joints(specs)
+        return rate_joints(specs, temperature=plan.hole.temperature)
     except InputError:
         raise
     except (ValueError, KeyError) as err:

@@ -75,6 +75,9 @@ def plan_dict(landing, plan=None, warnings=(), rig_name: str = "") -> dict:
     unrated, unrated_codes = _texts_and_codes(landing.unrated)
     tcap = np.where(np.isnan(j.connection_rating) | np.isnan(j.body_rating), np.nan,
                     np.fmin(j.connection_rating, j.body_rating))
+    flags = {}
+    for f in j.findings:
+        flags.setdefault(f.joint, []).append(str(f.code))
     connections = _records(
         joint=number, label=j.label, depth=_col(top_depth),
         max_true_tension=_col(loads.envelope_max),
@@ -93,7 +96,9 @@ def plan_dict(landing, plan=None, warnings=(), rig_name: str = "") -> dict:
         max_collapse_load=_col(loads.collapse_max),
         collapse_utilization=_col(chk.collapse_utilization),
         burst_rating=_col(j.burst_rating), max_burst_load=_col(loads.burst_max),
-        burst_utilization=_col(chk.burst_utilization))
+        burst_utilization=_col(chk.burst_utilization),
+        rating_basis=[_rating_basis(j, i) for i in range(n)],
+        rating_flags=[flags.get(i + 1, []) for i in range(n)])
     gov = landing.governing
     out = {
         "verdict": str(landing.verdict),
@@ -108,7 +113,7 @@ def plan_dict(landing, plan=None, warnings=(), rig_name: str = "") -> dict:
             "hole_fluid_density": _f(plan.hole.fluid_density),
             "hole_fluid_level": _f(plan.hole.fluid_level), "hole_depth": _f(plan.hole.depth)},
         "rig": {"name": rig_name, **chain_dict(landing.path)},
-        "closure": closure_name(chk.closure),
+        "closure": closure_name(chk.closure, landing.joints.label),
         "switch_joint": landing.switch_joint,
         "next_action": W.next_action(landing, "si"),
         "steps": steps,
@@ -141,7 +146,7 @@ def plan_dict(landing, plan=None, warnings=(), rig_name: str = "") -> dict:
             feasible=np.asarray(w.feasible, dtype=bool).tolist())
         s = opt.schedule
         out["fill_schedule"] = {
-            "closure": closure_name(opt.closure), "valve_joint": opt.closure.valve_joint,
+            "closure": closure_name(opt.closure, landing.joints.label), "valve_joint": opt.closure.valve_joint,
             "fill_density": _f(opt.fill_density),
             "fill_to_top_through": s.fill_to_top_through,
             "top_ups": [{"joint": t.joint, "before_joint": t.before_joint or None,
@@ -158,7 +163,7 @@ def plan_dict(landing, plan=None, warnings=(), rig_name: str = "") -> dict:
         }
     for o in landing.float_options:
         out["float_options"].append({
-            "closure": closure_name(o.closure), "valve_joint": o.closure.valve_joint,
+            "closure": closure_name(o.closure, landing.joints.label), "valve_joint": o.closure.valve_joint,
             "fill_density": _f(o.fill_density), "lands": o.lands,
             "top_ups": len(o.schedule.top_ups) if o.schedule else None,
             "fill_to_top_through": o.schedule.fill_to_top_through if o.schedule else None,
@@ -287,6 +292,41 @@ def grouting_dict(g) -> dict:
 # ---------------------------------------------------------------------------
 # text
 
+def _rating_basis(j, i) -> dict:
+    """What joint ``i``'s collapse, burst and tension ratings rest on."""
+    def pick(basis):
+        return basis[i] if basis else None
+    return {"collapse": pick(j.collapse_basis), "burst": pick(j.burst_basis),
+            "tension": pick(j.tension_basis)}
+
+
+#: Short labels of the rating bases for the per-joint table.
+_BASIS_LABEL = {"specified wall": "specified", "minimum wall": "minimum", "measured wall": "measured",
+                "maker's figure": "maker", "unrated": "-"}
+
+
+def _rating_flag_lines(joints, system) -> list:
+    """One line per rating finding (measured wall, ellipticity, temperature)."""
+    out = []
+    for f in joints.findings:
+        q = f.quantities
+        if "measured_wall" in q:
+            what = (f"measured wall {_q(f.value('measured_wall'), 'diameter', system, 3)} is under "
+                    f"the standard's minimum {_q(f.value('minimum_wall'), 'diameter', system, 3)}: "
+                    "rated on the measured wall")
+        elif "ellipticity" in q:
+            what = (f"measured ellipticity {100 * f.value('ellipticity'):.2f} % is above the "
+                    f"{100 * f.value('assumed_ellipticity'):.2f} % the plan assumed: rated at the "
+                    "measured one")
+        elif "temperature" in q:
+            what = (f"{f.value('temperature'):.0f} C is above its temperature-derating table: "
+                    "pressure and collapse unrated")
+        else:
+            what = str(f.code)
+        out.append(f"joint {f.joint} ({f.label}): {what}")
+    return out
+
+
 def _pct(x) -> str:
     return percent(x, "unrated")
 
@@ -378,7 +418,7 @@ def text_renderables(landing, plan=None, system: str = "us", warnings=(), rig_na
     if opt is not None and landing.verdict in (Verdict.LANDS_FLOATED, Verdict.LANDS_OPEN,
                                                Verdict.CANNOT_CONFIRM):
         s = opt.schedule
-        t = Table(title=f"Fill plan: {closure_name(opt.closure)}, fill fluid "
+        t = Table(title=f"Fill plan: {closure_name(opt.closure, landing.joints.label)}, fill fluid "
                         f"{_q(opt.fill_density, 'density', system, 2)}")
         t.add_column("action")
         t.add_column("joint", justify="right")
@@ -399,7 +439,7 @@ def text_renderables(landing, plan=None, system: str = "us", warnings=(), rig_na
             for c in ("equipment", "fill", "lands", "top-ups", "least margin", "why not"):
                 ft.add_column(c)
             for o in landing.float_options:
-                ft.add_row(closure_name(o.closure), _q(o.fill_density, "density", system, 2),
+                ft.add_row(closure_name(o.closure, landing.joints.label), _q(o.fill_density, "density", system, 2),
                            "yes" if o.lands else "no",
                            str(len(o.schedule.top_ups)) if o.schedule else "-",
                            _pct(o.schedule.least_margin) if o.schedule and o.schedule.feasible
@@ -421,7 +461,7 @@ def text_renderables(landing, plan=None, system: str = "us", warnings=(), rig_na
             t.add_row("why not", W.finding_text(st.reason, system))
         out.append(t)
 
-    st_t = Table(title=f"Running steps ({closure_name(chk.closure)})")
+    st_t = Table(title=f"Running steps ({closure_name(chk.closure, landing.joints.label)})")
     for c in ("joint", "shoe depth", "fill level", "hook load", "hook limit", "margin"):
         st_t.add_column(c, justify="right")
     actions = W.step_actions(landing, system)
@@ -447,11 +487,11 @@ def text_renderables(landing, plan=None, system: str = "us", warnings=(), rig_na
                         f"{loads.envelope_step[i]}, utilization {_pct(tu[i])} "
                         f"(design factor {landing.settings.design.tension})"))
     jt = Table(title="Per joint: tension, collapse and burst utilization (design factors applied)",
-               caption="Ratings are on the minimum wall (the specified wall less the standard's "
-                       "under-tolerance) unless a measured wall is given, so API-grade figures "
-                       "sit below the API tables, which use the specified wall.")
+               caption="Rated on: API grades on the specified wall (API TR 5C3); other steel "
+                       "and PVC on the minimum wall the standard allows; a measured wall or the "
+                       "maker's figure where given. PVC derated for the job temperature.")
     for c in ("joint", "kind", "max tension", "tension", "collapse load", "collapse rating",
-              "collapse", "burst"):
+              "rated on", "collapse", "burst"):
         jt.add_column(c, justify="right")
     worst = np.fmax(np.fmax(tu, chk.collapse_utilization), chk.burst_utilization)
     for i in _table_rows(n, all_steps, np.argsort(-np.nan_to_num(worst, nan=-np.inf),
@@ -463,10 +503,13 @@ def text_renderables(landing, plan=None, system: str = "us", warnings=(), rig_na
                    _q(loads.envelope_max[i], "force", system, 0), _pct(tu[i]),
                    _q(loads.collapse_max[i], "pressure", system, 0),
                    _q(j.collapse_rating[i], "pressure", system, 0),
+                   _BASIS_LABEL.get(j.collapse_basis[i], "") if j.collapse_basis else "",
                    _pct(chk.collapse_utilization[i]) if loads.collapse_max[i] > 0 or
                    np.isfinite(chk.collapse_utilization[i]) else "unrated",
                    _pct(chk.burst_utilization[i]))
     out.append(jt)
+    for line in _rating_flag_lines(j, system):
+        out.append(Text(f"Rack measurement: {line}", "yellow"))
     g = landing.grouting
     if g is not None:
         text = Text("Grouting: ")

@@ -151,27 +151,35 @@ def ratio(value) -> str:
 # ---------------------------------------------------------------------------
 # names
 
-def closure_name(closure) -> str:
-    """``open shoe``, ``float shoe`` or ``float collar on joint N`` (a
-    :class:`Closure` or its valve joint)."""
+def closure_name(closure, labels=None) -> str:
+    """``open shoe``, ``float shoe`` or ``float collar at the top of J5`` (a
+    :class:`Closure` or its valve joint).  The one name of each piece of
+    float equipment on every screen and in every report: the collar by the
+    label of the joint it sits on top of (``labels``: running-order labels;
+    without them, ``joint N`` in running order)."""
     m = closure.valve_joint if isinstance(closure, Closure) else closure
     if m is None:
         return "open shoe"
     if m == 0:
         return "float shoe"
-    return f"float collar on joint {m}"
+    return f"float collar at the top of {_joint(m, _label_at(labels, m))}"
+
+
+def _label_at(labels, step):
+    if labels is not None and 1 <= step <= len(labels):
+        return str(labels[step - 1])
+    return None
 
 
 def joint_name(lp, step: int) -> str:
-    """``joint 23 (J23)`` for a 1-based running step."""
-    labels = lp.joints.label
-    if 1 <= step <= len(labels):
-        return f"joint {step} ({labels[step - 1]})"
-    return f"joint {step}"
+    """A joint by its label (``J23``) for a 1-based running step: the same
+    name on every screen, whatever was set aside before it."""
+    return _joint(step, _label_at(lp.joints.label, step))
 
 
 def _joint(j, label) -> str:
-    return f"joint {j} ({label})" if label else f"joint {j}"
+    """A joint's one name: its label, ``joint N`` (running order) without one."""
+    return str(label) if label else f"joint {j}"
 
 
 def limit_place(limit: Limit) -> str:
@@ -443,13 +451,14 @@ def float_text(lp, system: str) -> str:
                     "(see the reasons below)")
         if lp.chosen.closure.is_open:
             return "Float equipment: none needed (open shoe)"
-        return f"Float equipment: {closure_name(lp.chosen.closure)}, no fill plan that lands"
+        return (f"Float equipment: {closure_name(lp.chosen.closure, lp.joints.label)}, "
+                "no fill plan that lands")
     chosen = fmt(bf.fill_density, Kind.DENSITY, system)
     extra = ""
     if abs(bf.fill_density - lp.settings.fill_density) > 1e-9:
         extra = (f" (the best of the fill fluids offered; the job's own fill fluid, "
                  f"{fmt(lp.settings.fill_density, Kind.DENSITY, system)}, gives a poorer plan)")
-    return f"Float equipment: {closure_name(bf.closure)}; fill with {chosen}{extra}"
+    return f"Float equipment: {closure_name(bf.closure, lp.joints.label)}; fill with {chosen}{extra}"
 
 
 def fill_parts(lp, system: str) -> list[str]:
@@ -498,7 +507,7 @@ def next_action(lp, system: str = "si") -> str:
     opt = lp.best_float
     if opt is None:
         return "no plan lands this string: see the reasons"
-    return f"{closure_name(opt.closure)}: " + "; ".join(fill_parts(lp, system))
+    return f"{closure_name(opt.closure, lp.joints.label)}: " + "; ".join(fill_parts(lp, system))
 
 
 def step_actions(lp, system: str = "si") -> list:
@@ -524,7 +533,7 @@ def step_actions(lp, system: str = "si") -> list:
         elif k == sch.fill_to_top_through:
             acts[k] = "stop filling"
     if m == 0 or m < n:
-        acts[m] = ("float collar on this joint's bottom; " if m else "") + acts[m]
+        acts[m] = (f"first above the {closure_name(m, lp.joints.label)}; " if m else "") + acts[m]
     for t in sch.top_ups:
         acts[t.joint - 1] = f"top up {fmt(t.volume, Kind.VOLUME, system, 0)}"
     return acts
@@ -551,10 +560,11 @@ def fill_instruction(lp, step: int, system: str) -> str:
     if bf is None:
         if lp.chosen.closure.is_open:
             return f"Run {here}: open shoe, it fills from the hole; no filling"
-        return f"Run {here}: no fill schedule for {closure_name(lp.chosen.closure)}"
+        return f"Run {here}: no fill schedule for {closure_name(lp.chosen.closure, lp.joints.label)}"
     m = bf.closure.valve_joint or 0
     if s <= m:
-        return f"Run {here}: below the {closure_name(bf.closure)}, it fills from the hole"
+        return (f"Run {here}: below the {closure_name(bf.closure, lp.joints.label)}, it fills "
+                "from the hole")
     sch = bf.schedule
     t_top = sch.fill_to_top_through
     if s <= t_top:
@@ -810,3 +820,52 @@ def rig_chains(session) -> list:
     lp = session.landing
     in_use = lp.path.path if lp is not None else session.path_name
     return [(cap, cap.path == in_use) for cap in rig_capacity(session.rig)]
+
+
+# ---------------------------------------------------------------------------
+# where it lands
+
+_LANDING_ITEM = {"shoe": "Shoe", "float collar": "Float collar", "screen": "Screen"}
+
+
+def _span(labels) -> str:
+    return labels[0] if len(labels) == 1 else f"{labels[0]}-{labels[-1]}"
+
+
+def _signed(value, system: str) -> str:
+    if value != value:
+        return "n/a"
+    text = fmt(abs(value), Kind.DEPTH, system, 2)
+    return ("+" if value > 0 else "-" if value < 0 else "") + text
+
+
+def landing_lines(picture, system: str) -> list:
+    """The landing picture in words, one line per item: as-run depth, the
+    planned one and the shift; the shoe against TD; a WARNING line for each
+    screen interval that moved more than the plan's tolerance."""
+    td = picture.hole_depth
+    lines = [f"Where it lands (as run; TD {fmt(td, Kind.DEPTH, system, 2)}):"]
+    for r in picture.rows:
+        if r.item == "screen":
+            name = f"Screen {_span(r.labels)}"
+            here = (f"{fmt(r.top, Kind.DEPTH, system, 2)} to {fmt(r.bottom, Kind.DEPTH, system, 2)}"
+                    if r.bottom == r.bottom else "set aside")
+            plan = (f"{fmt(r.planned_top, Kind.DEPTH, system, 2)} to "
+                    f"{fmt(r.planned_bottom, Kind.DEPTH, system, 2)}")
+        else:
+            name = ("Shoe" if r.item == "shoe"
+                    else f"Float collar (top of {r.labels[0]})")
+            here = fmt(r.bottom, Kind.DEPTH, system, 2)
+            plan = fmt(r.planned_bottom, Kind.DEPTH, system, 2)
+        line = f"  {name}: {here}; planned {plan}; shift {_signed(r.shift, system)}"
+        if r.item == "shoe" and picture.shoe_off_bottom == picture.shoe_off_bottom:
+            off = picture.shoe_off_bottom
+            line += (f"; {fmt(off, Kind.DEPTH, system, 2)} off bottom" if off >= 0 else
+                     f"; {fmt(-off, Kind.DEPTH, system, 2)} LONGER THAN THE HOLE")
+        lines.append(line)
+    for r in picture.moved:
+        lines.append(f"WARNING: screen {_span(r.labels)} lands "
+                     f"{_signed(r.shift, system)} from its planned depth, more than the "
+                     f"{fmt(picture.tolerance, Kind.DEPTH, system, 2)} the plan allows: "
+                     "check the tally and the screen placement before going on")
+    return lines

@@ -28,6 +28,7 @@ class OverviewPane(VerticalScroll):
         yield Static("", id="switch-line", classes="line", markup=False)
         yield Static("", id="set-down-line", classes="line", markup=False)
         yield Static("", id="progress", classes="line", markup=False)
+        yield Static("", id="landing", classes="line", markup=False)
         yield Static("", id="reasons", classes="line dim", markup=False)
         yield Static("", id="warnings", classes="line dim", markup=False)
 
@@ -69,6 +70,14 @@ class OverviewPane(VerticalScroll):
                                              if w not in session.warnings]
         lines = [text for _, text in P.finding_lines(warnings, sys_)]
         self.query_one("#warnings", Static).update(Text("\n".join(lines)) if lines else "")
+        show_landing(self.query_one("#landing", Static), session)
+
+
+def show_landing(box: Static, session) -> None:
+    """The landing picture (engine depths, present words) into ``box``."""
+    picture = session.landing_picture()
+    box.set_class(bool(picture.moved), "warning")
+    box.update(Text("\n".join(P.landing_lines(picture, session.units))))
 
 
 class _Grid(DataTable):
@@ -173,6 +182,7 @@ class RunningPane(Horizontal):
         with VerticalScroll(id="run-side"):
             yield Static("", id="run-summary", markup=False)
             yield Static("", id="weight-check", markup=False)
+            yield Static("", id="run-landing", markup=False)
 
     @property
     def table(self) -> _Grid:
@@ -195,6 +205,7 @@ class RunningPane(Horizontal):
         box = self.query_one("#weight-check", Static)
         box.set_class(bool(session.last_check and session.last_check.outside), "warning")
         box.update("\n".join((head,) + causes) if head else "")
+        show_landing(self.query_one("#run-landing", Static), session)
 
     def cursor_label(self):
         t = self.table

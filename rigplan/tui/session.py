@@ -762,6 +762,19 @@ class JobSession:
 
     # -- lookups for the screens -----------------------------------------------
 
+    def landing_picture(self):
+        """Where the shoe, the float collar and each screen interval land as
+        run (measured lengths, joints set aside) against the plan as written
+        and TD (:func:`rigplan.engine.landing.landing_picture`)."""
+        from rigplan.engine.landing import landing_picture
+        planned = self.base_plan.running_joints()
+        run = self.plan.running_joints()
+        return landing_picture(
+            [j.label for j in planned], [j.length for j in planned],
+            [j.kind == "screen" for j in planned], self.base_plan.closure.valve_joint,
+            [j.label for j in run], [j.run_length for j in run], self.plan.closure.valve_joint,
+            self.base_plan.hole.depth, self.base_plan.settings.screen_depth_tolerance)
+
     def engine_index(self) -> dict:
         """label -> index into the landing plan's per-joint arrays (running joints)."""
         if self.landing is None:

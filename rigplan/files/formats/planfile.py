@@ -20,6 +20,10 @@ weight (w)::
     fluid_level = "0 ft"         # L, depth to the annulus fluid top, default 0
     depth = "1150 ft"            # L, drilled depth, optional
     diameter = "22 in"           # D, bit diameter, optional
+    temperature = "55 F"         # job temperature of the casing in the hole
+                                 # ("55 F", "13 C"; a bare number in the file's
+                                 # units: F for "us", C for "si"), default 73 F
+                                 # (23 C), -10 to 100 C; derates PVC ratings
 
     [[section]]                  # the string in sections, listed in running
     kind = "blank"               # order: the first goes in the hole first
@@ -59,6 +63,9 @@ weight (w)::
     min_running_weight = "..."   # F, default 0
     set_down_weight = "..."      # F, default 0
     collar_candidates = [1, 2, 3]  # float collar positions to compare
+    screen_depth_tolerance = "2 ft"  # L, how far a screen interval may land
+                                 # from its planned depth before a warning,
+                                 # 0 to 30 m (100 ft), default 2 ft
 
     [design_factors]             # optional, plain numbers
     tension = 1.6                # defaults from rigplan.engine.stringmodel.DesignFactors
@@ -70,9 +77,13 @@ weight (w)::
     height = "200 ft"            # L, column above the shoe, required
     inside_density = "8.34 ppg"  # rho, default 998.2 kg/m3
     inside_level = "0 ft"        # L, depth to the inside fluid top, default 0
+    temperature_rise = "30 F"    # rise of the casing temperature while the grout
+                                 # sets (heat of hydration), a difference ("30 F",
+                                 # "17 C", "17 K"), default 0, 0 to 60 K; the
+                                 # grouting check derates PVC at job + rise
 
 Joints are labelled J1..Jn in running order (J1 is the bottom joint, first in
-the hole).  A tally's measured lengths, rejections and measured walls are
+the hole).  A tally's measured lengths, rejections, measured walls and rack ODs are
 applied by label.  Warnings (not errors) are returned with the plan: grout
 lighter than the hole fluid, a string longer than the hole, an OD larger than
 the hole, a design factor below 1, float-equipment joints without a
@@ -82,6 +93,7 @@ the hole, a design factor below 1, float-equipment joints without a
 from __future__ import annotations
 
 import math
+import re
 from dataclasses import dataclass, fields
 from pathlib import Path
 
@@ -93,8 +105,8 @@ from rigplan.engine.stringmodel import (CONNECTION_KINDS, JOINT_KINDS, Closure, 
 
 TOP_KEYS = ("version", "units", "name", "well", "site", "notes", "tally", "hole", "section",
             "joint", "float_equipment", "running", "design_factors", "grout",
-            "existing_casing", "liner_fit")
-HOLE_KEYS = ("fluid_density", "fluid_level", "depth", "diameter")
+            "existing_casing", "liner_fit", "report")
+HOLE_KEYS = ("fluid_density", "fluid_level", "depth", "diameter", "temperature")
 COMMON_JOINT_KEYS = ("kind", "material", "od", "wall", "connection", "weld_efficiency",
                      "connection_rating", "tensile_rating", "collapse_rating", "burst_rating",
                      "joint_weight", "weight_per_length", "ellipticity", "measured_wall", "bore",
@@ -104,9 +116,12 @@ JOINT_KEYS = ("label",) + COMMON_JOINT_KEYS + ("length", "measured_length", "rej
 FLOAT_KEYS = ("type", "collar_joint", "valve_rating")
 FLOAT_TYPES = ("none", "float_shoe", "float_collar")
 RUNNING_KEYS = ("fill_density", "fill_alternatives", "min_running_weight", "set_down_weight",
+                "screen_depth_tolerance",
                 "collar_candidates")
 DESIGN_KEYS = ("tension", "collapse", "burst")
-GROUT_KEYS = ("density", "height", "inside_density", "inside_level")
+GROUT_KEYS = ("density", "height", "inside_density", "inside_level", "temperature_rise")
+#: The printed job packet's facts: text, kept as written (a TOML date is read as YYYY-MM-DD).
+REPORT_KEYS = ("revision", "date", "prepared_by", "reviewed_by")
 
 # file key -> (JointSpec field, quantity kind) for the optional quantities
 _OPTIONAL_QUANTITIES = (
@@ -122,9 +137,24 @@ _OPTIONAL_QUANTITIES = (
     ("dmin", "dmin", "diameter", False),
 )
 
+#: Screen depth tolerances accepted [m]: 0 to 30 m (about 100 ft, five
+#: joints); more is no longer a check on where a screen lands.
+SCREEN_TOLERANCE_RANGE = (0.0, 30.0)
+
 #: Densities accepted for a drilling fluid, fill fluid or grout [kg/m^3]
 #: (about 5 to 25 ppg): a value outside is almost surely a unit slip.
 FLUID_DENSITY_RANGE = (600.0, 3000.0)
+
+#: How far a tally's rack OD reading may lie from the joint's od [-]: further
+#: is a unit slip, not an oval joint.
+RACK_OD_SPREAD = 0.25
+
+#: Job temperatures a plan may state [C], and grout temperature rises [K].
+JOB_TEMPERATURE_RANGE = (-10.0, 100.0)
+TEMPERATURE_RISE_RANGE = (0.0, 60.0)
+
+_TEMPERATURE = re.compile(r"^\s*(?P<value>[-+]?(?:\d+\.?\d*|\.\d+))\s*"
+                          r"(?P<unit>(?:°|deg\s*)?[CFK]|deg[CF])?\s*$", re.IGNORECASE)
 
 _DEFAULT_SETTINGS = Settings()
 _DEFAULT_DESIGN = DesignFactors()
@@ -160,6 +190,42 @@ def parse_plan(text: str, source: str = "<plan>", base_dir=".") -> PlanRead:
 
 
 # ---------------------------------------------------------------------------
+# temperatures (offset scales: read here, not as a multiplicative unit)
+
+
+def _temperature(t: Table, key: str, default: float, difference: bool) -> float:
+    """A temperature [C], or with ``difference`` a temperature difference [K].
+
+    ``"55 F"``, ``"13 C"``, ``"13 degC"``; a difference may also be in ``K``.
+    A bare number takes the file's unit system (F for "us", C for "si").
+    """
+    if key not in t:
+        return default
+    raw = t.raw(key)
+    lo, hi = TEMPERATURE_RISE_RANGE if difference else JOB_TEMPERATURE_RANGE
+    what = (f"a temperature rise between {lo:g} and {hi:g} K ({lo * 1.8:g} to {hi * 1.8:g} F), "
+            "e.g. \"30 F\" or \"17 C\"" if difference else
+            f"a temperature between {lo:g} and {hi:g} C ({lo * 1.8 + 32:g} to {hi * 1.8 + 32:g} F), "
+            "e.g. \"55 F\" or \"13 C\"")
+    if isinstance(raw, bool) or not isinstance(raw, (int, float, str)):
+        raise InputError(t.where(key), f"expected {what}, got {raw!r}")
+    m = _TEMPERATURE.match(str(raw))
+    if not m:
+        raise InputError(t.where(key), f"expected {what}, got {raw!r}")
+    if not m.group("unit"):
+        what += " (a bare number is in " + ("F" if t.system == "us" else "C") + " in this file)"
+    value = float(m.group("value"))
+    unit = (m.group("unit") or ("F" if t.system == "us" else "C"))[-1].upper()
+    if unit == "K" and not difference:
+        value -= 273.15
+    elif unit == "F":
+        value = value / 1.8 if difference else (value - 32.0) / 1.8
+    if not (math.isfinite(value) and lo <= value <= hi):
+        raise InputError(t.where(key), f"expected {what}, got {raw!r}")
+    return value
+
+
+# ---------------------------------------------------------------------------
 # joints
 
 
@@ -176,6 +242,20 @@ def _fluid_density(t: Table, key: str, default=None, required: bool = False, ind
                                 f"{lo:.0f} and {hi:.0f} kg/m3 (about 5 to 25 ppg); check the unit "
                                 "(bare numbers are in the file's units)")
     return rho
+
+
+def _report_table(t) -> tuple:
+    """``(key, text)`` pairs of the ``[report]`` table, in REPORT_KEYS order."""
+    if t is None:
+        return ()
+    import datetime
+    out = []
+    for key in REPORT_KEYS:
+        if key in t.data and isinstance(t.data[key], (datetime.date, datetime.datetime)):
+            out.append((key, t.data[key].isoformat()))
+        elif key in t.data:
+            out.append((key, t.text(key)))
+    return tuple(out)
 
 
 def _material_key(t: Table, key: str = "material") -> str:
@@ -268,7 +348,7 @@ def _joints_one_by_one(tables) -> list:
 
 
 def apply_tally(joints: list, rows, tally_source: str) -> list:
-    """Joints with the tally's measured lengths, walls and rejections (by label)."""
+    """Joints with the tally's measured lengths, walls, rack ODs and rejections (by label)."""
     index = {j.label: i for i, j in enumerate(joints)}
     out = list(joints)
     for row in rows:
@@ -291,6 +371,15 @@ def apply_tally(joints: list, rows, tally_source: str) -> list:
                 raise InputError(f"{where}, measured_wall",
                                  f"measured wall is not less than half the od of {j.label}")
             changes["measured_wall"] = row.measured_wall
+        if getattr(row, "od_max", None) is not None:
+            for name, value in (("od_max", row.od_max), ("od_min", row.od_min)):
+                if not (1 - RACK_OD_SPREAD) * j.od <= value <= (1 + RACK_OD_SPREAD) * j.od:
+                    raise InputError(f"{where}, {name}",
+                                     f"expected an outside diameter within "
+                                     f"{100 * RACK_OD_SPREAD:g} % of the od of {j.label} "
+                                     f"({j.od * 1000:.1f} mm, {j.od / 0.0254:.3f} in): check "
+                                     "the unit in the column header")
+            changes["dmax"], changes["dmin"] = row.od_max, row.od_min
         out[i] = _replace(j, **changes)
     return _reorder(out, rows, tally_source)
 
@@ -337,6 +426,18 @@ def _reorder(joints: list, rows, tally_source: str) -> list:
     return new
 
 
+def _has_derated_material(joints) -> bool:
+    from rigplan.engine import materials
+
+    return any(materials.get_material(j.material).temperature_derating for j in joints)
+
+
+def _temperature_text(value: float, system: str, difference: bool) -> str:
+    if system == "us":
+        return f"{value * 1.8 if difference else value * 1.8 + 32.0:.12g} F"
+    return f"{value:.12g} C"
+
+
 def _replace(spec, **changes):
     values = {f.name: getattr(spec, f.name) for f in fields(spec)}
     values.update(changes)
@@ -361,6 +462,8 @@ def plan_from_data(data: dict, source: str, base_dir=Path("."), default_name: st
     site = top.text("site")
     notes = top.text("notes")
 
+    report = _report_table(top.table("report", REPORT_KEYS))
+
     # hole
     ht = top.table("hole", HOLE_KEYS)
     if ht is None:
@@ -371,6 +474,7 @@ def plan_from_data(data: dict, source: str, base_dir=Path("."), default_name: st
         fluid_level=ht.quantity("fluid_level", "length", default=0.0, nonnegative=True),
         depth=ht.quantity("depth", "length", default=math.nan, positive=True),
         diameter=ht.quantity("diameter", "diameter", default=math.nan, positive=True),
+        temperature=_temperature(ht, "temperature", Hole.temperature, difference=False),
     )
     if not math.isnan(hole.depth) and hole.fluid_level > hole.depth:
         raise InputError(ht.where("fluid_level"), f"fluid level {ht.raw('fluid_level')!r} is below the "
@@ -468,6 +572,14 @@ def plan_from_data(data: dict, source: str, base_dir=Path("."), default_name: st
                                                         default=0.0, nonnegative=True)
         settings_kw["set_down_weight"] = rt.quantity("set_down_weight", "force", default=0.0,
                                                      nonnegative=True)
+        tol = rt.quantity("screen_depth_tolerance", "length",
+                          default=_DEFAULT_SETTINGS.screen_depth_tolerance)
+        lo, hi = SCREEN_TOLERANCE_RANGE
+        if not lo <= tol <= hi:
+            raise InputError(rt.where("screen_depth_tolerance"),
+                             f"expected a length from {lo:g} to {hi:g} m (0 to 100 ft), got "
+                             f"{rt.raw('screen_depth_tolerance')!r}")
+        settings_kw["screen_depth_tolerance"] = tol
         cands = rt.list_of("collar_candidates")
         if cands is not None:
             checked = []
@@ -508,6 +620,7 @@ def plan_from_data(data: dict, source: str, base_dir=Path("."), default_name: st
                 gt, "inside_density",
                 default=GroutSpec.__dataclass_fields__["inside_density"].default),
             inside_level=gt.quantity("inside_level", "length", default=0.0, nonnegative=True),
+            temperature_rise=_temperature(gt, "temperature_rise", 0.0, difference=True),
         )
         if grout.height > shoe_depth * (1 + 1e-12):
             raise InputError(gt.where("height"), f"grout column {gt.raw('height')!r} is taller than the "
@@ -516,6 +629,10 @@ def plan_from_data(data: dict, source: str, base_dir=Path("."), default_name: st
             raise InputError(gt.where("inside_level"), f"fill level outside the pipe: "
                                                        f"{gt.raw('inside_level')!r} is below the shoe "
                                                        f"({shoe_depth:.2f} m)")
+        if "temperature_rise" not in gt and _has_derated_material(running):
+            warnings.append(f"{gt.where('temperature_rise')}: not given: the grouting check rates "
+                            "the thermoplastic casing at the job temperature, without the heat "
+                            "of hydration of the grout (enter the expected rise, e.g. \"30 F\")")
         if grout.density < hole.fluid_density:
             warnings.append(f"{gt.where('density')}: grout is lighter than the hole fluid: it will "
                             "not displace it from the annulus")
@@ -532,7 +649,8 @@ def plan_from_data(data: dict, source: str, base_dir=Path("."), default_name: st
                             f"({hole.diameter * 1000:.1f} mm)")
 
     plan = StringPlan(name=name, well=well, hole=hole, joints=tuple(joints), closure=closure,
-                      settings=settings, grout=grout, site=site, notes=notes, source=source)
+                      settings=settings, grout=grout, site=site, notes=notes, source=source,
+                      report=report)
     return PlanRead(plan=plan, warnings=tuple(warnings), tally_path=tally_path, units=system)
 
 
@@ -594,6 +712,8 @@ def plan_text(plan: StringPlan, system: str = "si", header: str = "") -> str:
         hole["depth"] = quantity_text(h.depth, "length", system)
     if not math.isnan(h.diameter):
         hole["diameter"] = quantity_text(h.diameter, "diameter", system)
+    if h.temperature != Hole.temperature:
+        hole["temperature"] = _temperature_text(h.temperature, system, difference=False)
     doc["hole"] = hole
 
     joints = list(plan.joints)
@@ -637,6 +757,8 @@ def plan_text(plan: StringPlan, system: str = "si", header: str = "") -> str:
     run["min_running_weight"] = quantity_text(s.min_running_weight, "force", system)
     run["set_down_weight"] = quantity_text(s.set_down_weight, "force", system)
     run["collar_candidates"] = [int(v) for v in s.float_collar_positions]
+    if s.screen_depth_tolerance != _DEFAULT_SETTINGS.screen_depth_tolerance:
+        run["screen_depth_tolerance"] = quantity_text(s.screen_depth_tolerance, "length", system)
     doc["running"] = run
     doc["design_factors"] = {"tension": float(s.design.tension),
                              "collapse": float(s.design.collapse),
@@ -648,6 +770,11 @@ def plan_text(plan: StringPlan, system: str = "si", header: str = "") -> str:
                         "height": quantity_text(g.height, "length", system),
                         "inside_density": quantity_text(g.inside_density, "density", system),
                         "inside_level": quantity_text(g.inside_level, "length", system)}
+        if g.temperature_rise:
+            doc["grout"]["temperature_rise"] = _temperature_text(g.temperature_rise, system,
+                                                                 difference=True)
+    if plan.report:
+        doc["report"] = dict(plan.report)
     if not header:
         header = f"rigplan string plan: {plan.name}" + (f", well {plan.well}" if plan.well else "")
     return dump_toml(doc, header=header)

@@ -37,7 +37,7 @@ from rigplan.files.atomicio import atomic_write_text
 #: the value to write.
 _KIND_OF_KEY = {
     **dict.fromkeys(("joint_length", "length", "measured_length", "fluid_level", "depth",
-                     "height", "inside_level"), "length"),
+                     "height", "inside_level", "screen_depth_tolerance"), "length"),
     **dict.fromkeys(("od", "wall", "measured_wall", "bore", "dmax", "dmin", "diameter"),
                     "diameter"),
     **dict.fromkeys(("fluid_density", "fill_density", "density", "inside_density",

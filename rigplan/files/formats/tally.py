@@ -20,6 +20,14 @@ Columns (any order; only ``label`` is required, the others may be left out):
   ``not run`` (not in the hole yet);
 * ``note``: free text;
 * ``measured_wall [unit]``: measured minimum wall (a diameter kind), or empty;
+* ``od_max [unit]``, ``od_min [unit]``: the largest and smallest outside
+  diameter read on the joint (rack measurements, both or neither), giving
+  the joint's own ellipticity ``(od_max - od_min) / (od_max + od_min)``.
+
+A cell of ``measured_wall``, ``od_max`` or ``od_min`` may hold several
+readings separated by ``;`` (several stations along the joint,
+``0.365; 0.371; 0.359``): the smallest counts for ``measured_wall`` and
+``od_min``, the largest for ``od_max``.
 * ``seq``, ``planned_length [unit]``, ``length_source`` (``measured`` or
   ``planned``) and ``time``: written by the app's tally export for the
   record; read and checked, but the plan takes its planned lengths from the
@@ -44,13 +52,15 @@ from rigplan.errors import InputError
 from rigplan.engine.stringmodel import JOINT_KINDS
 
 COLUMNS = ("label", "measured_length", "kind", "status", "note", "measured_wall", "run_order",
-           "seq", "planned_length", "length_source", "time")
+           "seq", "planned_length", "length_source", "time", "od_max", "od_min")
 STATUSES = ("run", "rejected", "not run")
 LENGTH_SOURCES = ("measured", "planned")
 #: Largest running position a tally may give (the most joints in one string).
 MAX_RUN_ORDER = 100_000
 _QUANTITY_COLUMNS = {"measured_length": "length", "measured_wall": "diameter",
-                     "planned_length": "length"}
+                     "planned_length": "length", "od_max": "diameter", "od_min": "diameter"}
+#: Columns whose cell may hold several readings, and which one counts.
+_READINGS = {"measured_wall": min, "od_max": max, "od_min": min}
 _HEADER_CELL = re.compile(r"^\s*(?P<name>[A-Za-z_]+)\s*(?:\[(?P<unit>[^\]]*)\])?\s*$")
 
 
@@ -64,6 +74,8 @@ class TallyRow:
     status : "run", "rejected" or "not run"
     note : free text
     measured_wall : measured minimum wall [m] (None = not measured)
+    od_max, od_min : largest and smallest outside diameter read [m] (None =
+        not measured)
     run_order : running position, 1 = first in the hole (None = as planned);
         given for every joint or for none, it re-orders interchangeable joints
     row : line number in the file it came from (0 when made in code)
@@ -85,6 +97,8 @@ class TallyRow:
     length_source: str | None = None
     seq: int | None = None
     time: str = ""
+    od_max: float | None = None
+    od_min: float | None = None
 
 
 def _header(cells, source: str, line: int):
@@ -151,11 +165,25 @@ def parse_tally(text: str, source: str = "<tally>") -> list:
             if not text_value:
                 q[name] = None
                 continue
-            v = units.parse(text_value, kind, unit_of.get(name), f"{where}, {name}")
-            if not v > 0.0:
-                raise InputError(f"{where}, {name}", f"expected {units.describe(kind)} greater than "
-                                                     f"zero, got {text_value!r}")
-            q[name] = v
+            readings = text_value.split(";") if name in _READINGS else [text_value]
+            got = []
+            for reading in readings:
+                if not reading.strip():
+                    raise InputError(f"{where}, {name}", f"expected readings separated by ';' "
+                                                         f"(e.g. 0.365; 0.371), got {text_value!r}")
+                v = units.parse(reading.strip(), kind, unit_of.get(name), f"{where}, {name}")
+                if not v > 0.0:
+                    raise InputError(f"{where}, {name}", f"expected {units.describe(kind)} greater "
+                                                         f"than zero, got {reading.strip()!r}")
+                got.append(v)
+            q[name] = _READINGS[name](got) if name in _READINGS else got[0]
+        if (q["od_max"] is None) != (q["od_min"] is None):
+            missing = "od_min" if q["od_min"] is None else "od_max"
+            raise InputError(f"{where}, {missing}", "give both od_max and od_min (the largest and "
+                                                    "smallest outside diameter read), or neither")
+        if q["od_max"] is not None and q["od_min"] > q["od_max"]:
+            raise InputError(f"{where}, od_min", "the smallest outside diameter read is larger than "
+                                                 "the largest: check the two columns")
         kind = values.get("kind", "") or None
         if kind is not None and kind not in JOINT_KINDS:
             raise InputError(f"{where}, kind", f"unknown kind {kind!r}; expected one of "
@@ -196,7 +224,8 @@ def parse_tally(text: str, source: str = "<tally>") -> list:
                              status=status, note=values.get("note", ""),
                              measured_wall=q["measured_wall"], run_order=run_order, row=line,
                              planned_length=q["planned_length"], length_source=basis,
-                             seq=seq, time=values.get("time", "")))
+                             seq=seq, time=values.get("time", ""),
+                             od_max=q["od_max"], od_min=q["od_min"]))
     if columns is None:
         raise InputError(source, "empty tally: expected a header line "
                                  f"({', '.join(COLUMNS)}) and one row per joint")
@@ -221,7 +250,11 @@ def _number(value: float, kind: str, system: str) -> str:
 
 
 def tally_text(rows, system: str = "us", comment: str = "") -> str:
-    """CSV text of tally rows, lengths in ``system``'s display unit."""
+    """CSV text of tally rows, lengths in ``system``'s display unit.
+
+    Rack readings are written as the one that counts (the smallest wall, the
+    largest and smallest OD), not every reading of the original sheet.
+    """
     if system not in units.SYSTEMS:
         raise ValueError(f"unknown unit system {system!r}; known: si, us")
     buf = io.StringIO(newline="")
@@ -229,9 +262,12 @@ def tally_text(rows, system: str = "us", comment: str = "") -> str:
         buf.write(f"# {line}".rstrip() + "\n")
     w = csv.writer(buf, lineterminator="\n")
     ordered = any(r.run_order is not None for r in rows)
+    gauged = any(r.od_max is not None for r in rows)
+    d_unit = units.unit_label('diameter', system)
     w.writerow(["label", f"measured_length [{units.unit_label('length', system)}]", "kind",
-                "status", "note", f"measured_wall [{units.unit_label('diameter', system)}]"]
-               + (["run_order"] if ordered else []))
+                "status", "note", f"measured_wall [{d_unit}]"]
+               + (["run_order"] if ordered else [])
+               + ([f"od_max [{d_unit}]", f"od_min [{d_unit}]"] if gauged else []))
     for r in rows:
         w.writerow([
             r.label,
@@ -240,7 +276,9 @@ def tally_text(rows, system: str = "us", comment: str = "") -> str:
             r.status,
             r.note,
             "" if r.measured_wall is None else _number(r.measured_wall, "diameter", system),
-        ] + (["" if r.run_order is None else str(r.run_order)] if ordered else []))
+        ] + (["" if r.run_order is None else str(r.run_order)] if ordered else [])
+          + ([("" if v is None else _number(v, "diameter", system)) for v in (r.od_max, r.od_min)]
+             if gauged else []))
     return buf.getvalue()
 
 
@@ -289,5 +327,6 @@ def run_tally_text(entries, system: str = "us", comment: str = "") -> str:
 def tally_from_plan(plan) -> list:
     """A tally sheet for a plan: one row per joint with what the plan knows."""
     return [TallyRow(label=j.label, measured_length=j.measured_length, kind=j.kind,
-                     status="rejected" if j.rejected else "run", measured_wall=j.measured_wall)
+                     status="rejected" if j.rejected else "run", measured_wall=j.measured_wall,
+                     od_max=j.dmax, od_min=j.dmin)
             for j in plan.joints]
