@@ -83,6 +83,8 @@ def _parser() -> argparse.ArgumentParser:
     sub.add_parser("rigs", help="list the bundled rig profiles and their hoisting paths")
     from rigplan.cli_rack import add_commands
     add_commands(sub, job_args)
+    from rigplan.cli_risk import add_commands as add_risk
+    add_risk(sub, job_args)
     return p
 
 
@@ -367,6 +369,9 @@ def main(argv=None) -> int:
         if args.command in ("place", "liner"):
             from rigplan import cli_rack
             return getattr(cli_rack, f"cmd_{args.command}")(args, _load)
+        if args.command == "risk":
+            from rigplan.cli_risk import cmd_risk
+            return cmd_risk(args, _load)
         return {"check": cmd_check, "open": cmd_open, "report": cmd_report,
                 "demo": cmd_demo, "rigs": cmd_rigs}[args.command](args)
     except InputError as err:

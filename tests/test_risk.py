@@ -162,3 +162,24 @@ def test_same_seed_same_result_and_progress_reported(floated_plan):
         assert 0.0 <= lim.probability <= 1.0
     with pytest.raises(ValueError):
         exceedance(plan, specs, samples=0)
+
+
+def test_cli_risk_json_and_bad_input(capsys):
+    # common practice, no source: the JSON lists every limit with its
+    # probability; a bad sample count is one line and exit status 2.
+    from rigplan.cli import main
+    from rigplan.files.job import demo_dir
+    plan = str(demo_dir("strings") / "cv7-16in-floated.toml")
+    assert main(["risk", plan, "--rig", "mw80", "--samples", "3000", "--seed", "2",
+                 "--format", "json"]) == 0
+    import json
+    doc = json.loads(capsys.readouterr().out)
+    names = [lim["name"] for lim in doc["limits"]]
+    assert names[0] == "hoisting capacity" and "collapse" in names
+    assert all(0.0 <= lim["probability"] <= 1.0 for lim in doc["limits"])
+    assert doc["samples"] == 3000 and doc["cautions"]
+    assert main(["risk", plan, "--rig", "mw80", "--samples", "0"]) == 2
+    err = capsys.readouterr().err.strip().splitlines()
+    assert len(err) == 1 and "--samples" in err[0]
+    assert main(["risk", plan, "--rig", "mw80", "--samples", "500"]) == 0
+    assert "Probability of exceeding each limit" in capsys.readouterr().out
