@@ -72,13 +72,21 @@ def floated_plan():
     return plan, specs
 
 
-@pytest.mark.parametrize("wall", ["uniform", "normal"])
-def test_each_sample_equals_the_engine_on_its_inputs(floated_plan, wall):
+def pvc_demo_plan():
+    """The bundled PVC demo job (thermoplastic ratings, float shoe)."""
+    from rigplan.files.job import demo_dir, load_job, plan_job
+    job = load_job(demo_dir("strings") / "cv12-pvc-floated.toml", "th30")
+    return plan_job(job.plan, job.rig), job.plan.running_joints()
+
+
+@pytest.mark.parametrize("wall, case", [("uniform", "steel"), ("normal", "steel"),
+                                        ("normal", "pvc")])
+def test_each_sample_equals_the_engine_on_its_inputs(floated_plan, wall, case):
     # Identity of the method: a sample is a deterministic run with the
     # sample's walls (as measured), weights, densities and weld efficiencies;
     # its largest load over capacity per limit is what rigplan.engine.axial and
     # rigplan.engine.planner.check_run (design factors 1) give on those inputs.
-    plan, specs = floated_plan
+    plan, specs = floated_plan if case == "steel" else pvc_demo_plan()
     scatter = Scatter(wall=wall, hole_density_sd=0.03, fill_density_sd=0.03)
     rng = np.random.default_rng(11)
     fluids = draw_fluids(scatter, plan.hole.fluid_density, plan.best_float.fill_density, rng, 40)
@@ -89,8 +97,7 @@ def test_each_sample_equals_the_engine_on_its_inputs(floated_plan, wall):
     closure = plan.chosen.closure
     level = plan.chosen.loads.fill_level
     for i in range(40):
-        sample_specs, hole, fill, hook_limit = sample_inputs(model, d, i)
-        joints = rate_joints(sample_specs)
+        joints, hole, fill, hook_limit = sample_inputs(model, d, i)
         loads = running_loads(joints, hole, closure, fill, level)
         check = check_run(joints, loads, closure, hook_limit - plan.dead_load,
                           dataclasses.replace(plan.settings, design=DesignFactors(1.0, 1.0, 1.0)),

@@ -12,7 +12,9 @@ they do on a real job, sample by sample:
   specified wall, or normal with the tolerance band as +-2 standard
   deviations, or normal about a measured wall;
 * each joint's ellipticity: uniform from round to twice its figure;
-* each butt weld's efficiency, each joint's weight: normal about the figure;
+* each butt weld's efficiency, each joint's weight: normal about the figure
+  (the weight of couplings, beads and coatings: the section that displaces
+  fluid stays the joint's own);
 * the hole fluid's and the fill fluid's density: normal about the figure;
 * the weight indicator's error: normal, a fraction of the hook load.
 
@@ -59,11 +61,11 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from rigplan.engine.axial import string_geometry
-from rigplan.engine.burst import barlow
+from rigplan.engine.burst import barlow, thermoplastic_pressure_rating
 from rigplan.engine.collapse import api_5c3, api_5c3_under_axial_stress, thermoplastic_sdr, timoshenko
 from rigplan.engine.findings import LimitName
-from rigplan.engine.materials import LIBRARY, get_material
-from rigplan.engine.rating import PERFORATED_KINDS, joint_ellipticity, rating_wall
+from rigplan.engine.materials import LIBRARY, get_material, temperature_factor
+from rigplan.engine.rating import PERFORATED_KINDS, joint_ellipticity
 from rigplan.engine.stringmodel import G
 from rigplan.engine.tubulars import body_yield, sdr, steel_area
 
@@ -194,6 +196,12 @@ class RiskModel:
     efficiency: np.ndarray
     density_range: tuple          # (hole, fill) densities and the r range drawn
     planned: dict
+    api: np.ndarray = None        # bool: rated by the API convention (specified wall)
+    plastic: np.ndarray = None    # bool: thermoplastic (pressure rating by design stress)
+    wall_spec: np.ndarray = None  # specified wall [m]
+    wall_min: np.ndarray = None   # the standard's minimum wall [m]
+    design_stress: np.ndarray = None
+    temperature_factor: np.ndarray = None
 
 
 def _lines_envelope(intercept, slope, r_lo, r_hi):
@@ -333,8 +341,9 @@ def risk_model(plan, specs, scatter: Scatter = Scatter(), materials=None,
     # --- how each rating follows the wall ------------------------------------------
     mats = [get_material(s.material, table) for s in specs]
     t_nom = np.array([s.wall for s in specs], dtype=float)
-    t_min = np.array([rating_wall(s, m)[0] for s, m in zip(specs, mats)], dtype=float)
     measured = np.array([s.measured_wall is not None for s in specs], dtype=bool)
+    t_min = np.where(measured, [s.measured_wall or 0.0 for s in specs],
+                     t_nom * (1 - np.array([m.wall_under_tolerance for m in mats])))
     normal = measured | (sc.wall == "normal")
     wall_mean = np.where(measured, t_min, 0.5 * (t_nom + t_min))
     wall_sd = np.where(measured, sc.measured_wall_sd * t_min, (t_nom - t_min) / 4.0)
@@ -392,6 +401,13 @@ def risk_model(plan, specs, scatter: Scatter = Scatter(), materials=None,
         efficiency=efficiency,
         density_range=((rho_o, rho_f), (r_lo, r_hi), density_range),
         planned=planned,
+        api=np.array([m.collapse_method == "api_5c3" for m in mats], dtype=bool),
+        plastic=np.array([m.collapse_method == "thermoplastic" for m in mats], dtype=bool),
+        wall_spec=t_nom, wall_min=t_nom * (1 - np.array([m.wall_under_tolerance for m in mats])),
+        design_stress=np.array([m.design_stress for m in mats], dtype=float),
+        temperature_factor=np.array([temperature_factor(m.temperature_derating,
+                                                        plan.hole.temperature)
+                                     if m.temperature_derating else 1.0 for m in mats]),
     )
 
 
@@ -537,12 +553,23 @@ def evaluate(model: RiskModel, d: Draws) -> dict:
         counts = np.zeros(model.n)
         counts[model.weight_steps] = (w > 1).sum(axis=0)
         out[LimitName.RUNNING_WEIGHT] = (w[rows, at], steps, steps, counts)
-    t, od, sy = d.wall, model.od, model.yield_strength
+    t, od = d.wall, model.od
+    sy = np.where(np.isfinite(model.yield_strength), model.yield_strength, 1.0)  # nan: unrated
     t_lo, t_hi = t.min(axis=0), t.max(axis=0)
     w_lo, w_hi = cum_w.min(axis=0), cum_w.max(axis=0)
 
+    def rate_wall(wall, k):
+        """The wall each rating formula takes for a sampled wall (as
+        measured): API joints the specified wall, or the measured wall
+        under the minimum scaled up by the tolerance; others the wall."""
+        under = wall < model.wall_min[k]
+        return np.where(model.api[k], np.where(under, wall * (model.wall_spec[k]
+                                                               / model.wall_min[k]),
+                                               model.wall_spec[k]), wall)
+
     def body_of(wall, k):
-        return np.where(model.body_formula[k], body_yield(od[k], wall, sy[k]),
+        t_body = np.where(model.api[k] & (wall >= model.wall_min[k]), model.wall_spec[k], wall)
+        return np.where(model.body_formula[k], body_yield(od[k], t_body, sy[k]),
                         model.body_fixed[k])
 
     def capacity(body, eff, k):
@@ -571,6 +598,7 @@ def evaluate(model: RiskModel, d: Draws) -> dict:
 
     def rating(wall, ell, k, stress=None):
         out_r = np.broadcast_to(model.collapse_fixed[k], np.shape(wall)).astype(float)
+        wall = rate_wall(wall, k)
         for code in (1, 2, 3):
             c = m[k] == code
             if not np.any(c):
@@ -585,7 +613,8 @@ def evaluate(model: RiskModel, d: Draws) -> dict:
                     v = np.minimum(v, api_5c3_under_axial_stress(od[k][c], wc, sy[k][c],
                                                                  stress[..., c]))
             else:
-                v = thermoplastic_sdr(sdr(od[k][c], wc), model.modulus[k][c], model.poisson[k][c])
+                v = (thermoplastic_sdr(sdr(od[k][c], wc), model.modulus[k][c], model.poisson[k][c])
+                     * model.temperature_factor[k][c])
             out_r[..., c] = v
         return out_r
 
@@ -625,7 +654,15 @@ def evaluate(model: RiskModel, d: Draws) -> dict:
     hi, lo = _line_box(model.burst_lines, d)
 
     def burst_of(wall, k):
-        return np.where(model.burst_formula[k], barlow(od[k], wall, sy[k], wall_factor=1.0),
+        t_r = rate_wall(wall, k)
+        api, plastic = model.api[k], model.plastic[k]
+        with np.errstate(invalid="ignore", divide="ignore"):
+            v = np.where(api, barlow(od[k], t_r, sy[k], wall_factor=0.875),
+                         np.where(plastic, thermoplastic_pressure_rating(
+                             sdr(od[k], t_r), np.where(plastic & np.isfinite(model.design_stress[k]),
+                                                       model.design_stress[k], 1.0)),
+                             barlow(od[k], t_r, sy[k], wall_factor=1.0)))
+        return np.where(model.burst_formula[k], v * model.temperature_factor[k],
                         model.burst_fixed[k])
 
     u_hi = _ratio(np.maximum(hi, 0.0), burst_of(t_lo, allj))
@@ -749,9 +786,14 @@ def _model_and_fluids(plan, specs, scatter, materials, rng, samples):
 
 def sample_inputs(model: RiskModel, d: Draws, i: int):
     """Sample ``i`` of ``d`` as inputs to the deterministic engine:
-    ``(joint specs, hole, fill density, hook limit as the indicator shows it)``.
-    The walls are entered as measured, the weights as entered weights."""
+    ``(joints, hole, fill density, hook limit as the indicator shows it)``.
+
+    The joints are rated by :func:`rigplan.engine.rating.rate_joints` with the
+    sampled walls entered as measured and the sampled weights as entered
+    weights; the section that displaces fluid stays the plan's (a joint's
+    weight scatters with its couplings, beads and coatings, not its wall)."""
     import dataclasses
+    from rigplan.engine.rating import rate_joints
     from rigplan.engine.stringmodel import Hole
     specs = []
     for j, s in enumerate(model.specs):
@@ -761,6 +803,7 @@ def sample_inputs(model: RiskModel, d: Draws, i: int):
         if model.connection_kind[j] == 1:
             changes["weld_efficiency"] = float(d.efficiency[i, j])
         specs.append(dataclasses.replace(s, **changes))
-    hole = Hole(float(d.hole_density[i]), model.plan.hole.fluid_level, model.plan.hole.depth,
-                model.plan.hole.diameter)
-    return specs, hole, float(d.fill_density[i]), model.hook_limit / (1 + float(d.indicator[i]))
+    nominal = model.plan.joints
+    joints = dataclasses.replace(rate_joints(specs), displaced_area=nominal.displaced_area)
+    hole = dataclasses.replace(model.plan.hole, fluid_density=float(d.hole_density[i]))
+    return joints, hole, float(d.fill_density[i]), model.hook_limit / (1 + float(d.indicator[i]))
