@@ -86,7 +86,7 @@ for _p in (str(_HERE.parent), str(_HERE)):
 
 import numpy as np  # noqa: E402
 
-import reference  # noqa: E402  (benchmarks/reference.py)
+from benchmarks import reference  # noqa: E402
 from rigplan.engine.stringmodel import G, Closure, Hole, JointArrays  # noqa: E402
 
 FAMILIES = ("uniform", "tapered", "topups")

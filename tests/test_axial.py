@@ -17,11 +17,7 @@ from rigplan.engine.axial import (neutral_point_depth, running_loads, step_profi
 from rigplan.engine.hydrostatics import buoyancy_factor, hydrostatic_pressure
 from rigplan.engine.stringmodel import G, Closure, Hole, JointArrays
 
-INCH = 0.0254          # NIST SP 811, exact
-FT = 0.3048            # NIST SP 811, exact
-LBF = 4.4482216152605  # NIST SP 811
-PSI = 6894.757293168361
-PPG = 0.45359237 / 0.003785411784   # kg/m^3 per lb/US gal, exact
+from _units import ft as FT, inch as INCH, lbf as LBF, psi as PSI  # NIST SP 811
 STEEL = 7850.0
 
 

@@ -35,11 +35,7 @@ from rigplan.engine.buckling import (HELICAL, SINUSOIDAL, STRAIGHT, check_buckli
                                      second_moment_of_area, sinusoidal_critical_load)
 from rigplan.engine.stringmodel import G, Closure, Hole, JointArrays
 
-INCH = 0.0254                       # NIST SP 811, exact
-FT = 0.3048                         # NIST SP 811, exact
-LBF = 0.45359237 * 9.80665          # NIST SP 811
-PSI = LBF / INCH ** 2
-PPG = 0.45359237 / 0.003785411784   # kg/m3 per lb/US gal, exact
+from _units import ft as FT, inch as INCH, lbf as LBF, psi as PSI  # NIST SP 811
 E_STEEL_PSI = 30e6                  # Young's modulus of steel, 30 x 10^6 psi (handbook value)
 
 

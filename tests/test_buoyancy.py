@@ -15,7 +15,7 @@ from rigplan.engine.materials import get_material
 from rigplan.engine.rating import rate_joints
 from rigplan.engine.stringmodel import G, Closure, Hole, JointSpec
 
-PPG = 0.45359237 / (231.0 * inch ** 3)      # 1 lb/US gal [kg/m^3] (NIST SP 811)
+from _units import ppg as PPG                # 1 lb/US gal [kg/m^3] (NIST SP 811)
 
 
 def _buoyed_weights(specs, arrays):

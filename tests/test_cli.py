@@ -6,8 +6,6 @@ number from them.
 """
 
 import json
-import subprocess
-import sys
 from pathlib import Path
 
 import pytest
@@ -142,21 +140,6 @@ def test_report_html(tmp_path, capsys):
                  "-o", str(out)]) == 0
     text = out.read_text()
     assert "<html" in text.lower() and "caution" in text.lower()
-
-
-def test_engine_imports_without_textual_or_rich():
-    # Layering rule: the engine and file layers import no textual and no rich.
-    code = ("import sys, rigplan.engine.planner, rigplan.engine.axial, rigplan.engine.floatplan, rigplan.engine.staging, "
-            "rigplan.engine.grouting, rigplan.files.job, rigplan.files.formats.planfile, rigplan.files.formats.rigfile, "
-            "rigplan.files.runlog; "
-            "bad=[m for m in ('textual','rich') if m in sys.modules]; "
-            "engine=[m for m in ('pint',) if m in sys.modules]; print(bad)")
-    out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True)
-    assert out.stdout.strip() == "[]"
-    code2 = ("import sys, rigplan.engine.axial, rigplan.engine.floatplan, rigplan.engine.planner; "
-             "print([m for m in ('pint','textual','rich') if m in sys.modules])")
-    out2 = subprocess.run([sys.executable, "-c", code2], capture_output=True, text=True, check=True)
-    assert out2.stdout.strip() == "[]"
 
 
 def test_screen_above_a_float_shoe_cannot_float(tmp_path, capsys):

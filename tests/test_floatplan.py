@@ -17,8 +17,7 @@ from rigplan.engine.floatplan import (bore_volume_below, empty_run, fill_schedul
 from rigplan.engine.axial import string_geometry
 from rigplan.engine.stringmodel import G, Closure, Hole, JointArrays
 
-INCH = 0.0254
-PSI = 6894.757293168361
+from _units import ft as FT, inch as INCH, lbf as LBF, psi as PSI  # NIST SP 811
 STEEL = 7850.0
 RHO_MUD, RHO_W = 1200.0, 998.2
 
@@ -213,8 +212,6 @@ def test_fill_cannot_stand_above_its_balance_with_the_hole():
 # ---------------------------------------------------------------------------
 # Limits a crew can follow: a low hole-fluid level, and when top-ups go in.
 
-LBF = 4.4482216152605      # N per lbf (NIST SP 811)
-FT = 0.3048                # m per ft (NIST SP 811)
 
 
 def _carried_heights(schedule, shoe, valve_height):

@@ -32,10 +32,8 @@ RIGS = sorted((ROOT / "rigs").glob("*.toml"))
 PLANS = sorted((ROOT / "strings").glob("*.toml"))
 
 # NIST SP 811 (2008) B.8, exact
-INCH, FOOT, POUND, G_N = 0.0254, 0.3048, 0.45359237, 9.80665
-LBF = POUND * G_N
-PSI = LBF / INCH ** 2
-PPG = POUND / (231 * INCH ** 3)
+from _units import ft as FOOT, g_n as G_N, inch as INCH, lb as POUND, lbf as LBF  # noqa: F401
+from _units import ppg as PPG, psi as PSI  # NIST SP 811
 
 
 # ---------------------------------------------------------------------------
@@ -226,13 +224,20 @@ def test_grout_lighter_than_hole_fluid_is_a_warning():
 
 def test_other_warnings():
     r = parse_plan(MINIMAL.replace('depth = "500 ft"', 'depth = "150 ft"\ndiameter = "8 in"')
-                   .replace('kind = "blank"', 'kind = "float_shoe"')
-                   + "[design_factors]\ntension = 0.9\n", "t.toml")
+                   .replace('kind = "blank"', 'kind = "float_shoe"'), "t.toml")
     text = " | ".join(r.warnings)
     assert "longer than the hole" in text
     assert "not less than the hole diameter" in text
-    assert "below 1" in text
     assert "no [float_equipment]" in text
+
+
+def test_design_factor_below_1_refused_as_in_the_app():
+    # A design factor below 1 lets a load pass above the rating: refused in
+    # the file as in the app's prompt (common practice, no source).
+    with pytest.raises(InputError) as err:
+        parse_plan(MINIMAL + "[design_factors]\ntension = 0.9\n", "t.toml")
+    assert err.value.where.endswith("design_factors.tension")
+    assert "design factor >= 1" in str(err.value)
 
 
 # ---------------------------------------------------------------------------

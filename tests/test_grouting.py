@@ -41,8 +41,7 @@ from rigplan.engine.grouting import (
 from rigplan.engine.stringmodel import G, GroutSpec, Hole, JointArrays
 
 # Exact unit definitions (NIST SP 811, appendix B).
-INCH = 0.0254                                   # [m]
-PSI = 0.45359237 * G / INCH ** 2                # [Pa]
+from _units import inch as INCH, psi as PSI  # [m], [Pa] (NIST SP 811)
 
 WATER = 998.2      # fresh water at 20 C [kg/m^3] (from memory)
 MUD = 1100.0       # drilling mud [kg/m^3] (from memory, typical)

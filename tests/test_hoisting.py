@@ -38,7 +38,7 @@ from rigplan.engine.hoisting import (
 
 #: One pound-force in newtons: 0.45359237 kg x 9.80665 m/s^2 (international
 #: pound, 1959, and standard gravity; NIST SP 811, appendix B).
-LBF = 0.45359237 * 9.80665
+from _units import lbf as LBF  # NIST SP 811
 
 
 # ---------------------------------------------------------------------------

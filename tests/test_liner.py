@@ -23,7 +23,7 @@ from rigplan.files.formats.linerfile import read_caliper_las
 
 lasio = pytest.importorskip("lasio")
 ROOT = Path(__file__).resolve().parents[1]
-IN, FT, PSI = 0.0254, 0.3048, 6894.757293168361
+from _units import ft as FT, inch as IN, psi as PSI  # noqa: E402  (NIST SP 811)
 
 
 def _write_las(path, depth_ft, curves, depth_unit="FT"):

@@ -148,3 +148,18 @@ def test_nominal_key_ignores_what_is_measured_per_joint():
     b = dataclasses.replace(a, label="J9", measured_wall=0.0055, measured_length=6.1)
     c = dataclasses.replace(a, wall=0.007)
     assert pl.nominal_key(a) == pl.nominal_key(b) != pl.nominal_key(c)
+
+
+def test_demo_rack_tally_is_reproducible_and_placement_never_worse(tmp_path, capsys):
+    import importlib.util
+    spec = importlib.util.spec_from_file_location("make_cv7", ROOT / "strings" / "make_cv7_rack_tally.py")
+    mod = importlib.util.module_from_spec(spec)
+    spec.loader.exec_module(mod)
+    out = tmp_path / "rack.csv"
+    mod.write_demo(out)
+    committed = ROOT / "strings" / "cv7-16in-floated.rack.tally.csv"
+    assert out.read_text() == committed.read_text()
+    code = main(["place", str(ROOT / "strings" / "cv7-16in-floated.toml"), "--rig", "mw80",
+                 "--tally", str(committed), "--format", "json"])
+    doc = json.loads(capsys.readouterr().out)
+    assert code == 0 and doc["least_margin_proposed"] >= doc["least_margin_tallied"]

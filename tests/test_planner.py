@@ -11,8 +11,7 @@ from rigplan.engine.axial import running_loads
 from rigplan.engine.rating import rate_joints
 from rigplan.engine.stringmodel import Closure, Hole, JointSpec, Settings
 
-INCH = 0.0254
-PSI = 6894.757293168361
+from _units import inch as INCH  # NIST SP 811
 
 
 def j55_string(n=40):

@@ -73,8 +73,8 @@ def test_app_lines_keep_to_one_unit_system(plan, rig):
         assert not other.search(text), other.search(text)
 
 
-def test_both_units_only_when_asked(capsys, monkeypatch):
-    plan = ROOT / "strings" / "cv7-16in-floated.toml"
+def test_both_units_only_when_asked(capsys, monkeypatch, strings_dir):
+    plan = strings_dir / "cv7-16in-floated.toml"
     both = _check_text(capsys, monkeypatch, plan, "mw80", "si")
     assert not US_UNIT.search(both)
     monkeypatch.setenv("COLUMNS", "400")
@@ -126,8 +126,8 @@ def test_every_finding_code_is_worded(code):
     assert not SI_UNIT.search(text)
 
 
-def test_json_keeps_its_keys_and_adds_codes(capsys):
-    main(["check", str(ROOT / "strings" / "cv7-16in-floated.toml"), "--rig", "th30",
+def test_json_keeps_its_keys_and_adds_codes(capsys, strings_dir):
+    main(["check", str(strings_dir / "cv7-16in-floated.toml"), "--rig", "th30",
           "--format", "json"])
     doc = json.loads(capsys.readouterr().out)
     assert doc["verdict"] == Verdict.CANNOT_LAND
@@ -141,9 +141,9 @@ def test_json_keeps_its_keys_and_adds_codes(capsys):
     assert doc["governing"]["where"] and doc["governing"]["name"] == "hoisting capacity"
 
 
-def test_demo_table_is_the_readme_table():
+def test_demo_table_is_the_readme_table(repo_root):
     # The verdicts `rigplan demo` holds the demo jobs to are the README's.
-    readme = (ROOT / "README.md").read_text()
+    readme = (repo_root / "README.md").read_text()
     for plan, rig, verdict in DEMO_JOBS:
         row = next(line for line in readme.splitlines() if line.startswith(f"| `{plan}`"))
         cells = [c.strip() for c in row.strip("|").split("|")]

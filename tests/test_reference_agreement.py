@@ -4,10 +4,7 @@ engine (rigplan.engine.axial) against that reference."""
 
 from __future__ import annotations
 
-import importlib.util
 import math
-import sys
-from pathlib import Path
 
 import numpy as np
 import pytest
@@ -15,21 +12,10 @@ from numpy.testing import assert_allclose
 
 from rigplan.engine.stringmodel import G, Closure, Hole, JointArrays
 
-_REF_PATH = Path(__file__).resolve().parents[1] / "benchmarks" / "reference.py"
-_spec = importlib.util.spec_from_file_location("rigplan_bench_reference", _REF_PATH)
-ref = importlib.util.module_from_spec(_spec)
-sys.modules[_spec.name] = ref      # dataclasses look their module up
-_spec.loader.exec_module(ref)
+from benchmarks import reference as ref
 
-# Exact unit definitions (international yard and pound agreement, 1959;
-# US gallon = 231 in^3; NIST SP 811 appendix B).
-FT = 0.3048                      # [m]
-INCH = 0.0254                    # [m]
-LB = 0.45359237                  # [kg]
-LBF = LB * G                     # [N]
-GAL = 231.0 * INCH ** 3          # [m^3]
-PSI = LBF / INCH ** 2            # [Pa]
-PPG = LB / GAL                   # 1 lb/gal in [kg/m^3]
+# Exact unit definitions (NIST SP 811 appendix B).
+from _units import ft as FT, inch as INCH, lbf as LBF, ppg as PPG, psi as PSI  # noqa: F401
 
 
 def make_joints(length, od, bore, weight):

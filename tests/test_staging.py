@@ -7,7 +7,7 @@ from rigplan.engine.axial import running_loads
 from rigplan.engine.staging import StagingCode, landing_string_load, plan_two_stages
 from rigplan.engine.stringmodel import G, Closure, Hole, JointArrays
 
-INCH = 0.0254
+from _units import inch as INCH  # NIST SP 811
 STEEL = 7850.0
 
 

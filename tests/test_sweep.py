@@ -20,7 +20,7 @@ from rigplan.engine.stringmodel import G, Closure, Hole, JointArrays
 from rigplan.engine.sweep import UniformString, sweep_landing
 
 #: 1 lb/gal in kg/m^3 (US gallon 231 in^3, NIST SP 811 appendix B).
-PPG = 0.45359237 / (231.0 * inch ** 3)
+from _units import ppg as PPG  # NIST SP 811
 RHO_W = 998.2
 
 

@@ -22,12 +22,8 @@ from rigplan.files import units
 from rigplan.errors import InputError
 
 # NIST SP 811 (2008) Appendix B.8, exact definitions.
-INCH = 2.54e-2            # inch -> m, exact
-FOOT = 3.048e-1           # foot -> m, exact
-POUND = 0.45359237        # pound (avoirdupois) -> kg, exact
-G_N = 9.80665             # standard acceleration of gravity, m/s^2, exact
-US_GALLON = 3.785411784e-3  # gallon (U.S.) -> m^3, exact
-POUND_FORCE = POUND * G_N  # pound-force -> N (4.4482216152605), exact
+from _units import ft as FOOT, g_n as G_N, gal as US_GALLON, inch as INCH  # noqa: E402
+from _units import lb as POUND, lbf as POUND_FORCE  # noqa: E402
 KGF = 9.80665             # kilogram-force -> N, exact
 
 EXACT = 1e-15

@@ -9,10 +9,6 @@ import numpy as np
 
 from rigplan.engine.stringmodel import G
 
-#: Oilfield gradient per lb/gal [psi/ft per lb/gal]:
-#: 0.051948 = (1 lb/gal x g x 1 ft) / 1 psi (exact unit definitions, NIST SP 811).
-PSI_PER_FT_PER_PPG = 0.45359237 / 0.003785411784 * 9.80665 * 0.3048 / 6894.757293168361
-
 
 def hydrostatic_pressure(depth, density, level=0.0):
     """Gauge pressure of a static fluid column at a depth.

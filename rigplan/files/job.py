@@ -102,6 +102,7 @@ class Job:
     rig: object
     warnings: tuple[Finding, ...] = ()
     path_name: str | None = None
+    units: str = "si"          # the plan file's unit system for bare numbers
 
 
 def file_warning(message: str) -> Finding:
@@ -128,10 +129,12 @@ def load_job(plan_path, rig_path, path_name: str | None = None,
                          f"no hoisting path named {path_name!r}; the rig has: "
                          + ", ".join(p.name for p in rig.paths))
     return Job(plan_path=plan_path, rig_path=rig_path, plan=read.plan, rig=rig,
-               warnings=tuple(file_warning(w) for w in read.warnings), path_name=path_name)
+               warnings=tuple(file_warning(w) for w in read.warnings), path_name=path_name,
+               units=read.units)
 
 
-def _collar_label(plan: StringPlan):
+def collar_label(plan: StringPlan) -> str | None:
+    """Label of the joint carrying the float collar (None: no collar)."""
     m = plan.closure.valve_joint
     if not m:
         return None
@@ -159,7 +162,7 @@ def apply_tally_file(plan: StringPlan, path) -> StringPlan:
     rows = read_tally(path)
     joints = apply_tally(list(plan.joints), rows, str(path))
     return _keep_collar(plan, dataclasses.replace(plan, joints=tuple(joints)),
-                        _collar_label(plan))
+                        collar_label(plan))
 
 
 def read_run_state(plan_path):
@@ -181,7 +184,7 @@ def apply_run_state(plan: StringPlan, state) -> StringPlan:
     """
     if state is None:
         return plan
-    collar = _collar_label(plan)
+    collar = collar_label(plan)
     measured = {label: length for label, length in state.run}
     rejected = dict(state.rejected)
     joints = []

@@ -93,7 +93,6 @@ _V1_PLANNED_NOTE = "planned length accepted"
 TALLY_COLUMNS = ("seq", "label", "status", "measured_length [m]", "planned_length [m]",
                  "length_source", "note", "time")
 
-EVENT_KINDS = ("run", "reject", "undo", "observe")
 
 _SCHEMA = """
 CREATE TABLE meta (

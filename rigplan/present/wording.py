@@ -719,7 +719,7 @@ def run_cells(session) -> list:
         step = "" if k is None else str(k + 1)
         if lp is not None and k is not None:
             shoe = number(lp.chosen.loads.shoe_depth[k], "length", sys_)
-            hook = number(loads[k], "force", sys_) if loads is not None else "staged"
+            hook = number(loads[k], "force", sys_)
             fill = fill_marker(lp, k + 1)
         else:
             shoe = hook = fill = ""
@@ -779,17 +779,9 @@ def running_summary(session) -> list:
     shoe = float(lp.chosen.loads.shoe_depth[k - 1]) if k >= 1 else 0.0
     lines.append(f"Shoe depth: {fmt(shoe, 'length', sys_)}")
     loads = session.step_hook_loads()
-    if loads is None and lp.stages is not None:
-        st = lp.stages
-        lines.append("Hook load per joint: not given by the planner for a staged setting")
-        lines.append(f"Peak string load: stage 1 {fmt(st.stage1_peak, 'force', sys_)}, "
-                     f"stage 2 {fmt(st.stage2_peak, 'force', sys_)} (plus "
-                     f"{fmt(lp.dead_load, 'force', sys_)} of gear on the hook)")
-    else:
-        now = session.predicted_hook_load()
-        lines.append(f"Hook load now (planned): {fmt(now, 'force', sys_)}")
-        if k < n:
-            lines.append(f"After the next joint: {fmt(loads[k], 'force', sys_)}")
+    lines.append(f"Hook load now (planned): {fmt(session.predicted_hook_load(), 'force', sys_)}")
+    if k < n:
+        lines.append(f"After the next joint: {fmt(loads[k], 'force', sys_)}")
     lines.append(f"Hook limit ({lp.path.path}): {fmt(lp.path.hook_limit, 'force', sys_)}")
     if k >= 1:
         lines.append(f"Capacity margin now: {percent(lp.chosen.capacity_margin[k - 1])}")

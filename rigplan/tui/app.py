@@ -11,7 +11,6 @@ textual-plot is imported only when the Charts tab is first shown.
 
 from __future__ import annotations
 
-import gc
 
 from pathlib import Path
 
@@ -22,11 +21,13 @@ from textual.widgets import Footer, Header, Static, TabbedContent, TabPane
 
 from rigplan.files import units as U
 from rigplan.errors import InputError
+from rigplan.files.job import LENGTH_WARNING
 from rigplan.files.runlog import RunLogWriteError
 from rigplan.present import wording as P
 from rigplan.tui.commands import ACTIONS, GLOBAL, RUNNING, TALLY, RigplanCommands, bindings, help_sections
 from rigplan.tui.dialogs import ConfirmScreen, HelpScreen, PromptScreen, QuitScreen
-from rigplan.tui.panes import OverviewPane, RigPane, RunningPane, TallyPane
+from rigplan.tui.panes import RigPane, RunningPane, TallyPane
+from rigplan.tui.schematic import OverviewWithSchematic
 from rigplan.tui.session import EDITABLE_FIELDS, JobSession
 
 TABS = ("overview", "tally", "running", "charts", "rig")
@@ -83,7 +84,7 @@ class RigplanApp(App):
         yield Static("", id="read-only-banner", markup=False)
         with TabbedContent(initial="overview", id="tabs"):
             with TabPane("1 Overview", id="overview"):
-                yield OverviewPane(id="overview-pane")
+                yield OverviewWithSchematic(id="overview-pane")
             with TabPane("2 String & tally", id="tally"):
                 yield TallyPane(id="tally-pane")
             with TabPane("3 Running", id="running"):
@@ -102,14 +103,6 @@ class RigplanApp(App):
         self._banner = self.query_one("#read-only-banner", Static)
         self.refresh_views()
         self.set_interval(self.FOLLOW_INTERVAL, self.follow_log)
-        # The widgets and the plan built so far live for the whole session:
-        # move them out of the collector's sight so a full collection does not
-        # stall a keystroke on site.
-        gc.collect()
-        gc.freeze()
-        # Fewer, cheaper young collections while recording joints (each
-        # re-plan allocates many small arrays that die at once).
-        gc.set_threshold(50_000, 50, 1000)
 
     def on_unmount(self) -> None:
         self.session.close()
@@ -330,7 +323,7 @@ class RigplanApp(App):
                 if not v > 0:
                     raise InputError(f"{nxt.label} measured length",
                                      f"expected a length > 0, got {t!r}")
-                if not force and not LENGTH_CHECK[0] * nxt.length <= v <= LENGTH_CHECK[1] * nxt.length:
+                if not force and not LENGTH_WARNING[0] * nxt.length <= v <= LENGTH_WARNING[1] * nxt.length:
                     raise InputError(f"{nxt.label} measured length",
                                      f"{P.fmt(v, 'length', s.units, 2)} is far from the planned "
                                      f"{default}: check the tape (end the entry with ! to keep it)")
@@ -568,9 +561,6 @@ class RigplanApp(App):
                                                if kept else ""), timeout=6)
 
 
-#: A measured length outside this share of the planned one is asked again
-#: (a slip of the tape or of the keyboard, such as 2006 for 20.06).
-LENGTH_CHECK = (0.75, 1.25)
 
 
 def build_app(plan_path, rig_path, path_name: str | None = None, units: str = "us",

@@ -60,17 +60,13 @@ class ChartsView(Vertical):
         f_unit = P.unit("force", sys_)
         l_unit = P.unit("length", sys_)
         shoe = P.to_display(np.asarray(lp.chosen.loads.shoe_depth, dtype=float), "length", sys_)
-        loads = session.step_hook_loads()
-        staged = loads is None
-        load = P.to_display(np.asarray(lp.hook_load if staged else loads, dtype=float),
-                            "force", sys_)
+        load = P.to_display(np.asarray(session.step_hook_loads(), dtype=float), "force", sys_)
 
         hook.set_xlabel(escape(f"hook load [{f_unit}]"))
         hook.set_ylabel(escape(f"shoe depth [{l_unit}]"))
         hook.set_y_formatter(DepthFormatter())
-        hook.plot(load, -shoe, line_style="grey50" if staged else "bright_cyan",
-                  hires_mode=HiResMode.BRAILLE,
-                  label="one-piece run (not the staged plan)" if staged else "planned hook load")
+        hook.plot(load, -shoe, line_style="bright_cyan", hires_mode=HiResMode.BRAILLE,
+                  label="planned hook load")
         limit = float(P.to_display(lp.path.hook_limit, "force", sys_))
         if np.isfinite(limit):
             hook.add_v_line(limit, line_style="bright_red", label=f"hook limit ({lp.path.path})")
@@ -116,8 +112,6 @@ class ChartsView(Vertical):
         unrated_t = int(np.isnan(t_u).sum())
         unrated_c = int(np.isnan(c_u).sum())
         parts = [f"Verdict: {lp.verdict.value}"]
-        if staged:
-            parts.append("staged setting: the planner gives stage peaks, not a hook load per joint")
         if unrated_t or unrated_c:
             parts.append(f"unrated (not drawn): tension {unrated_t} joints, collapse {unrated_c} joints")
         parts.append("focus a chart (Tab) to zoom with + and -, pan with the arrows, r resets")

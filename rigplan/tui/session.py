@@ -25,7 +25,9 @@ from dataclasses import dataclass
 from pathlib import Path
 
 from rigplan.errors import InputError
-from rigplan.files.job import apply_run_state, length_warnings, load_job, plan_job, rated_joints
+from rigplan.files.formats.planfile import (DESIGN_FACTOR_MIN, FLUID_DENSITY_RANGE,
+                                            design_factor_expected)
+from rigplan.files.job import apply_run_state, collar_label, length_warnings, load_job, plan_job, rated_joints
 from rigplan.files.runlog import RunLog, RunLogLocked, log_path_for
 from rigplan.engine.stringmodel import CONNECTION_KINDS, JOINT_KINDS, StringPlan
 from rigplan.files import units as U
@@ -114,13 +116,6 @@ def compare_reading(observed: float, predicted: float, band_fraction: float,
                        causes=causes, step=int(step))
 
 
-def _file_units(plan_path: Path) -> str:
-    """Unit system of bare numbers in a plan file (its ``units`` key)."""
-    from rigplan.files.formats import read_toml
-    system = read_toml(plan_path).get("units", "si")
-    return system if system in U.SYSTEMS else "si"
-
-
 class JobSession:
     """A job open in the app: plan and rig files, the run log, the plan.
 
@@ -149,7 +144,7 @@ class JobSession:
         self.rig = self.job.rig
         self.warnings = tuple(self.job.warnings)
         self.base_plan: StringPlan = self.job.plan
-        self.file_units = _file_units(self.plan_path)
+        self.file_units = self.job.units
         self.units = units
         self.path_name = path_name
         self.band_fraction = float(band_fraction)
@@ -373,7 +368,7 @@ class JobSession:
         best = math.nan
         for cap in rig_capacity(self.rig):
             ratings = [rating for _name, _kind, rating, _allowed in cap.components
-                       if finite(rating)]
+                       if math.isfinite(rating)]
             if ratings and not (min(ratings) <= best):
                 best = min(ratings)
         return best
@@ -395,7 +390,7 @@ class JobSession:
         if value < 0:
             raise InputError(where, f"a hook load cannot be below zero, got {t!r}")
         top = self.hook_rating()
-        if finite(top) and value > top:
+        if math.isfinite(top) and value > top:
             raise InputError(where, f"{P.fmt(value, 'force', self.units)} is above the rig's "
                                     f"hook rating ({P.fmt(top, 'force', self.units)}): "
                                     "check the indicator and the units")
@@ -455,13 +450,6 @@ class JobSession:
             if j.label == label:
                 return i
         raise InputError("joint", f"no joint {label!r} in the plan")
-
-    def _collar_label(self, plan: StringPlan):
-        m = plan.closure.valve_joint
-        if m is None or m == 0:
-            return None
-        running = plan.running_joints()
-        return running[m - 1].label if 1 <= m <= len(running) else None
 
     def _with_joints(self, joints: list, collar_label) -> StringPlan:
         plan = dataclasses.replace(self.base_plan, joints=tuple(joints))
@@ -529,7 +517,7 @@ class JobSession:
                                     f"({P.fmt(changed.od / 2, 'diameter', self.units)})")
         joints = list(self.base_plan.joints)
         joints[i] = changed
-        collar = self._collar_label(self.base_plan)
+        collar = collar_label(self.base_plan)
         if collar == spec.label:
             collar = changed.label
         return self._check_plan(self._with_joints(joints, collar))
@@ -608,15 +596,15 @@ class JobSession:
             return dataclasses.replace(p, closure=dataclasses.replace(p.closure, valve_rating=value))
         if key.endswith("_factor"):
             value = U.parse(t, "dimensionless", "", where)
-            if not value >= 1.0:
-                raise InputError(where, f"expected a design factor >= 1 [-], got {text!r}")
+            if not value >= DESIGN_FACTOR_MIN:
+                raise InputError(where, design_factor_expected(text))
             design = dataclasses.replace(p.settings.design, **{key[:-len("_factor")]: value})
             return dataclasses.replace(p, settings=dataclasses.replace(p.settings, design=design))
         value = U.parse(t, kind, U.unit_label(kind, self.units), where)
-        if kind == "density" and not _DENSITY_RANGE[0] <= value <= _DENSITY_RANGE[1]:
+        if kind == "density" and not FLUID_DENSITY_RANGE[0] <= value <= FLUID_DENSITY_RANGE[1]:
             raise InputError(where, f"expected a fluid density between "
-                                    f"{P.fmt(_DENSITY_RANGE[0], 'density', self.units)} and "
-                                    f"{P.fmt(_DENSITY_RANGE[1], 'density', self.units)}, "
+                                    f"{P.fmt(FLUID_DENSITY_RANGE[0], 'density', self.units)} and "
+                                    f"{P.fmt(FLUID_DENSITY_RANGE[1], 'density', self.units)}, "
                                     f"got {text!r}")
         if kind in ("length", "force") and value < 0:
             raise InputError(where, f"expected {U.describe(kind)} >= 0, got {text!r}")
@@ -658,21 +646,21 @@ class JobSession:
                                   measured_wall=None, rejected=False)
         joints = list(self.base_plan.joints)
         joints.insert(i + 1, new)
-        plan = self._check_plan(self._with_joints(joints, self._collar_label(self.base_plan)))
+        plan = self._check_plan(self._with_joints(joints, collar_label(self.base_plan)))
         self.apply_plan(plan)
         return new.label
 
     def delete(self, label: str) -> None:
         i = self._index(label)
         self._not_in_log(label, "it cannot be taken out of the plan")
-        if label == self._collar_label(self.base_plan):
+        if label == collar_label(self.base_plan):
             raise InputError(f"joint {label}", "the float collar sits on this joint: move the "
                                                "collar in the plan file first")
         joints = list(self.base_plan.joints)
         del joints[i]
         if not [j for j in joints if not j.rejected]:
             raise InputError(f"joint {label}", "the plan must keep at least one joint to run")
-        self.apply_plan(self._check_plan(self._with_joints(joints, self._collar_label(self.base_plan))))
+        self.apply_plan(self._check_plan(self._with_joints(joints, collar_label(self.base_plan))))
 
     def move(self, label: str, delta: int) -> int:
         """Move joint ``label`` ``delta`` places in the running order; return its new index."""
@@ -684,7 +672,7 @@ class JobSession:
         self._not_in_log(label, "its place in the running order is fixed")
         self._not_in_log(joints[k].label, f"{label} cannot swap with it")
         joints[i], joints[k] = joints[k], joints[i]
-        self.apply_plan(self._check_plan(self._with_joints(joints, self._collar_label(self.base_plan))))
+        self.apply_plan(self._check_plan(self._with_joints(joints, collar_label(self.base_plan))))
         return k
 
     def import_tally(self, path) -> int:
@@ -726,7 +714,7 @@ class JobSession:
                 continue
             fresh.append(row)
         joints = apply_tally(list(self.base_plan.joints), fresh, str(p))
-        plan = self._check_plan(self._with_joints(joints, self._collar_label(self.base_plan)))
+        plan = self._check_plan(self._with_joints(joints, collar_label(self.base_plan)))
         if plan != self.base_plan:
             self.apply_plan(plan)
         return len(fresh)
@@ -788,12 +776,6 @@ class JobSession:
         return None
 
 
-def finite(value) -> bool:
-    try:
-        return math.isfinite(float(value))
-    except (TypeError, ValueError):
-        return False
-
 
 # -- job settings ------------------------------------------------------------------
 
@@ -815,4 +797,3 @@ JOB_SETTINGS = {
 }
 
 #: Fluid densities accepted [kg/m^3] (as in the plan file reader).
-_DENSITY_RANGE = (600.0, 3000.0)

@@ -86,7 +86,7 @@ Joints are labelled J1..Jn in running order (J1 is the bottom joint, first in
 the hole).  A tally's measured lengths, rejections, measured walls and rack ODs are
 applied by label.  Warnings (not errors) are returned with the plan: grout
 lighter than the hole fluid, a string longer than the hole, an OD larger than
-the hole, a design factor below 1, float-equipment joints without a
+the hole, float-equipment joints without a
 ``[float_equipment]`` table.
 """
 
@@ -155,6 +155,15 @@ TEMPERATURE_RISE_RANGE = (0.0, 60.0)
 
 _TEMPERATURE = re.compile(r"^\s*(?P<value>[-+]?(?:\d+\.?\d*|\.\d+))\s*"
                           r"(?P<unit>(?:°|deg\s*)?[CFK]|deg[CF])?\s*$", re.IGNORECASE)
+
+#: Least design factor accepted, in files and in the app's prompts [-]: a
+#: factor below 1 would let a load pass above the maker's rating.
+DESIGN_FACTOR_MIN = 1.0
+
+
+def design_factor_expected(got) -> str:
+    """The one message for a design factor out of range."""
+    return f"expected a design factor >= {DESIGN_FACTOR_MIN:g} [-], got {got!r}"
 
 _DEFAULT_SETTINGS = Settings()
 _DEFAULT_DESIGN = DesignFactors()
@@ -599,12 +608,8 @@ def plan_from_data(data: dict, source: str, base_dir=Path("."), default_name: st
         df = {}
         for key in DESIGN_KEYS:
             v = dt.number(key, default=getattr(_DEFAULT_DESIGN, key))
-            if not v > 0.0:
-                raise InputError(dt.where(key), f"expected a design factor > 0 (usually >= 1), got "
-                                                f"{dt.raw(key)!r}")
-            if v < 1.0:
-                warnings.append(f"{dt.where(key)}: design factor {v:g} is below 1: the check allows "
-                                "loads above the rating")
+            if not v >= DESIGN_FACTOR_MIN:
+                raise InputError(dt.where(key), design_factor_expected(dt.raw(key)))
             df[key] = v
         settings_kw["design"] = DesignFactors(**df)
     settings = Settings(**settings_kw)

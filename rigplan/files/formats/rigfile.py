@@ -227,7 +227,3 @@ def rig_from_data(data: dict, source: str):
     except InputError as exc:
         raise _rewhere(exc, source) from None
 
-
-def rig_files(directory) -> list:
-    """The ``*.toml`` rig profiles in a folder, sorted by name."""
-    return sorted(Path(directory).glob("*.toml"))
