@@ -140,9 +140,10 @@ class LimitName(enum.StrEnum):
     HOLE_DEPTH = "hole depth"
     CHECK_VALVE = "check valve"
     VALVE_BALANCE = "valve balance"
-    STAGE1_HOISTING = "stage 1 hoisting"
-    LANDING_STRING = "landing string"
-    STAGE2_HOISTING = "stage 2 hoisting"
+    STAGE1_HOISTING = "stage 1 hoisting"          # stage 1 run from the floor
+    LOWERING_HOISTING = "lowering hoisting"        # stage 1 lowered on the landing string
+    LANDING_STRING = "landing string"              # the landing string's own tension
+    STAGE2_HOISTING = "stage 2 hoisting"           # stage 2 run from the floor
     SCREEN_BUCKLING = "screen buckling"     # set-down compression vs critical buckling load
     BUCKLING_STRESS = "buckling stress"     # axial + helical bending stress vs yield
 

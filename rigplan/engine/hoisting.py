@@ -796,6 +796,9 @@ class LandingString:
     tensile_rating : tension rating of body and connections [N] (nan = unrated)
     density : steel density for buoyancy [kg/m^3]
     od, bore : outside and inside diameters [m] (nan = not given)
+    joint_length : length of one landing-string joint or stand [m], the
+        step in which stage 1 is lowered; default 30 ft (9.144 m), the long
+        end of range 2 drill pipe (API Spec 5DP, 27-30 ft, from memory)
     """
 
     name: str
@@ -804,6 +807,7 @@ class LandingString:
     density: float = 7850.0
     od: float = _NAN
     bore: float = _NAN
+    joint_length: float = 9.144
 
     def __post_init__(self):
         where = f"landing string {self.name!r}"
@@ -823,6 +827,10 @@ class LandingString:
         if not math.isnan(self.od) and not math.isnan(self.bore) and self.bore >= self.od:
             raise InputError(f"{where}.bore",
                              f"expected a bore smaller than the od {self.od!r} m, got {self.bore!r}")
+        jl = self.joint_length
+        if not _is_real(jl) or not math.isfinite(jl) or not 0.5 <= jl <= 60.0:
+            raise InputError(f"{where}.joint_length",
+                             f"expected a joint length of 0.5 to 60 m, got {jl!r}")
 
 
 @dataclass(frozen=True)

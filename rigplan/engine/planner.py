@@ -97,6 +97,11 @@ class PlanCode(enum.StrEnum):
     #: neutral point: quantities ``set_down`` and ``max_set_down`` (the most
     #: that keeps both limits; nan: not known)
     SET_DOWN_TOO_HEAVY = "plan.set_down_too_heavy"
+    #: released, stage 1 stands on bottom and its own weight (with stage 2's
+    #: set-down) buckles a screen or overstresses a joint of it: joint = the
+    #: top joint of stage 1; quantity ``load`` (the compression at the
+    #: joint that fails) -- no set-down weight relieves it
+    STAGE1_BUCKLES_ON_BOTTOM = "plan.stage1_buckles_on_bottom"
 
 
 #: Limit margins below this count as over the limit [-].  A fill schedule
@@ -192,6 +197,8 @@ class LandingPlan:
     grouting: GroutPlan | None = None
     unrated: tuple[Finding, ...] = ()
     buckling: BucklingCheck | None = None
+    #: the run shown is the staged setting (its steps: ``stages.steps``)
+    staged: bool = False
     reasons: tuple[Finding, ...] = ()
     notes: tuple[Finding, ...] = ()
 
@@ -393,27 +400,33 @@ def over_limit(limit: Limit) -> Finding:
                    context={"limit": str(limit.name)})
 
 
-def float_notes(opt: FloatOption, n: int) -> list[Finding]:
+def float_notes(opt: FloatOption, n: int, labels=None) -> list[Finding]:
     """What the crew should know about running a closed string: left empty
-    it collapses or floats; or floating gains nothing."""
+    it collapses or floats; or floating gains nothing.  ``labels`` (running
+    order) name the joints and the collar's joint by label."""
     e = opt.empty
     if e is None:
         return []
-    about = {"context": {"valve_joint": opt.closure.valve_joint},
+
+    def label(k):
+        return str(labels[k - 1]) if labels is not None and k and 1 <= k <= len(labels) else None
+
+    m = opt.closure.valve_joint
+    about = {"context": {"valve_joint": m, "valve_label": label(m)},
              "quantities": {"fill_density": (opt.fill_density, Kind.DENSITY)}}
     notes = []
     if e.collapse_step:
         longest = e.longest_empty if np.isfinite(e.longest_empty) else float("nan")
         notes.append(Finding(PlanCode.EMPTY_COLLAPSES, Severity.WARNING, joint=e.collapse_step,
-                             context=about["context"],
+                             label=label(e.collapse_step), context=about["context"],
                              quantities={**about["quantities"],
                                          "longest_empty": (longest, Kind.LENGTH)}))
     if e.negative_step:
         notes.append(Finding(PlanCode.EMPTY_FLOATS, Severity.WARNING, joint=e.negative_step,
-                             **about))
+                             label=label(e.negative_step), **about))
     elif e.float_step:
         notes.append(Finding(PlanCode.EMPTY_TOO_LIGHT, Severity.WARNING, joint=e.float_step,
-                             **about))
+                             label=label(e.float_step), **about))
     if opt.schedule.feasible and opt.schedule.fill_to_top_through >= n:
         notes.append(Finding(PlanCode.FILL_ALL_THE_WAY, Severity.INFO, **about))
     return notes
@@ -469,6 +482,7 @@ class Trial:
     stages: StagedPlan | None = None
     reasons: tuple = ()
     governing: Limit | None = None
+    staged: bool = False            # the chosen run is the staged setting
 
     def add(self, *findings: Finding, **changes) -> Trial:
         return dataclasses.replace(self, reasons=self.reasons + findings, **changes)
@@ -585,16 +599,26 @@ def try_stages(inp: PlanInputs, trial: Trial) -> Trial:
         return trial.add(Finding(PlanCode.NO_LANDING_STRING, Severity.REASON))
     stages = plan_two_stages(inp.joints, inp.hole, inp.limit, ls.weight_per_length,
                              ls.tensile_rating, ls.density, inp.settings.design.tension,
-                             inp.open_loads)
+                             inp.open_loads, dead_load=inp.dead_load,
+                             joint_length=ls.joint_length,
+                             set_down_weight=inp.settings.set_down_weight)
     if not stages.feasible:
         return trial.add(Finding(PlanCode.STAGED_FAILS, Severity.REASON, cause=stages.reason),
                          stages=stages)
     chosen = check_run(inp.joints, _staged_loads(inp.open_loads, stages), Closure(), inp.limit,
                        inp.settings, dead_load=inp.dead_load)
-    governing = Limit(stages.governing, float("nan"), float("nan"), stages.least_margin,
-                      joint=stages.split)
+    # hoisting is checked by the stages, step by step (the lowering on the
+    # landing string included); the joints' own limits by the staged run
+    own = [lim for lim in chosen.limits if lim.name != LimitName.HOISTING]
+    over = [lim for lim in own if lim.margin < -MARGIN_TOLERANCE]
+    if over:
+        return trial.add(Finding(PlanCode.STAGED_FAILS, Severity.REASON,
+                                 cause=over_limit(over[0])), stages=stages)
+    c = stages.governing_check
+    staged = Limit(c.name, c.load, c.capacity, c.margin, c.kind, joint=stages.split)
+    governing = min([staged] + own, key=lambda lim: lim.margin)
     return dataclasses.replace(trial, verdict=LANDS_STAGED, chosen=chosen, stages=stages,
-                               governing=governing)
+                               governing=governing, staged=True)
 
 
 def cannot_land(trial: Trial) -> Trial:
@@ -639,12 +663,20 @@ def crew_notes(joints: JointArrays, trial: Trial) -> tuple[Finding, ...]:
              else [o for o in trial.options if o.empty is not None][:1])
     notes = []
     for o in shown:
-        notes += [f for f in float_notes(o, joints.n) if f not in notes]
+        notes += [f for f in float_notes(o, joints.n, joints.label) if f not in notes]
     return tuple(notes)
 
 
+def _staged_chosen(trial: Trial) -> bool:
+    """The run shown is the staged setting."""
+    return trial.staged and trial.stages is not None
+
+
 def landed_profile(inp: PlanInputs, trial: Trial) -> StepProfile:
-    """Forces along the landed string with the set-down weight on bottom."""
+    """Forces along the landed string with the set-down weight on bottom
+    (staged: stage 1 standing on bottom, stage 2 set down on it)."""
+    if _staged_chosen(trial):
+        return trial.stages.landed
     best = trial.best
     fill_final = 0.0
     if trial.chosen.closure.valve_joint is not None and best is not None:
@@ -665,7 +697,8 @@ def check_set_down(inp: PlanInputs, trial: Trial,
     its limit means the string cannot be landed with that set-down weight.
     Joints in compression whose buckling cannot be worked out (modulus,
     hole diameter or yield unknown) are unrated parts."""
-    if not inp.settings.set_down_weight > 0:
+    staged = _staged_chosen(trial)     # stage 1 stands on bottom: compressed anyway
+    if not (inp.settings.set_down_weight > 0 or staged):
         return trial, None
     joints = inp.joints
     modulus = joints.modulus if joints.modulus is not None else np.full(joints.n, np.nan)
@@ -702,9 +735,17 @@ def check_set_down(inp: PlanInputs, trial: Trial,
     trial = dataclasses.replace(trial, chosen=chosen)
     over = [lim for lim in limits if lim.margin < -MARGIN_TOLERANCE]
     if over and trial.verdict is not None and trial.verdict.lands:
-        action = Finding(PlanCode.SET_DOWN_TOO_HEAVY, Severity.ACTION,
-                         quantities={"set_down": (set_down, Kind.FORCE),
-                                     "max_set_down": (chk.max_set_down, Kind.FORCE)})
+        in_stage1 = [lim for lim in over if staged and lim.joint <= trial.stages.split]
+        if in_stage1:
+            j = in_stage1[0].joint
+            action = Finding(PlanCode.STAGE1_BUCKLES_ON_BOTTOM, Severity.REASON,
+                             joint=trial.stages.split, label=label[trial.stages.split - 1],
+                             quantities={"load": (float(chk.compression[j - 1]),
+                                                         Kind.FORCE)})
+        else:
+            action = Finding(PlanCode.SET_DOWN_TOO_HEAVY, Severity.ACTION,
+                             quantities={"set_down": (set_down, Kind.FORCE),
+                                         "max_set_down": (chk.max_set_down, Kind.FORCE)})
         trial = trial.add(*(over_limit(lim) for lim in over), action, verdict=CANNOT_LAND)
     return trial, chk
 
@@ -714,7 +755,8 @@ def governing_limit(trial: Trial) -> Limit:
     a string longer than the hole; the staged setting's least margin when it
     lands in stages."""
     g = trial.governing
-    if g is not None and (g.name == LimitName.HOLE_DEPTH or trial.verdict == LANDS_STAGED):
+    if g is not None and (g.name == LimitName.HOLE_DEPTH or (
+            _staged_chosen(trial) and trial.verdict in (LANDS_STAGED, CANNOT_CONFIRM))):
         return g
     return _governing(trial.chosen)
 
@@ -765,12 +807,22 @@ def plan_landing(joints: JointArrays, hole: Hole, rig: Rig, settings: Settings,
         open_check=open_check, chosen=trial.chosen, float_options=trial.options,
         best_float=trial.best, stages=trial.stages,
         switch_joint=switch_point(inp.open_loads.string_load, inp.limit),
-        neutral_point=(neutral_point_depth(landed) if settings.set_down_weight > 0
-                       else float("nan")),
+        neutral_point=_neutral_point(trial, landed, settings),
         grouting=plan_grouting(inp, grout), landed=landed,
         unrated=unrated, reasons=trial.reasons, notes=crew_notes(joints, trial),
-        buckling=buckling,
+        buckling=buckling, staged=_staged_chosen(trial),
     )
+
+
+def _neutral_point(trial: Trial, landed: StepProfile, settings: Settings) -> float:
+    """Depth of the neutral point when landed [m] (nan: all in tension).  A
+    staged setting: stage 2's with the set-down weight, else stage 1's top
+    (released, stage 1 stands on bottom)."""
+    if _staged_chosen(trial):
+        st = trial.stages
+        return (st.stage2_neutral_point if np.isfinite(st.stage2_neutral_point)
+                else st.stage1_neutral_point)
+    return neutral_point_depth(landed) if settings.set_down_weight > 0 else float("nan")
 
 
 def _staged_loads(open_loads: RunningLoads, stages: StagedPlan) -> RunningLoads:

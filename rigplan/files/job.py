@@ -40,7 +40,9 @@ DEMO_RIG = "mw80.toml"
 DEMO_JOBS = (
     ("cv3-8in-a53b.toml", "th30.toml", Verdict.LANDS_OPEN),
     ("cv7-16in-floated.toml", "mw80.toml", Verdict.LANDS_FLOATED),
-    ("cv9-14in-staged.toml", "mw80.toml", Verdict.LANDS_STAGED),
+    # the staged split holds on every hoisting check, but released, stage 1
+    # stands on bottom and its own weight buckles its screens
+    ("cv9-14in-staged.toml", "mw80.toml", Verdict.CANNOT_LAND),
     ("cv12-pvc-floated.toml", "th30.toml", Verdict.LANDS_FLOATED),
     ("cv5-18in-thinwall.toml", "th30.toml", Verdict.CANNOT_LAND),
     ("cv2-liner.toml", "th30.toml", Verdict.LANDS_OPEN),

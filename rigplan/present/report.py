@@ -172,18 +172,61 @@ def plan_dict(landing, plan=None, warnings=(), rig_name: str = "") -> dict:
             "reason": W.finding_text(o.reason, "si"), "reason_code": W.finding_code(o.reason)})
     st = landing.stages
     if st is not None:
-        out["stages"] = {
-            "split": st.split, "release_depth": _f(st.release_depth),
-            "stage1_peak_string_load": _f(st.stage1_peak),
-            "landing_string_peak": _f(st.landing_string_peak),
-            "stage2_peak_string_load": _f(st.stage2_peak),
-            "least_margin": _f(st.least_margin), "governing": str(st.governing),
-            "feasible": st.feasible, "reason": W.finding_text(st.reason, "si"),
-            "reason_code": W.finding_code(st.reason)}
+        out["stages"] = stages_dict(st)
+        if _staged(landing):
+            out["steps"] = staged_steps_dict(landing)
     g = landing.grouting
     if g is not None:
         out["grouting"] = grouting_dict(g)
     return out
+
+
+def _staged(landing) -> bool:
+    """The chosen plan is the staged one (its step table has the lowering)."""
+    return bool(getattr(landing, "staged", False)) and landing.stages.steps is not None
+
+
+def stages_dict(st) -> dict:
+    """The staged setting, SI: each figure as a string load (dead load left
+    out) and as a hook load (dead load included)."""
+    return {
+        "split": st.split, "release_depth": _f(st.release_depth),
+        "shoe_depth": _f(st.shoe_depth), "dead_load": _f(st.dead_load),
+        "stage1_at_floor_peak_string_load": _f(st.stage1_peak_string_load),
+        "stage1_at_floor_peak_hook_load": _f(st.stage1_peak_hook_load),
+        "release_string_load": _f(st.release_string_load),
+        "release_hook_load": _f(st.release_hook_load),
+        "lowering_peak_string_load": _f(st.lowering_peak_string_load),
+        "lowering_peak_hook_load": _f(st.lowering_peak_hook_load),
+        "landing_string_top_tension": _f(st.landing_string_tension),
+        "stage2_peak_string_load": _f(st.stage2_peak_string_load),
+        "stage2_peak_hook_load": _f(st.stage2_peak_hook_load),
+        "checks": [{"name": str(c.name), "row": c.row, "load": _f(c.load),
+                    "capacity": _f(c.capacity), "margin": _f(c.margin), "kind": c.kind}
+                   for c in st.checks],
+        "least_margin": _f(st.least_margin),
+        "governing": None if st.governing is None else str(st.governing),
+        "feasible": st.feasible, "reason": W.finding_text(st.reason, "si"),
+        "reason_code": W.finding_code(st.reason),
+        "stage1_neutral_point": _f(st.stage1_neutral_point),
+        "stage2_neutral_point": _f(st.stage2_neutral_point),
+    }
+
+
+def staged_steps_dict(landing) -> list:
+    """Per-step rows of a staged plan in running order, the lowering on the
+    landing string included (``phase``: stage 1, lowering, stage 2)."""
+    st = landing.stages.steps
+    label = landing.joints.label
+    hook_limit = landing.path.hook_limit
+    return [{
+        "joint": int(st.joint[r]), "label": label[int(st.joint[r]) - 1],
+        "phase": str(st.phase[r]),
+        "landing_string_length": _f(st.landing_string_length[r]),
+        "bottom_depth": _f(st.bottom_depth[r]), "shoe_depth": _f(st.shoe_depth[r]),
+        "hook_load": _f(st.hook_load[r]), "string_load": _f(st.string_load[r]),
+        "hook_limit": _f(hook_limit), "margin": _f(st.margin[r]), "fill_level": None,
+    } for r in range(st.n)]
 
 
 def buckling_dict(landing) -> dict | None:
@@ -368,6 +411,48 @@ def _gap_row(table, all_steps, columns: int) -> tuple:
     return ("...",) * columns
 
 
+def _staged_step_table(landing, system: str, all_steps: bool = True):
+    """The running steps of a staged plan: stage 1 from the floor, the
+    lowering on the landing string to the release, stage 2 from the floor."""
+    from rich.table import Table
+    from rich.text import Text
+    st = landing.stages
+    steps = st.steps
+    label = landing.joints.label
+    t = Table(title="Running steps (two stages on the landing string)")
+    for c in ("step", "joint", "landing string", "bottom depth", "string load", "hook load",
+              "hook limit", "margin"):
+        t.add_column(c, justify="right")
+    t.add_column("crew action")
+    n = steps.n
+    rel = steps.release_row
+    keep = set(range(n)) if all_steps or n <= 40 else \
+        set(range(8)) | set(range(st.split - 3, rel + 3)) | set(range(n - 5, n))
+    for r in range(n):
+        if r not in keep:
+            continue
+        k = int(steps.joint[r])
+        phase = steps.phase[r]
+        if phase == "lowering":
+            act = ("release stage 1 (it stands on bottom)" if r == rel else
+                   "lower one landing-string joint")
+            joint = f"1-{st.split}"
+        else:
+            joint = f"{k} {label[k - 1]}"
+            act = ("stage 2: first joint, set on stage 1 when landed" if k == st.split + 1
+                   else "make up the landing string next" if k == st.split else "")
+        m = steps.margin[r]
+        t.add_row(f"{r + 1} {phase}", joint,
+                  _q(steps.landing_string_length[r], "length", system, 1)
+                  if phase == "lowering" else "-",
+                  _q(steps.bottom_depth[r], "length", system, 1),
+                  _q(steps.string_load[r], "force", system, 0),
+                  _q(steps.hook_load[r], "force", system, 0),
+                  _q(landing.path.hook_limit, "force", system, 0),
+                  Text(_pct(m), "red" if m < 0 else ""), act)
+    return t
+
+
 def text_renderables(landing, plan=None, system: str = "us", warnings=(), rig_name="",
                      all_steps: bool | None = True):
     """A list of rich renderables for ``rigplan check`` and the printed plan.
@@ -450,16 +535,45 @@ def text_renderables(landing, plan=None, system: str = "us", warnings=(), rig_na
     if st is not None:
         t = Table(title="Staged setting (two stages on the landing string)")
         t.add_column("item")
-        t.add_column("value", justify="right")
-        t.add_row("stage 1", f"joints 1-{st.split}")
-        t.add_row("release depth (top of stage 1)", _q(st.release_depth, "length", system, 1))
-        t.add_row("stage 1 peak string load", _q(st.stage1_peak, "force", system, 0))
-        t.add_row("landing string peak tension", _q(st.landing_string_peak, "force", system, 0))
-        t.add_row("stage 2 peak string load", _q(st.stage2_peak, "force", system, 0))
-        t.add_row("least margin", f"{_pct(st.least_margin)} ({st.governing})")
+        t.add_column("value, string load", justify="right")
+        t.add_column("hook load", justify="right")
+        t.add_row("stage 1", f"joints 1-{st.split}", "")
+        t.add_row("release depth (top of stage 1)", _q(st.release_depth, "length", system, 1),
+                  "")
+        if st.steps is not None:
+            rows = [("stage 1 at the floor, peak", st.stage1_peak_string_load,
+                     st.stage1_peak_hook_load),
+                    ("stage 1 on the landing string at release", st.release_string_load,
+                     st.release_hook_load)]
+            if st.lowering_peak_string_load > st.release_string_load * (1 + 1e-9):
+                rows.append(("lowering on the landing string, peak",
+                             st.lowering_peak_string_load, st.lowering_peak_hook_load))
+            rows.append(("stage 2 at the floor, peak", st.stage2_peak_string_load,
+                         st.stage2_peak_hook_load))
+            for name, string, hook in rows:
+                t.add_row(f"{name} (string load / hook load)",
+                          _q(string, "force", system, 0), _q(hook, "force", system, 0))
+            t.add_row("landing string top tension, peak",
+                      _q(st.landing_string_tension, "force", system, 0), "")
+            t.add_row("stage 1 landed: stands on bottom, neutral point at its top",
+                      _q(st.stage1_neutral_point, "length", system, 1), "")
+            if np.isfinite(st.stage2_neutral_point):
+                t.add_row("stage 2 landed on stage 1: neutral point",
+                          _q(st.stage2_neutral_point, "length", system, 1), "")
         if st.reason is not None:
-            t.add_row("why not", W.finding_text(st.reason, system))
+            t.add_row("why not", W.finding_text(st.reason, system), "")
+        t.caption = ("string load: what hangs below the elevator; hook load: the string load "
+                     f"plus {_q(st.dead_load, 'force', system, 0)} of hoisting gear")
         out.append(t)
+        if st.checks:
+            ct = Table(title="Staged limits (design factor applied to the landing string)")
+            for c in ("limit", "load", "capacity", "margin"):
+                ct.add_column(c, justify="right" if c != "limit" else "left")
+            for c in st.checks:
+                ct.add_row(str(c.name), _q(c.load, "force", system, 0),
+                           _q(c.capacity, "force", system, 0),
+                           Text(_pct(c.margin), "red" if c.margin < 0 else ""))
+            out.append(ct)
 
     st_t = Table(title=f"Running steps ({closure_name(chk.closure, landing.joints.label)})")
     for c in ("joint", "shoe depth", "fill level", "hook load", "hook limit", "margin"):
@@ -467,7 +581,12 @@ def text_renderables(landing, plan=None, system: str = "us", warnings=(), rig_na
     actions = W.step_actions(landing, system)
     st_t.add_column("crew action")
     hook = landing.hook_load
-    for k in _table_rows(n, all_steps, np.argsort(chk.capacity_margin, kind="stable")):
+    if _staged(landing):
+        out.append(_staged_step_table(landing, system, all_steps))
+        rows = ()
+    else:
+        rows = _table_rows(n, all_steps, np.argsort(chk.capacity_margin, kind="stable"))
+    for k in rows:
         if k is None:
             st_t.add_row(*_gap_row(st_t, all_steps, 7))
             continue
@@ -477,7 +596,8 @@ def text_renderables(landing, plan=None, system: str = "us", warnings=(), rig_na
         st_t.add_row(f"{k + 1} {j.label[k]}", _q(loads.shoe_depth[k], "length", system, 1), fl,
                      _q(hook[k], "force", system, 0), _q(cap.hook_limit, "force", system, 0),
                      Text(_pct(m), "red" if m < 0 else ""), actions[k])
-    out.append(st_t)
+    if rows:
+        out.append(st_t)
 
     tu = chk.tension_utilization
     if np.any(np.isfinite(tu)):

@@ -186,9 +186,12 @@ def limit_place(limit: Limit) -> str:
     """Where a limit is reached, in words."""
     if limit.name == LimitName.HOLE_DEPTH:
         return "the shoe when landed"
-    if limit.name in (LimitName.STAGE1_HOISTING, LimitName.LANDING_STRING,
-                      LimitName.STAGE2_HOISTING):
-        return f"split above joint {limit.joint}"
+    if limit.name == LimitName.STAGE1_HOISTING:
+        return f"stage 1 (joints 1-{limit.joint}) at the floor"
+    if limit.name in (LimitName.LOWERING_HOISTING, LimitName.LANDING_STRING):
+        return f"stage 1 (joints 1-{limit.joint}) on the landing string"
+    if limit.name == LimitName.STAGE2_HOISTING:
+        return f"stage 2 (from joint {limit.joint + 1}) at the floor"
     if limit.step is not None:
         return f"step {limit.step} ({limit.label} at the floor)"
     if limit.joint is not None:
@@ -235,8 +238,15 @@ _UNRATED_PART = {"tension": "tension at the top of joint", "collapse": "collapse
                              "yield not given) of joint"}
 
 
+def _valve(f: Finding) -> str:
+    """The float equipment of a finding, by the collar joint's label when known."""
+    m = f.get("valve_joint")
+    label = f.get("valve_label")
+    return closure_name(m, None if not label else [""] * (m - 1) + [label])
+
+
 def _float_name(f: Finding, system: str) -> str:
-    return (f"{closure_name(f.get('valve_joint'))} with fill "
+    return (f"{_valve(f)} with fill "
             f"{fmt(f.value('fill_density'), Kind.DENSITY, system)}")
 
 
@@ -272,20 +282,24 @@ _WORDS = {
         f"{_UNRATED_PART[f.get('part')]} {f.joint}" + (f" ({f.label})" if f.label else "")),
     PlanCode.UNRATED_COMPONENT: lambda f, s: f"{f.get('component')} on hoisting path {f.get('path')!r}",
     PlanCode.EMPTY_COLLAPSES: lambda f, s: (
-        f"{_float_name(f, s)}: left empty the pipe would collapse by joint {f.joint}"
+        f"{_float_name(f, s)}: left empty the pipe would collapse by {_joint(f.joint, f.label)}"
         + (f"; never leave more than {_q(f, 'longest_empty', s, 1)} empty above the valve"
            if f.quantities['longest_empty'].known else "")),
     PlanCode.EMPTY_FLOATS: lambda f, s: (
-        f"{_float_name(f, s)}: left empty the string floats (negative hook load) from joint "
-        f"{f.joint}: fill it or it will not go down"),
+        f"{_float_name(f, s)}: left empty the string floats (negative hook load) from "
+        f"{_joint(f.joint, f.label)}: fill it or it will not go down"),
     PlanCode.EMPTY_TOO_LIGHT: lambda f, s: (
         f"{_float_name(f, s)}: left empty the string load falls below the minimum running "
-        f"weight from joint {f.joint}"),
+        f"weight from {_joint(f.joint, f.label)}"),
     PlanCode.SET_DOWN_TOO_HEAVY: lambda f, s: (
         f"the set-down weight {_q(f, 'set_down', s)} buckles a screen or overstresses a joint "
         "below the neutral point: "
         + (f"set down at most {_q(f, 'max_set_down', s)}"
            if f.quantities['max_set_down'].known else "set down less")),
+    PlanCode.STAGE1_BUCKLES_ON_BOTTOM: lambda f, s: (
+        f"staged setting: released, stage 1 (joints 1-{f.joint}) stands on bottom with "
+        f"{_q(f, 'load', s)} on its lowest joints, which buckles a screen or "
+        "overstresses a joint; no set-down weight relieves it"),
     PlanCode.FILL_ALL_THE_WAY: lambda f, s: (
         f"{_float_name(f, s)}: fill every joint to the top all the way down; floating gains "
         "nothing here"),
@@ -615,8 +629,8 @@ TALLY_COLUMNS = (
     ("length", "Plan", "length", True),
     ("top_depth", "Top at", "length", False),
     ("max_tension", "Max tension", "force", False),
-    ("tension_util", "Tens. util", None, False),
-    ("collapse_util", "Coll. util", None, False),
+    ("tension_util", "Tension", None, False),
+    ("collapse_util", "Collapse", None, False),
     ("od", "OD", "diameter", True),
     ("wall", "Wall", "diameter", True),
     ("material", "Material", None, True),
@@ -656,8 +670,8 @@ def tally_cells(session) -> list:
         if lp is not None and k is not None:
             top = number(tops[k], "length", sys_)
             tension = number(lp.chosen.loads.envelope_max[k], "force", sys_)
-            t_util = ratio(lp.chosen.tension_utilization[k])
-            c_util = ratio(lp.chosen.collapse_utilization[k])
+            t_util = percent(lp.chosen.tension_utilization[k], missing="unrated")
+            c_util = percent(lp.chosen.collapse_utilization[k], missing="unrated")
         else:
             top = tension = t_util = c_util = ""
         cells = {
@@ -702,9 +716,20 @@ RUN_COLUMNS = (
     ("status", "Status", None),
     ("length", "Length", "length"),
     ("shoe", "Shoe at", "length"),
-    ("hook", "Hook load", "force"),
+    ("hook", "Hook", "force"),
     ("fill", "Fill", None),
 )
+
+#: The columns a narrow screen keeps first, most important first (the
+#: others follow as the width allows).
+RUN_PRIORITY = ("label", "status", "hook", "length", "fill", "shoe", "step")
+TALLY_PRIORITY = ("label", "status", "measured_length", "length", "tension_util",
+                  "collapse_util", "top_depth", "max_tension", "kind", "od", "wall",
+                  "material", "connection", "seq")
+
+#: Longest status text in a grid cell (a set-aside reason is cut with "...";
+#: the whole reason is in the run log and the tally export).
+STATUS_WIDTH = 24
 
 
 def run_cells(session) -> list:
@@ -724,11 +749,16 @@ def run_cells(session) -> list:
         else:
             shoe = hook = fill = ""
         rows.append((spec.label, {
-            "step": step, "label": spec.label, "status": joint_status(session, spec, reason=True),
+            "step": step, "label": spec.label,
+            "status": _cut(joint_status(session, spec, reason=True), STATUS_WIDTH),
             "length": length_cell(session, spec),
             "shoe": shoe, "hook": hook, "fill": fill,
         }))
     return rows
+
+
+def _cut(text: str, width: int) -> str:
+    return text if len(text) <= width else text[: width - 3] + "..."
 
 
 def length_basis(session, spec) -> str:
@@ -774,6 +804,7 @@ def running_summary(session) -> list:
     if lp is None:
         return [f"No plan: {session.error}"]
     n = lp.joints.n
+    lines.append(f"Next: {fill_instruction(lp, k, sys_)}")
     lines.append(f"Joints in the hole: {k} of {n}" +
                  (f"   next: {nxt.label}" if nxt is not None else "   all in"))
     shoe = float(lp.chosen.loads.shoe_depth[k - 1]) if k >= 1 else 0.0
@@ -785,7 +816,6 @@ def running_summary(session) -> list:
     lines.append(f"Hook limit ({lp.path.path}): {fmt(lp.path.hook_limit, 'force', sys_)}")
     if k >= 1:
         lines.append(f"Capacity margin now: {percent(lp.chosen.capacity_margin[k - 1])}")
-    lines.append(f"Next: {fill_instruction(lp, k, sys_)}")
     lines.append(f"Weight band: {session.band_text()}")
     return lines
 

@@ -24,16 +24,17 @@ from rigplan.errors import InputError
 from rigplan.files.job import LENGTH_WARNING
 from rigplan.files.runlog import RunLogWriteError
 from rigplan.present import wording as P
-from rigplan.tui.commands import ACTIONS, GLOBAL, RUNNING, TALLY, RigplanCommands, bindings, help_sections
+from rigplan.tui.commands import (CHARTS, GLOBAL, PALETTE, RUNNING, TALLY, RigplanCommands,
+                                  bindings, help_sections)
 from rigplan.tui.dialogs import ConfirmScreen, HelpScreen, PromptScreen, QuitScreen
 from rigplan.tui.panes import RigPane, RunningPane, TallyPane
 from rigplan.tui.schematic import OverviewWithSchematic
 from rigplan.tui.session import EDITABLE_FIELDS, JobSession
 
 TABS = ("overview", "tally", "running", "charts", "rig")
-_CONTEXT_TABS = {RUNNING: ("overview", "running"), TALLY: ("tally",)}
-_CONTEXT_OF = {a.name: a.context for a in ACTIONS}
-_HOME_TAB = {RUNNING: "running", TALLY: "tally"}
+_CONTEXT_TABS = {RUNNING: ("overview", "running"), TALLY: ("tally",), CHARTS: ("charts",)}
+_CONTEXT_OF = {a.name: a.context for a in PALETTE}
+_HOME_TAB = {RUNNING: "running", TALLY: "tally", CHARTS: "charts"}
 
 
 class ChartsPane(Vertical):
@@ -54,6 +55,7 @@ class ChartsPane(Vertical):
         await self.query_one("#charts-placeholder").remove()
         self.view = ChartsView(id="charts-view")
         await self.mount(self.view)
+        self.view.fit(self.app.size.width, self.app.size.height)
         return True
 
     def show(self, session) -> None:
@@ -101,11 +103,27 @@ class RigplanApp(App):
         self._caution = self.query_one("#caution", Static)
         self._panes = {tab: self.query_one(f"#{tab}-pane") for tab in TABS}
         self._banner = self.query_one("#read-only-banner", Static)
+        self._fit(self.size.width, self.size.height)
         self.refresh_views()
         self.set_interval(self.FOLLOW_INTERVAL, self.follow_log)
 
     def on_unmount(self) -> None:
         self.session.close()
+
+    #: Below this width or height [cells] the screens use their compact
+    #: layout (80x24 is the smallest terminal planned for).
+    COMPACT = (100, 30)
+
+    def on_resize(self, event) -> None:
+        self._fit(event.size.width, event.size.height)
+        if hasattr(self, "_tabs"):
+            self.refresh_views()
+
+    def _fit(self, width: int, height: int) -> None:
+        self.screen_stack[0].set_class(width < self.COMPACT[0] or height < self.COMPACT[1],
+                                       "compact")
+        if hasattr(self, "_panes") and self._panes["charts"].view is not None:
+            self._panes["charts"].view.fit(width, height)
 
     def follow_log(self) -> None:
         """Read-only copy: show the writer's new entries; take over as the
@@ -136,11 +154,12 @@ class RigplanApp(App):
         """Redraw the visible tab now; the others when next shown."""
         s = self.session
         lp = s.landing
-        self.sub_title = (f"{s.plan.name}" + (f", well {s.plan.well}" if s.plan.well else "")
+        self.sub_title = (("EDITED, NOT SAVED  |  " if s.dirty else "")
+                          + ("READ-ONLY  |  " if s.read_only else "")
+                          + f"{s.plan.name}" + (f", well {s.plan.well}" if s.plan.well else "")
                           + f"  |  rig {s.rig.name}"
                           + (f", path {lp.path.path}" if lp is not None else "")
-                          + f"  |  {'US field' if s.units == 'us' else 'SI'} units"
-                          + ("  |  edited, not saved" if s.dirty else ""))
+                          + f"  |  {'US field' if s.units == 'us' else 'SI'} units")
         self._caution.update(P.cautions_text(lp))
         banner = s.read_only_text()
         self._banner.update(banner)
@@ -228,30 +247,43 @@ class RigplanApp(App):
                    for key, (title, _, _) in JOB_SETTINGS.items()]
 
         def picked(key) -> None:
-            if key is None:
-                return
-            title, kind, hint = JOB_SETTINGS[key]
-            if kind not in (None, "dimensionless"):
-                hint = (hint + "; " if hint else "") + (
-                    f"a bare number is in {P.unit(kind, s.units)} ({U.describe(kind)})")
-            if key == "rig":
-                self.push_screen(PromptScreen(title, value=s.setting_text(key), hint=hint,
-                                              parse=s.change_rig, prompt_id="prompt-setting"),
-                                 lambda name: name is not None and self._committed(
-                                     f"Planning with rig {name}"))
-                return
-
-            def done(plan) -> None:
-                if plan is None:
-                    return
-                s.apply_plan(plan)
-                self._committed(f"{title} changed (not saved yet: s on the String tab saves)")
-
-            self.push_screen(PromptScreen(title, value=s.setting_text(key), hint=hint,
-                                          parse=lambda t: s.edited_setting(key, t),
-                                          prompt_id="prompt-setting"), done)
+            if key is not None:
+                self.action_edit_setting(key)
 
         self.push_screen(ChoiceScreen("Job settings", choices, choice_id="settings"), picked)
+
+    def action_edit_setting(self, key: str) -> None:
+        """Change one job setting by name (from the settings list or the palette)."""
+        from rigplan.tui.session import JOB_SETTINGS
+        s = self.session
+        title, kind, hint = JOB_SETTINGS[key]
+        if kind not in (None, "dimensionless"):
+            hint = (hint + "; " if hint else "") + (
+                f"a bare number is in {P.unit(kind, s.units)} ({U.describe(kind)})")
+        if key == "rig":
+            self.push_screen(PromptScreen(title, value=s.setting_text(key), hint=hint,
+                                          parse=s.change_rig, prompt_id="prompt-setting"),
+                             lambda name: name is not None and self._committed(
+                                 f"Planning with rig {name}"))
+            return
+
+        def done(plan) -> None:
+            if plan is None:
+                return
+            s.apply_plan(plan)
+            self._committed(f"{title} changed (not saved yet: s on the String tab saves)")
+
+        self.push_screen(PromptScreen(title, value=s.setting_text(key), hint=hint,
+                                      parse=lambda t: s.edited_setting(key, t),
+                                      prompt_id="prompt-setting"), done)
+
+    def action_next_chart(self) -> None:
+        view = self._pane("charts").view
+        if view is None:
+            return
+        name = view.next_chart()
+        view.show(self.session)
+        self.notify(f"Chart: {name}", timeout=2)
 
     def action_rack(self) -> None:
         from rigplan.tui.rack import RackScreen

@@ -20,16 +20,16 @@ class OverviewPane(VerticalScroll):
 
     def compose(self) -> ComposeResult:
         yield Static("", id="verdict", markup=False)
+        yield Static("", id="next-action", classes="line next", markup=False)
+        yield Static("", id="reasons", classes="line dim", markup=False)
         yield Static("", id="governing", classes="line", markup=False)
         yield Static("", id="path-line", classes="line", markup=False)
-        yield Static("", id="next-action", classes="line next", markup=False)
         yield Static("", id="fill-plan", classes="line", markup=False)
         yield Static("", id="float-line", classes="line", markup=False)
         yield Static("", id="switch-line", classes="line", markup=False)
         yield Static("", id="set-down-line", classes="line", markup=False)
         yield Static("", id="progress", classes="line", markup=False)
         yield Static("", id="landing", classes="line", markup=False)
-        yield Static("", id="reasons", classes="line dim", markup=False)
         yield Static("", id="warnings", classes="line dim", markup=False)
 
     def show(self, session) -> None:
@@ -63,7 +63,7 @@ class OverviewPane(VerticalScroll):
         self.query_one("#progress", Static).update(
             f"Run log: {session.step} of {total} joints in the hole, "
             f"{len(session.state.rejected)} set aside, "
-            f"{len(session.state.observations)} weight readings; next joint: "
+            f"weight readings: {len(session.state.observations)}; next joint: "
             f"{nxt.label if nxt is not None else 'none (all in)'}"
             + ("   [plan edited, not saved: s on the String tab]" if session.dirty else ""))
         warnings = list(session.warnings) + [w for w in session.length_warnings
@@ -134,6 +134,35 @@ class _Grid(DataTable):
         return [Text(c, style=style) for c in cells]
 
 
+def fit_columns(columns, rows, priority, budget: int):
+    """The columns that fit ``budget`` cells, taken in ``priority`` order and
+    shown in their own order; rows cut to match.  Each column takes its
+    widest text plus the table's padding; the first priority always stays.
+
+    Returns ``(columns, rows, hidden titles)``.
+    """
+    keys = [k for k, _ in columns]
+    widths = {k: len(t) for k, t in columns}
+    for _, cells in rows:
+        for k, c in zip(keys, cells):
+            if len(c) > widths[k]:
+                widths[k] = len(c)
+    used = 2                                    # the vertical scroll bar
+    keep = set()
+    for k in list(priority) + [k for k in keys if k not in priority]:
+        if k not in widths:
+            continue
+        need = widths[k] + 2                    # cell padding, one each side
+        if keep and used + need > budget:
+            continue
+        keep.add(k)
+        used += need
+    idx = [i for i, k in enumerate(keys) if k in keep]
+    hidden = [t for k, t in columns if k not in keep]
+    return ([columns[i] for i in idx], [(key, [cells[i] for i in idx]) for key, cells in rows],
+            hidden)
+
+
 class TallyPane(Vertical):
     """The string joint by joint with its loads; plan edits."""
 
@@ -149,12 +178,15 @@ class TallyPane(Vertical):
         sys_ = session.units
         columns = [(key, P.column_title(title, kind, sys_)) for key, title, kind, _ in P.TALLY_COLUMNS]
         rows = P.tally_cells(session)
+        columns, rows, hidden = fit_columns(columns, rows, P.TALLY_PRIORITY,
+                                            self.app.size.width - 2)
         nxt = session.next_joint()
         self.table.load(columns, rows, highlight=nxt.label if nxt is not None else None)
-        status = (f"{len(rows)} joints, {sys_.upper()} units.  e/Enter edit  i insert  d delete  "
-                  f"[ ] move  t import tally  s save")
-        if session.dirty:
-            status += "   * edited, not saved"
+        status = ("* EDITED, NOT SAVED (s saves)   " if session.dirty else "") + (
+            f"{len(rows)} joints, {sys_.upper()} units.  e/Enter edit  i insert  d delete  "
+            f"[ ] move  t import tally  s save")
+        if hidden:
+            status += f"   ({len(hidden)} more columns in a wider window)"
         self.query_one("#tally-status", Static).update(status)
 
     def cursor_cell(self):
@@ -193,6 +225,12 @@ class RunningPane(Horizontal):
         columns = [(key, P.column_title(title, kind, sys_)) for key, title, kind in P.RUN_COLUMNS]
         rows = [(label, [cells[c[0]] for c in P.RUN_COLUMNS])
                 for label, cells in P.run_cells(session)]
+        # the table has 3/5 of the width beside the side panel, or the
+        # whole width above it in the compact layout
+        width = self.app.size.width - 2
+        if not self.screen.has_class("compact"):
+            width = width * 3 // 5
+        columns, rows, _ = fit_columns(columns, rows, P.RUN_PRIORITY, width)
         nxt = session.next_joint()
         self.table.load(columns, rows, highlight=nxt.label if nxt is not None else None)
         if nxt is not None:

@@ -49,6 +49,8 @@ line carries the block.
     density = "7850 kg/m3"              # default 7850 kg/m3 (steel)
     od = "3-1/2 in"                     # diameter, optional
     bore = "2.764 in"                   # diameter, optional
+    joint_length = "30 ft"              # one joint or stand, the lowering step;
+                                        # 0.5 to 60 m, default 30 ft
 """
 
 from __future__ import annotations
@@ -72,7 +74,8 @@ TOOL_KEYS = ("name", "kind", "rating", "basis", "net_of")
 #: as a typing error; a dynamic factor over 3 likewise.
 ROPE_DESIGN_FACTOR_RANGE = (1.0, 20.0)
 DYNAMIC_FACTOR_RANGE = (1.0, 3.0)
-LANDING_KEYS = ("name", "weight_per_length", "tensile_rating", "density", "od", "bore")
+LANDING_KEYS = ("name", "weight_per_length", "tensile_rating", "density", "od", "bore",
+                "joint_length")
 
 #: Steel density used for a landing string when none is given [kg/m^3]
 #: (carbon steel, 0.2836 lb/in^3 as in the ASTM A53 / API 5L plain-end weight
@@ -215,9 +218,10 @@ def rig_from_data(data: dict, source: str):
                               positive=True)
         density = lt.quantity("density", "density", default=DEFAULT_LANDING_STRING_DENSITY,
                               positive=True)
+        joint_length = lt.quantity("joint_length", "length", default=9.144, positive=True)
         try:
             landing = LandingString(name=lname, weight_per_length=weight, tensile_rating=tensile,
-                                    density=density, od=od, bore=bore)
+                                    density=density, od=od, bore=bore, joint_length=joint_length)
         except InputError as exc:
             raise _rewhere(exc, f"{source}: landing_string") from None
 

@@ -578,10 +578,19 @@ def _stages_grout(ctx: Context) -> Section | None:
     if st is not None:
         items = [("Stage 1", f"joints 1-{st.split} on the landing string"),
                  ("Release depth (top of stage 1)", ctx.q(st.release_depth, "length", 1)),
-                 ("Stage 1 peak string load", ctx.q(st.stage1_peak, "force", fd)),
-                 ("Landing string peak tension", ctx.q(st.landing_string_peak, "force", fd)),
-                 ("Stage 2 peak string load", ctx.q(st.stage2_peak, "force", fd)),
-                 ("Least margin", f"{_pct(st.least_margin)} ({st.governing})")]
+                 ("Stage 1 at the floor, peak hook load (string load)",
+                  f"{ctx.q(st.stage1_peak_hook_load, 'force', fd)} "
+                  f"({ctx.q(st.stage1_peak_string_load, 'force', fd)})"),
+                 ("Stage 1 on the landing string at release, hook load (string load)",
+                  f"{ctx.q(st.release_hook_load, 'force', fd)} "
+                  f"({ctx.q(st.release_string_load, 'force', fd)})"),
+                 ("Landing string peak tension", ctx.q(st.landing_string_tension, "force", fd)),
+                 ("Stage 2 at the floor, peak hook load (string load)",
+                  f"{ctx.q(st.stage2_peak_hook_load, 'force', fd)} "
+                  f"({ctx.q(st.stage2_peak_string_load, 'force', fd)})"),
+                 ("Least margin", f"{_pct(st.least_margin)} ({st.governing})"),
+                 ("Landed", "stage 1 stands on bottom (neutral point at its top, "
+                            f"{ctx.q(st.stage1_neutral_point, 'length', 1)})")]
         if st.reason:
             items.append(("Why not", W.finding_text(st.reason, ctx.system)))
         sec.blocks.append(Facts("Staged setting" + ("" if lp.verdict == Verdict.LANDS_STAGED
