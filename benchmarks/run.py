@@ -167,10 +167,11 @@ def family_case(family, n, seed=0):
     ``tapered``: 12-3/4 in SDR 21, 12-3/4 in SDR 17 and 10-3/4 in SDR 21 in
     turn, 10 joints each; lands open-ended.  ``topups``: 12 joints of
     12-3/4 in x 0.500 in A53 B at the bottom (butt welds, 85 %), a float
-    collar on joint 1, then 12-3/4 in SDR 26 in 20 ft joints; mud as the
-    fill; the string limit is 30 ft of empty pipe under the open-ended
-    load, and collapse (design factor 1.125) allows about 27 ft more, so
-    the fill is carried five joints at a time and topped up again.
+    collar on joint 1, then 12-3/4 in SDR 21 in 30 ft joints; mud as the
+    fill.  Collapse (design factor 1.125) allows an empty column of about
+    170 ft above the fill; the string limit asks for one at most 165 ft
+    (5.5 joints) shorter, so the chosen schedule carries the fill down five
+    joints and tops up again, all the way down.
     """
     from rigplan.engine.axial import running_loads
     from rigplan.engine.materials import get_material
@@ -191,26 +192,39 @@ def family_case(family, n, seed=0):
     specs = [JointSpec(f"J{i + 1}", "blank", "a53b", od=12.75 * _INCH, wall=0.5 * _INCH,
                        length=20 * _FT, measured_length=float(rng.uniform(19.5, 20.5)) * _FT,
                        weld_efficiency=0.85) for i in range(steel)]
-    specs += [_pvc(f"J{i + 1}", 12.75, 26, rng, i == n - 1) for i in range(steel, n)]
+    specs += [_pvc(f"J{i + 1}", 12.75, 21, rng, i == n - 1, length_ft=30.0)
+              for i in range(steel, n)]
     joints = rate_joints(specs)
+    settings = Settings(fill_density=mud, float_collar_positions=())
     full = float(running_loads(joints, hole, Closure()).string_load[-1])
     bore_area = math.pi / 4 * joints.bore[-1] ** 2
-    limit = full - mud * G * bore_area * 30 * _FT
-    settings = Settings(fill_density=mud, float_collar_positions=())
+    # empty column the collapse of the PVC allows, and one 5.5 joints shorter
+    longest = joints.collapse_rating[-1] / settings.design.collapse / (mud * G)
+    shortest = longest - 5.5 * 30 * _FT
+    limit = full - mud * G * bore_area * shortest
     return joints, hole, _rig(limit), settings, Closure(1)
 
 
 def plan_figure(family, n, repeat=5):
-    """``((median, fastest, slowest) [ms], what the plan did)``."""
+    """``((median, fastest, slowest) [ms], what the plan did)``.  Each timed
+    plan gets its own copy of the joints, as a new process or a re-plan in
+    the app does (no cached geometry from the call before)."""
+    import dataclasses
     from rigplan.engine.planner import plan_landing
-    case = family_case(family, n)
-    plan = plan_landing(*case)
-    times = timed(lambda: plan_landing(*case), repeat=repeat, warmup=0)
+    joints, *rest = family_case(family, n)
+    plan = plan_landing(joints, *rest)
+
+    def cold():
+        return plan_landing(dataclasses.replace(joints), *rest)
+
+    cpu0 = time.process_time()
+    times = timed(cold, repeat=repeat, warmup=0)
+    cpu = (time.process_time() - cpu0) / max(1, repeat)
     opt = plan.best_float
     detail = {"joints": n, "verdict": str(plan.verdict),
               "float_options": len(plan.float_options),
               "top_ups": len(opt.schedule.top_ups) if opt is not None else 0,
-              "staged_search": plan.stages is not None}
+              "staged_search": plan.stages is not None, "cpu_ms_mean": 1e3 * cpu}
     return tuple(1e3 * t for t in times), detail
 
 
@@ -440,9 +454,12 @@ def risk_figure(samples=100_000, repeat=3):
         return None, f"rigplan.engine.risk does not import ({err})"
     plan, specs = risk_case()
     result = exceedance(plan, specs, samples=samples, seed=1)
+    cpu0 = time.process_time()
     times = timed(lambda: exceedance(plan, specs, samples=samples, seed=1), repeat=repeat,
                   warmup=0)
+    cpu = (time.process_time() - cpu0) / max(1, repeat)
     summary = {"samples": samples, "joints": plan.joints.n, "verdict": str(plan.verdict),
+               "cpu_s_mean": cpu,
                **{f"p_{lim.name.replace(' ', '_')}": lim.probability for lim in result.limits}}
     return times, summary
 
@@ -480,8 +497,10 @@ def check_process_figure(fmt="json", joints=10000, repeat=3):
         cmd = [sys.executable, "-m", "rigplan", "check", str(plan), "--rig", "mw80",
                "--format", fmt]
         env = dict(os.environ, PYTHONPATH=str(_HERE.parent))
+        import resource
         times = []
         size = 0
+        cpu0 = resource.getrusage(resource.RUSAGE_CHILDREN)
         for _ in range(max(1, repeat)):
             t0 = time.perf_counter()
             out = subprocess.run(cmd, capture_output=True, env=env, timeout=600,
@@ -492,8 +511,10 @@ def check_process_figure(fmt="json", joints=10000, repeat=3):
                         or ["no output"])[-1]
                 return None, f"rigplan check failed: {last}"
             size = len(out.stdout)
+        cpu1 = resource.getrusage(resource.RUSAGE_CHILDREN)
+    cpu = (cpu1.ru_utime + cpu1.ru_stime - cpu0.ru_utime - cpu0.ru_stime) / max(1, repeat)
     return ((statistics.median(times), min(times), max(times)),
-            {"joints": joints, "bytes": size, "exit_code": out.returncode})
+            {"joints": joints, "bytes": size, "exit_code": out.returncode, "cpu_s_mean": cpu})
 
 
 # ---------------------------------------------------------------------------
