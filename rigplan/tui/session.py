@@ -27,7 +27,7 @@ from pathlib import Path
 from rigplan.errors import InputError
 from rigplan.files.formats.planfile import (DESIGN_FACTOR_MIN, FLUID_DENSITY_RANGE,
                                             design_factor_expected)
-from rigplan.files.job import apply_run_state, collar_label, length_warnings, load_job, plan_job, rated_joints
+from rigplan.files.job import apply_run_state, plan_as_run, collar_label, length_warnings, load_job, plan_job, rated_joints
 from rigplan.files.runlog import RunLog, RunLogLocked, log_path_for
 from rigplan.engine.stringmodel import CONNECTION_KINDS, JOINT_KINDS, StringPlan
 from rigplan.files import units as U
@@ -211,9 +211,8 @@ class JobSession:
             self.plan = apply_run_state(self.base_plan, self.state)
             self.length_warnings = length_warnings(self.plan)
             # Once a joint is in the hole the planned float equipment is
-            # installed: the planner must not move it.
-            self.landing = plan_job(self.plan, self.rig, self.path_name,
-                                    fixed_closure=bool(self.state.run))
+            # installed and a staged job stays staged (rigplan.files.job.plan_as_run).
+            self.landing = plan_as_run(self.base_plan, self.rig, self.state, self.path_name)
             self.error = ""
         except InputError as exc:
             self.landing = None
