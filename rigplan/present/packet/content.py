@@ -153,7 +153,7 @@ def crew_actions(landing, system: str) -> list:
         return acts
     opt = landing.best_float
     if landing.chosen.closure.is_open or opt is None or opt.schedule is None:
-        return ["run (fills from the hole)"] * n
+        return ["run"] * n
     m = opt.closure.valve_joint or 0
     sch = opt.schedule
     for k in range(n):
@@ -641,6 +641,8 @@ def _crew(ctx: Context) -> Section:
     opt = lp.best_float
     if opt is not None and (opt.closure.valve_joint or 0) > 0 and not lp.chosen.closure.is_open:
         legend.append("Shoe track: the joints below the float collar; they fill from the hole.")
+    if lp.chosen.closure.is_open:
+        legend.append("Open shoe: each joint fills from the hole; there is nothing to fill.")
     if lp.verdict not in (Verdict.LANDS_OPEN, Verdict.LANDS_FLOATED, Verdict.LANDS_STAGED):
         legend.insert(0, "DO NOT RUN: the string cannot be landed as planned"
                          + (" (a loaded part is unrated)" if lp.verdict == Verdict.CANNOT_CONFIRM else "")
