@@ -374,3 +374,34 @@ def test_fill_record_keeps_the_fill_already_run(tmp_path):
     # without the record the fluid the plan chose is kept (no switch mid-run)
     again = plan_as_run(changed, job.rig, state)
     assert again.best_float is None or again.best_float.fill_density in (rho_new, rho_before)
+
+
+def test_a_mud_weight_change_mid_run_keeps_the_fill_fluid(tmp_path):
+    # Fill fluids are compared only before the first joint (common practice,
+    # no source: the crew keeps the fluid it has rigged up); after a change
+    # of the hole fluid mid-run the fluid in the pipe and the fluid added
+    # stay the same, and the steps run keep their fill.
+    import dataclasses
+    from pathlib import Path
+    from rigplan.files.job import fill_record_of, load_job, plan_as_run
+    from rigplan.files.runlog import RunLog, log_path_for
+    root = Path(__file__).resolve().parents[1]
+    plan = tmp_path / "floated.toml"
+    plan.write_text((root / "strings" / "cv7-16in-floated.toml").read_text())
+    job = load_job(plan, root / "rigs" / "mw80.toml")
+    base = job.plan
+    k = 11
+    with RunLog(log_path_for(plan)) as log:
+        for j in base.running_joints()[:k]:
+            log.record_run(j.label, None)
+        state = log.state()
+    before = plan_as_run(base, job.rig, state)
+    record = fill_record_of(before, k)
+    heavier = dataclasses.replace(base, hole=dataclasses.replace(
+        base.hole, fluid_density=base.hole.fluid_density + 60.0))
+    after = plan_as_run(heavier, job.rig, state, fill_record=record)
+    assert after.best_float is not None
+    assert after.best_float.fill_density == before.best_float.fill_density
+    # the fill volumes of the steps run are the record's
+    assert_allclose(after.best_float.schedule.fill_volume[:k], record.volume, rtol=1e-9,
+                    atol=1e-12)

@@ -772,13 +772,16 @@ def fill_schedule(joints: JointArrays, hole: Hole, closure: Closure, fill_densit
 class FillRecord:
     """The fill already in the pipe: a fact of the run, SI.
 
-    density : density of the fluid the crew put in [kg/m^3]
+    density : density of the fluid the crew put in [kg/m^3] (of a column
+        of the same weight, when the pipe holds two fluids)
     volume : fill volume above the valve after each step already run
         (index k-1 = step k) [m^3]
+    in_use : the fluid the crew is adding now [kg/m^3] (nan: ``density``)
     """
 
     density: float
     volume: np.ndarray
+    in_use: float = float("nan")
 
     @property
     def steps(self) -> int:

@@ -306,7 +306,8 @@ def fill_record_of(landing, steps: int):
     # the schedule's own fluid: a column of the same weight (it differs from
     # the fluid shown when an earlier record held a heavier one)
     vol = np.asarray(opt.schedule.fill_volume, dtype=float)[:steps]
-    return FillRecord(float(opt.schedule.fill_density), np.nan_to_num(vol, nan=0.0).copy())
+    return FillRecord(float(opt.schedule.fill_density), np.nan_to_num(vol, nan=0.0).copy(),
+                      in_use=float(opt.fill_density))
 
 
 #: The plan as planned, before the first joint, by plan and rig: it fixes the
@@ -340,8 +341,9 @@ def plan_as_run(base: StringPlan, rig, state, path_name: str | None = None,
     * floated: the planned float equipment is installed, and the fill
       already in the pipe stays as it is.  ``fill_record`` is that fill
       (``rigplan.engine.floatplan.FillRecord``, e.g. kept from the plan
-      before a settings change): the later steps are planned with the fill
-      fluids the settings offer now.  Without it, the steps run received
+      before a settings change): the later steps are planned with the fluid
+      in use while the settings still offer it, else with the fill fluid
+      the settings name now.  Without it, the steps run received
       what the plan gives them, and the fluid the plan chose before the
       first joint is kept (no other fluid is offered mid-run).
     """
@@ -353,11 +355,24 @@ def plan_as_run(base: StringPlan, rig, state, path_name: str | None = None,
     if getattr(planned, "staged", False) and planned.stages is not None:
         return plan_job(plan, rig, path_name, staged_split=planned.stages.split)
     fluids = None
+    if fill_record is not None and fill_record.steps > k:
+        # joints undone since the record was kept: only those still in the hole
+        from rigplan.engine.floatplan import FillRecord
+        fill_record = FillRecord(fill_record.density, np.asarray(fill_record.volume)[:k],
+                                 fill_record.in_use)
     if fill_record is None:
         # the crew has been filling with the fluid the plan chose: keep it
         # (the pipe run so far holds it, full or as scheduled)
         opt = getattr(planned, "best_float", None)
         if opt is not None and not planned.chosen.closure.is_open:
             fluids = (float(opt.fill_density),)
+    else:
+        # fluids are compared only before the first joint: the fluid in use
+        # stays while the settings still offer it, else the one they name
+        s = plan.settings
+        offered = (s.fill_density,) + tuple(s.fill_density_alternatives)
+        in_use = fill_record.in_use if np.isfinite(fill_record.in_use) else fill_record.density
+        fluids = ((in_use,) if any(abs(in_use - r) < 1e-6 for r in offered)
+                  else (s.fill_density,))
     return plan_job(plan, rig, path_name, fixed_closure=True, fill_record=fill_record,
                     fill_fluids=fluids)
