@@ -91,18 +91,19 @@ def _load(args):
     plan = job.plan
     if getattr(args, "tally", None):
         plan = apply_tally_file(plan, args.tally)
-    fixed = False
+    state = None
     if getattr(args, "as_run", False):
         state = read_run_state(job.plan_path)
         if state is None:
             raise InputError(f"{job.plan_path}: --as-run", "no run log beside the plan: the "
                                                            "job has not been run in the app")
-        plan = apply_run_state(plan, state)
-        fixed = bool(state.run)
-    from rigplan.files.job import length_warnings
+    from rigplan.files.job import length_warnings, plan_as_run
+    base = plan
+    plan = apply_run_state(base, state)
     extra = [w for w in length_warnings(plan) if w not in job.warnings]
     job = dataclasses.replace(job, plan=plan, warnings=tuple(job.warnings) + tuple(extra))
-    landing = plan_job(plan, job.rig, job.path_name, fixed_closure=fixed)
+    # the plan as run: the kind of run and the fill already in the pipe are facts
+    landing = plan_as_run(base, job.rig, state, job.path_name)
     return job, landing
 
 

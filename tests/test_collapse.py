@@ -264,3 +264,12 @@ def test_timoshenko_round_pipe_is_the_lesser_limit(d, e_mod, nu):
     p_cr = 2 * e_mod / (1 - nu**2) / r**3
     p = cl.timoshenko(od, od / dt, y * psi, 0.0, e_mod, nu)
     assert_allclose(p, min(p_yield, p_cr), rtol=1e-9)
+
+
+def test_thermoplastic_sdr_follows_the_depth_limits_ratio():
+    # Code of Maryland Regulations 26.04.04.17, Table 1 (above): the depth limit
+    # falls by 1085 / 136 = 7.98 from SDR 13.5 to SDR 26.  The F480 form
+    # 1 / (SDR - 1)^3 falls by (25 / 12.5)^3 = 8.00; the variant
+    # 1 / [SDR (SDR - 1)^2] would fall by 7.70.
+    ratio = cl.thermoplastic_sdr(13.5, 400000 * psi, 0.38) / cl.thermoplastic_sdr(26, 400000 * psi, 0.38)
+    assert_allclose(ratio, 1085 / 136, rtol=0.005)

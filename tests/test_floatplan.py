@@ -318,3 +318,90 @@ def test_top_up_goes_in_before_the_joint_that_needs_it():
     carried, _ = _carried_heights(s, z, 0.0)
     assert np.all(carried[t:] >= lo[t:] - 1e-9)
     assert s.lowered_below_window == ()
+
+
+# ---------------------------------------------------------------------------
+# As run: the fluid already in the pipe is a fact of the run
+
+def test_fill_record_keeps_the_fill_already_run(tmp_path):
+    # The fill above a check valve rests on the pipe, so it adds its weight
+    # rho g V to the string load (pressure-area method, Bourgoyne et al.
+    # 1986, ch. 7).  After k joints filled with one fluid, a change of the
+    # fill fluid in the settings applies to the joints not yet run: the
+    # string loads of steps 1..k are those the run had (the same fluid
+    # weight), and the later steps are planned with the new fluid.  The run
+    # log is built here (rigplan.files.runlog).
+    import dataclasses
+    from pathlib import Path
+    from rigplan.files.job import fill_record_of, load_job, plan_as_run
+    from rigplan.files.runlog import RunLog, log_path_for
+    root = Path(__file__).resolve().parents[1]
+    plan = tmp_path / "floated.toml"
+    plan.write_text((root / "strings" / "cv7-16in-floated.toml").read_text())
+    job = load_job(plan, root / "rigs" / "mw80.toml")
+    base = job.plan
+    labels = [j.label for j in base.running_joints()]
+    k = 30
+    with RunLog(log_path_for(plan)) as log:
+        for label in labels[:k]:
+            log.record_run(label, None)
+        state = log.state()
+    before = plan_as_run(base, job.rig, state)
+    assert before.verdict == "lands with float plan"
+    rho_before = before.best_float.fill_density
+    # the settings change: the other fill fluid, no alternatives
+    rho_new = 998.2 if rho_before > 1100 else 1150.0
+    changed = dataclasses.replace(base, settings=dataclasses.replace(
+        base.settings, fill_density=rho_new, fill_density_alternatives=()))
+    record = fill_record_of(before, k)
+    assert record.steps == k and record.density == rho_before
+    after = plan_as_run(changed, job.rig, state, fill_record=record)
+    assert after.best_float.fill_density == rho_new
+    m = before.chosen.closure.valve_joint
+    assert m is not None and k > m
+    # steps already run: the same string load (the same fluid weight inside)
+    assert_allclose(after.chosen.loads.string_load[:k], before.chosen.loads.string_load[:k],
+                    rtol=1e-9)
+    # later steps: the empty string load plus the weight of the recorded
+    # fluid plus the weight of what is added, in the fluid added
+    sch = after.best_float.schedule
+    rho_m = sch.fill_density                       # the column modelled
+    assert rho_m == max(rho_before, rho_new)
+    empty = after.best_float.window.empty_string_load
+    weight = G * rho_m * np.asarray(sch.fill_volume)
+    assert_allclose(after.chosen.loads.string_load[k:], empty[k:] + weight[k:], rtol=1e-6)
+    assert np.all(weight[k:] >= G * rho_before * record.volume[-1] * (1 - 1e-9))
+    # without the record the fluid the plan chose is kept (no switch mid-run)
+    again = plan_as_run(changed, job.rig, state)
+    assert again.best_float is None or again.best_float.fill_density in (rho_new, rho_before)
+
+
+def test_a_mud_weight_change_mid_run_keeps_the_fill_fluid(tmp_path):
+    # Fill fluids are compared only before the first joint (common practice,
+    # no source: the crew keeps the fluid it has rigged up); after a change
+    # of the hole fluid mid-run the fluid in the pipe and the fluid added
+    # stay the same, and the steps run keep their fill.
+    import dataclasses
+    from pathlib import Path
+    from rigplan.files.job import fill_record_of, load_job, plan_as_run
+    from rigplan.files.runlog import RunLog, log_path_for
+    root = Path(__file__).resolve().parents[1]
+    plan = tmp_path / "floated.toml"
+    plan.write_text((root / "strings" / "cv7-16in-floated.toml").read_text())
+    job = load_job(plan, root / "rigs" / "mw80.toml")
+    base = job.plan
+    k = 11
+    with RunLog(log_path_for(plan)) as log:
+        for j in base.running_joints()[:k]:
+            log.record_run(j.label, None)
+        state = log.state()
+    before = plan_as_run(base, job.rig, state)
+    record = fill_record_of(before, k)
+    heavier = dataclasses.replace(base, hole=dataclasses.replace(
+        base.hole, fluid_density=base.hole.fluid_density + 60.0))
+    after = plan_as_run(heavier, job.rig, state, fill_record=record)
+    assert after.best_float is not None
+    assert after.best_float.fill_density == before.best_float.fill_density
+    # the fill volumes of the steps run are the record's
+    assert_allclose(after.best_float.schedule.fill_volume[:k], record.volume, rtol=1e-9,
+                    atol=1e-12)

@@ -151,3 +151,61 @@ def test_material_is_frozen_and_hashable():
     with pytest.raises(dataclasses.FrozenInstanceError):
         m.density = 1.0
     assert hash(m) == hash(get_material("a53b"))
+
+
+# PVC temperature derating factors for pressure ratings (Uni-Bell Handbook of
+# PVC Pipe, reprinted in PVC pipe makers' manuals; from memory).
+PVC_DERATING_F = [(73.4, 1.00), (80, 0.88), (90, 0.75), (100, 0.62), (110, 0.50), (120, 0.40),
+                  (130, 0.30), (140, 0.22)]
+
+
+@pytest.mark.parametrize("deg_f, factor", PVC_DERATING_F)
+def test_pvc_temperature_factors(deg_f, factor):
+    from rigplan.engine.materials import temperature_factor
+    assert_allclose(temperature_factor("pvc", (deg_f - 32) / 1.8), factor, atol=1e-12)
+
+
+def test_temperature_factor_between_and_beyond_the_table():
+    # Linear between the entries (common practice, no source), 1 below 73 F
+    # (nothing gained in the cold), unrated (nan) above 140 F, 1 without a table.
+    from rigplan.engine.materials import temperature_factor
+    assert_allclose(temperature_factor("pvc", (95 - 32) / 1.8), (0.75 + 0.62) / 2, atol=1e-12)
+    assert temperature_factor("pvc", 5.0) == 1.0
+    assert math.isnan(temperature_factor("pvc", (141 - 32) / 1.8))
+    assert temperature_factor("", 90.0) == 1.0
+
+
+def test_pvc_design_stress():
+    # PVC 1120 hydrostatic design stress 2,000 psi at 73.4 F (ASTM D2241 /
+    # D1785: HDB 4,000 psi x 0.5, from memory).
+    m = get_material("pvc")
+    assert_allclose(m.design_stress, 2000 * psi, rtol=1e-12)
+    assert m.temperature_derating == "pvc"
+    assert math.isnan(get_material("a53b").design_stress)
+    assert get_material("a53b").temperature_derating == ""
+
+
+def test_user_thermoplastic_with_design_stress_and_derating():
+    # A user file may give a thermoplastic its design stress and derating table;
+    # without a design stress its pressure rating is unrated, never assumed.
+    from rigplan.files.formats.materialfile import parse_materials
+    text = """units = "us"
+[[material]]
+key = "pvc_user"
+name = "PVC from a data sheet"
+family = "pvc"
+density = "1400 kg/m3"
+yield_strength = "7000 psi"
+youngs_modulus = "400000 psi"
+poisson = 0.38
+wall_under_tolerance = 0
+collapse_method = "thermoplastic"
+design_stress = "2000 psi"
+temperature_derating = "pvc"
+source = "data sheet"
+"""
+    m = parse_materials(text)[0]
+    assert_allclose(m.design_stress, 2000 * psi, rtol=1e-12)
+    assert m.temperature_derating == "pvc"
+    bare = parse_materials(text.replace('design_stress = "2000 psi"\n', ""))[0]
+    assert math.isnan(bare.design_stress)

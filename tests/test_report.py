@@ -140,6 +140,12 @@ def test_si_packet_on_a4_with_stages(tmp_path, capsys):
     assert "Stages and grouting" in text
     st = doc["stages"]
     assert f"joints 1-{st['split']} on the landing string" in text
+    # 154 joints on A4: the crew sheet still takes one page, the last
+    pages = [" ".join(p.extract_text().split()) for p in reader.pages]
+    crew = [i for i, t in enumerate(pages) if t.startswith("Crew sheet")
+            or " Crew sheet " in t[:200]]
+    assert crew == [len(pages) - 1]
+    assert f"{doc['steps'][-1]['label']} " in pages[-1]
     assert W.fmt(st["release_depth"], "length", "si", 1) in text
 
 

@@ -266,3 +266,62 @@ def test_stage1_on_bottom_is_checked_for_buckling():
     # joints 3..split (effective tension gradient = buoyed weight per metre)
     b = j.weight[0] * (1 - 1150.0 / STEEL)
     assert_allclose(lp.buckling.compression[2], b * (lp.stages.split - 2), rtol=1e-6)
+
+
+# ---------------------------------------------------------------------------
+# As run: a staged job stays staged once joints are in the hole
+
+def _staged_job(tmp_path):
+    """A string that lands only in stages on the bundled MW-80 rig: the
+    CV-9 layout without its screens (so stage 1 can stand on bottom)."""
+    from pathlib import Path
+    root = Path(__file__).resolve().parents[1]
+    text = (root / "strings" / "cv9-14in-staged.toml").read_text()
+    a = text.index('[[section]]\nkind = "screen"')
+    b = text.index("[[section]]", a + 5)
+    text = (text[:a] + text[b:]).replace("collar_joint = 4", "collar_joint = 3")
+    plan = tmp_path / "staged.toml"
+    plan.write_text(text)
+    return plan, root / "rigs" / "mw80.toml"
+
+
+def _check_as_run(capsys, plan, rig):
+    import json
+    from rigplan.cli import main
+    code = main(["check", str(plan), "--rig", str(rig), "--as-run", "--format", "json"])
+    return code, json.loads(capsys.readouterr().out)
+
+
+def test_staged_job_stays_staged_as_run(tmp_path, capsys):
+    # The run log is the site record (rigplan.files.runlog); once joints are
+    # in the hole a staged job is still planned in stages with the split
+    # planned before the first joint: stage 1 from the floor, lowered on the
+    # landing string and released, then stage 2 from the floor with the
+    # shoe kept at its landed depth.  Identities of the plan; no outside value.
+    from rigplan.files.job import load_job, plan_job
+    from rigplan.files.runlog import RunLog, log_path_for
+    plan, rig = _staged_job(tmp_path)
+    job = load_job(plan, rig)
+    fresh = plan_job(job.plan, job.rig)
+    assert fresh.verdict == "lands in stages" and fresh.staged
+    p = fresh.stages.split
+    labels = [j.label for j in job.plan.running_joints()]
+    with RunLog(log_path_for(plan)) as log:
+        log.record_run(labels[0], 6.2)                    # one joint, measured
+    code, doc = _check_as_run(capsys, plan, rig)
+    assert doc["verdict"] == "lands in stages" and code == 0
+    assert doc["stages"]["split"] == p
+    phases = [s["phase"] for s in doc["steps"]]
+    assert phases.index("lowering") == p and phases[-1] == "stage 2"
+    assert_allclose(doc["steps"][0]["shoe_depth"], 6.2, rtol=1e-12)   # the measured joint
+    # well into stage 2: still staged, same split, the shoe stays landed
+    with RunLog(log_path_for(plan)) as log:
+        for label in labels[1:p + 3]:
+            log.record_run(label, None)
+    code, doc = _check_as_run(capsys, plan, rig)
+    assert doc["verdict"] == "lands in stages" and doc["stages"]["split"] == p
+    s2 = [s for s in doc["steps"] if s["phase"] == "stage 2"]
+    total = doc["stages"]["shoe_depth"]
+    assert all(abs(s["shoe_depth"] - total) < 1e-9 for s in s2)
+    release = [s for s in doc["steps"] if s["phase"] == "lowering"][-1]
+    assert_allclose(release["bottom_depth"], total, rtol=1e-12)

@@ -83,7 +83,11 @@ def ellipticity_from_diameters(dmax, dmin):
     Notes
     -----
     Definition used by Timoshenko and Gere, *Theory of Elastic Stability*,
-    2nd ed. (1961), ch. 7, for the initial ovality ``w0 / R``.
+    2nd ed. (1961), ch. 7, for the initial ovality ``w0 / R``: an oval with
+    semi-axes ``R + w0`` and ``R - w0`` has ``Dmax - Dmin = 4 w0`` and
+    ``Dmax + Dmin = 4 R``.  The ovality ``(Dmax - Dmin) / Dmean`` quoted in
+    pipe specifications is twice this figure; give :func:`timoshenko` this
+    one.
 
     Examples
     --------
@@ -240,11 +244,16 @@ def thermoplastic_sdr(sdr, youngs_modulus, poisson):
     Elastic ring buckling (Timoshenko and Gere, *Theory of Elastic
     Stability*, 1961, ch. 7) written with ``SDR - 1`` as the mean diameter
     over wall; ASTM F480 (appendix on collapse, from memory) tabulates
-    casing collapse this way with E = 400,000 psi and nu = 0.38.  No
-    ovality, no yield limit, no temperature or duration derating: the
-    modulus of PVC falls with temperature (grout heat of hydration) and
-    with load duration, which the design factor or a derated modulus must
-    cover.  Valid for thin-walled casing (SDR 13.5 and above).
+    casing collapse this way with E = 400,000 psi and nu = 0.38.  A variant
+    in circulation writes ``1 / [SDR (SDR - 1)^2]`` (about 5 % lower at SDR
+    21); the ``(SDR - 1)^3`` form is the one a published table follows:
+    the Maryland depth limits for PVC casing by SDR (COMAR 26.04.04.17,
+    Table 1) fall by 7.98 from SDR 13.5 to SDR 26, as ``(SDR - 1)^3`` does
+    (8.00), not the variant (7.70).  No ovality and no yield limit.  Rated at
+    73.4 F / 23 C and short-term: the modulus of PVC falls with temperature
+    (grout heat of hydration) and with load duration; rigplan derates the
+    result by :func:`rigplan.engine.materials.temperature_factor`.  Valid
+    for thin-walled casing (SDR 13.5 and above).
 
     Examples
     --------
@@ -413,8 +422,9 @@ def api_5c3(od, wall, yield_strength):
     od : float or array_like
         Outside diameter [m].
     wall : float or array_like
-        Wall thickness [m], 0 < wall < od/2.  The API tables use the
-        specified wall; rigplan's ratings pass the minimum wall.
+        Wall thickness [m], 0 < wall < od/2: the specified wall.  The
+        constants were fitted to give minimum collapse values over the API
+        5CT wall tolerance, so the wall is not reduced first (API TR 5C3).
     yield_strength : float or array_like
         Minimum yield strength [Pa], 20 to 200 ksi; under axial stress pass
         :func:`axial_reduced_yield` instead.

@@ -94,7 +94,8 @@ def connection_capacity(connection_kind, body_yield, weld_efficiency=None, enter
     connection_kind : str
         One of :data:`rigplan.engine.stringmodel.CONNECTION_KINDS`.
     body_yield : float or array_like
-        Pipe-body yield (or the body rating) from the minimum wall [N].
+        Pipe-body rating [N] (by the material's convention: the specified
+        wall for API grades, the minimum or measured wall for other pipe).
     weld_efficiency : float, optional
         Butt-weld joint efficiency [-], 0 < eta <= 1.
     entered_rating : float or array_like, optional

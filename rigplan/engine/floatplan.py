@@ -586,9 +586,14 @@ def _evaluate(geo, table, sections, hole, fill_density, heights, throughs, full_
 def fill_schedule(joints: JointArrays, hole: Hole, closure: Closure, fill_density: float,
                   string_limit: float, min_running_weight: float = 0.0,
                   collapse_factor: float = 1.0, window: FillWindow | None = None,
-                  shares=(1.0, 0.95, 0.9, 0.85, 0.8, 0.7, 0.6, 0.5)) -> FillSchedule:
+                  shares=(1.0, 0.95, 0.9, 0.85, 0.8, 0.7, 0.6, 0.5),
+                  fixed_heights=None) -> FillSchedule:
     """Fill schedule with the fewest top-ups and, among those, the largest
     least margin.
+
+    ``fixed_heights`` [m above the shoe], when given, are the fill heights
+    of the steps already run (a fact of the run, from :func:`record_heights`):
+    the schedule keeps them and plans only the steps after them.
 
     Fill each joint to the top while the full string stays within every
     future step's window (the fluid cannot be taken out again), then stop.
@@ -632,7 +637,18 @@ def fill_schedule(joints: JointArrays, hole: Hole, closure: Closure, fill_densit
         target = xv + np.asarray(shares, dtype=float) * (shoe[longest - 1] - xv)
         throughs = [max(m + 1, min(longest, int(i)))
                     for i in np.searchsorted(shoe, target + tol, side="right")]
-    most = max(throughs, default=0)
+    fixed = None if fixed_heights is None else np.asarray(fixed_heights, dtype=float)[:n]
+    k0 = 0 if fixed is None else len(fixed)
+    reported = None
+    if k0:
+        # Steps already run are facts: still filling to the top if the pipe
+        # is full now, else filling stopped at the last full step.
+        full = fixed >= shoe[:k0] - tol
+        full_now = bool(full[-1]) and k0 > m
+        throughs = [(max(t, k0) if longest > k0 else k0) if full_now else k0 for t in throughs]
+        not_full = np.flatnonzero(~full[m:])
+        reported = k0 if len(not_full) == 0 else m + int(not_full[0])
+    most = max(throughs, default=0) if not k0 else 0
     full_col = _collapse_utilization(geo, sections, hole, fill_density, np.arange(most),
                                      (shoe - shoe)[:most])
     # The top-up search below steps from one top-up to the next (a few per
@@ -645,6 +661,10 @@ def fill_schedule(joints: JointArrays, hole: Hole, closure: Closure, fill_densit
         s = float(shoe[through - 1]) if through > 0 else xv
         if through > 0 and through <= m:
             s = xv
+        if k0:
+            heights[:k0] = fixed
+            if through <= k0:
+                s = max(float(fixed[-1]), xv)
         tops = []
         failure_step, failure = 0, None
         k = through
@@ -699,7 +719,7 @@ def fill_schedule(joints: JointArrays, hole: Hole, closure: Closure, fill_densit
     throughs = throughs[:len(candidates)]
     level, vol, load, capm, col, wm, least, at = _evaluate(
         geo, table, sections, hole, fill_density, np.stack([c[0] for c in candidates]),
-        throughs, full_col, string_limit, window.weight_floor, window.empty_string_load,
+        [0] * len(candidates) if k0 else throughs, full_col, string_limit, window.weight_floor, window.empty_string_load,
         window.hold_height)
     # The best: feasible, then the fewest top-ups, then the largest least
     # margin (to 4 decimals); the first tried on a tie.
@@ -732,7 +752,8 @@ def fill_schedule(joints: JointArrays, hole: Hole, closure: Closure, fill_densit
         & ~(by_weight & (carried >= carry_max - tol))
     return FillSchedule(
         fill_density=fill_density,
-        fill_to_top_through=through if through > m else 0, top_ups=top_ups,
+        fill_to_top_through=(reported if reported is not None and through <= k0 else through)
+        if through > m else 0, top_ups=top_ups,
         lowered_below_window=tuple(int(k) + 1 for k in np.flatnonzero(short)),
         fill_level=np.where(np.arange(n) >= m, level[b], np.nan),
         fill_volume=np.where(np.arange(n) >= m, vol[b], 0.0),
@@ -742,6 +763,54 @@ def fill_schedule(joints: JointArrays, hole: Hole, closure: Closure, fill_densit
         feasible=failure_step == 0, failure_step=failure_step, failure=failure,
         added_volume=float(vol[b, -1] if n else 0.0),
     )
+
+
+@dataclass(frozen=True)
+class FillRecord:
+    """The fill already in the pipe: a fact of the run, SI.
+
+    density : density of the fluid the crew put in [kg/m^3] (of a column
+        of the same weight, when the pipe holds two fluids)
+    volume : fill volume above the valve after each step already run
+        (index k-1 = step k) [m^3]
+    in_use : the fluid the crew is adding now [kg/m^3] (nan: ``density``)
+    """
+
+    density: float
+    volume: np.ndarray
+    in_use: float = float("nan")
+
+    @property
+    def steps(self) -> int:
+        return len(self.volume)
+
+
+def record_heights(joints: JointArrays, closure: Closure, record: FillRecord,
+                   fill_density: float) -> np.ndarray:
+    """Fill heights above the shoe [m] of the steps in ``record``, as a
+    column of ``fill_density`` of the same weight.
+
+    The fill above a check valve rests on the pipe, so its weight is all it
+    adds to the string load (``rigplan.engine.axial``):
+    ``rho_r g V_r = rho_f g V_eq`` gives ``V_eq = V_r rho_r / rho_f``, and
+    the height is where the bore holds ``V_eq`` above the valve.  With the
+    same fluid this is the recorded column itself; with another fluid the
+    hook load and the pressure at the valve are those of the recorded
+    fluid (for a uniform bore), the pressure along the column in between
+    is that of the equivalent column (an approximation).  A column that
+    would stand above the pipe's top is cut at the top (an understatement:
+    see the code).
+    """
+    geo = string_geometry(joints, closure)
+    knots, vols = _bore_volume_table(geo)
+    v_valve = float(np.interp(geo.valve_height, knots, vols))
+    ratio = record.density / fill_density if fill_density > 0 else 1.0
+    v_eq = np.asarray(record.volume, dtype=float)[:len(geo.top)] * ratio
+    height = np.interp(v_valve + np.maximum(v_eq, 0.0), vols, knots)
+    # a heavier recorded fluid, as a lighter column, may stand above the
+    # pipe's top: it is counted to the top only (the hook load is then
+    # understated by at most (rho_r - rho_f) g times the part above)
+    return np.minimum(height, geo.top[:len(height)])
 
 
 def switch_point(string_load: np.ndarray, string_limit: float) -> int:

@@ -36,11 +36,11 @@ from rigplan.engine.buckling import BucklingCheck, check_buckling
 from rigplan.engine.axial import (RunningLoads, StepProfile, neutral_point_depth, running_loads,
                                   step_profile)
 from rigplan.engine.findings import Finding, Kind, Limit, LimitName, Severity, Verdict
-from rigplan.engine.floatplan import (EmptyRun, FillSchedule, FillWindow, empty_run, fill_schedule,
-                                      fill_window, switch_point)
+from rigplan.engine.floatplan import (EmptyRun, FillRecord, FillSchedule, FillWindow, empty_run,
+                                      fill_schedule, fill_window, record_heights, switch_point)
 from rigplan.engine.grouting import GroutPlan
 from rigplan.engine.hoisting import HoistPath, PathCapacity, Rig, path_capacity
-from rigplan.engine.staging import StagedPlan, plan_two_stages
+from rigplan.engine.staging import StagedPlan, plan_two_stages, staged_plan_at
 from rigplan.engine.stringmodel import Closure, GroutSpec, Hole, JointArrays, Settings
 from rigplan.engine.rating import PERFORATED_KINDS
 
@@ -328,8 +328,13 @@ def _float_closures(n: int, planned: Closure, settings: Settings, top_screen: in
 
 
 def try_float(joints: JointArrays, hole: Hole, closure: Closure, fill_density: float,
-              string_limit: float, settings: Settings, dead_load: float = 0.0) -> FloatOption:
+              string_limit: float, settings: Settings, dead_load: float = 0.0,
+              record: FillRecord | None = None) -> FloatOption:
     """Fill window, schedule and full check for one valve position and fluid.
+
+    ``record``: the fill already in the pipe for the steps run (a fact of
+    the run); the schedule keeps it and plans the later steps with
+    ``fill_density`` (:func:`rigplan.engine.floatplan.record_heights`).
 
     The schedule keeps the hook side in its window by construction; the
     full pressure-area run then checks every connection and joint.  A
@@ -345,15 +350,30 @@ def try_float(joints: JointArrays, hole: Hole, closure: Closure, fill_density: f
             closure, fill_density, None, None, None, False,
             Finding(PlanCode.SCREEN_ABOVE_VALVE, Severity.REASON, joint=top_screen,
                     label=joints.label[top_screen - 1]))
+    # With a recorded fill of another fluid, the pipe holds two layers.  They
+    # are modelled as one column of the heavier fluid of the same weight
+    # (record_heights): exact for the hook load and the pressure at the
+    # valve, and lower inside pressure above it than the two layers (the
+    # collapse load is overstated, never understated); it always fits in
+    # the pipe.  Volumes added are then stated in the fluid added.
+    shown = fill_density
+    if record is not None and record.steps and record.density > fill_density:
+        fill_density = record.density
     for _ in range(5):
         window = fill_window(joints, hole, closure, fill_density, limit,
                              settings.min_running_weight, d.collapse)
         schedule = fill_schedule(joints, hole, closure, fill_density, limit,
-                                 settings.min_running_weight, d.collapse, window=window)
+                                 settings.min_running_weight, d.collapse, window=window,
+                                 fixed_heights=None if record is None or not record.steps else
+                                 record_heights(joints, closure, record, fill_density))
+        if shown != fill_density and schedule.top_ups:
+            schedule = dataclasses.replace(schedule, top_ups=tuple(
+                dataclasses.replace(t, volume=t.volume * fill_density / shown)
+                for t in schedule.top_ups))
         empty = empty_run(joints, hole, closure, fill_density, settings.min_running_weight,
                           d.collapse, window=window)
         if not schedule.feasible:
-            return FloatOption(closure, fill_density, window, schedule, None, False,
+            return FloatOption(closure, shown, window, schedule, None, False,
                                schedule.failure, empty)
         loads = running_loads(joints, hole, closure, fill_density,
                               np.nan_to_num(schedule.fill_level, nan=0.0))
@@ -381,7 +401,7 @@ def try_float(joints: JointArrays, hole: Hole, closure: Closure, fill_density: f
                        step=k + 1, label=joints.label[k])
         check = dataclasses.replace(check, limits=check.limits + (weight,),
                                     ok=check.ok and weight.margin >= -MARGIN_TOLERANCE)
-    return FloatOption(closure, fill_density, window, schedule, check, check.ok,
+    return FloatOption(closure, shown, window, schedule, check, check.ok,
                        None if check.ok else over_limit(_governing(check)), empty)
 
 
@@ -447,6 +467,9 @@ class PlanInputs:
     capacity: PathCapacity
     dead_load: float
     open_loads: RunningLoads
+    fill_record: FillRecord | None = None     # the fill already in the pipe (as run)
+    fill_fluids: tuple | None = None          # the fill fluids to offer (None: the settings')
+    staged_split: int | None = None           # a staged run with this split (as run)
 
     @property
     def limit(self) -> float:
@@ -456,6 +479,8 @@ class PlanInputs:
     @property
     def fluids(self) -> tuple:
         """The fill fluid densities offered, the job's own first [kg/m^3]."""
+        if self.fill_fluids is not None:
+            return tuple(self.fill_fluids)
         s = self.settings
         return (s.fill_density,) + tuple(s.fill_density_alternatives)
 
@@ -545,7 +570,7 @@ def try_planned_float(inp: PlanInputs, trial: Trial) -> Trial:
     if inp.closure.is_open:
         return trial
     planned = tuple(try_float(inp.joints, inp.hole, inp.closure, rho, inp.limit, inp.settings,
-                              inp.dead_load) for rho in inp.fluids)
+                              inp.dead_load, inp.fill_record) for rho in inp.fluids)
     trial = dataclasses.replace(trial, options=trial.options + planned)
     failures = option_failures(planned, planned=True)
     landed = land_floated(trial, planned)
@@ -592,11 +617,19 @@ def try_stages(inp: PlanInputs, trial: Trial) -> Trial:
     ls = inp.rig.landing_string
     if ls is None:
         return trial.add(Finding(PlanCode.NO_LANDING_STRING, Severity.REASON))
-    stages = plan_two_stages(inp.joints, inp.hole, inp.limit, ls.weight_per_length,
-                             ls.tensile_rating, ls.density, inp.settings.design.tension,
-                             inp.open_loads, dead_load=inp.dead_load,
-                             joint_length=ls.joint_length,
-                             set_down_weight=inp.settings.set_down_weight)
+    if inp.staged_split is not None and 1 <= inp.staged_split < inp.joints.n:
+        # as run: the split is the one the crew has been running to
+        stages = staged_plan_at(inp.joints, inp.hole, inp.staged_split, inp.limit,
+                                ls.weight_per_length, ls.tensile_rating, ls.density,
+                                inp.settings.design.tension, dead_load=inp.dead_load,
+                                joint_length=ls.joint_length,
+                                set_down_weight=inp.settings.set_down_weight)
+    else:
+        stages = plan_two_stages(inp.joints, inp.hole, inp.limit, ls.weight_per_length,
+                                 ls.tensile_rating, ls.density, inp.settings.design.tension,
+                                 inp.open_loads, dead_load=inp.dead_load,
+                                 joint_length=ls.joint_length,
+                                 set_down_weight=inp.settings.set_down_weight)
     if not stages.feasible:
         return trial.add(Finding(PlanCode.STAGED_FAILS, Severity.REASON, cause=stages.reason),
                          stages=stages)
@@ -766,7 +799,9 @@ def plan_grouting(inp: PlanInputs, grout: GroutSpec | None) -> GroutPlan | None:
 
 def plan_landing(joints: JointArrays, hole: Hole, rig: Rig, settings: Settings,
                  closure: Closure = Closure(), path: str | None = None,
-                 grout: GroutSpec | None = None, fixed_closure: bool = False) -> LandingPlan:
+                 grout: GroutSpec | None = None, fixed_closure: bool = False,
+                 fill_record: FillRecord | None = None, fill_fluids: tuple | None = None,
+                 staged_split: int | None = None) -> LandingPlan:
     """Plan how to land a string with a rig and check every limit.
 
     Parameters
@@ -780,15 +815,28 @@ def plan_landing(joints: JointArrays, hole: Hole, rig: Rig, settings: Settings,
     grout : GroutSpec     annular grout to check after landing
     fixed_closure : bool  the planned float equipment is already in the hole
         (joints have been run): try no other position and no staging
+    fill_record : FillRecord  the fill already in the pipe for the steps run
+        (as run, floated): kept as it is; later steps are planned with the
+        fill fluids offered
+    fill_fluids : tuple   the fill fluid densities to offer [kg/m^3] (None:
+        the settings' own and alternatives)
+    staged_split : int    as run in stages: stage 1 is joints 1..split, no
+        float equipment, nothing else tried
     """
     cap, hoist = choose_path(rig, path)
     inp = PlanInputs(joints, hole, rig, settings, closure, fixed_closure, cap, hoist.dead_load,
-                     running_loads(joints, hole, Closure()))
+                     running_loads(joints, hole, Closure()), fill_record, fill_fluids,
+                     staged_split)
     trial = check_open(inp)
+    if staged_split is not None:
+        # as run in stages: no float equipment was installed, nothing else is tried
+        inp = dataclasses.replace(inp, closure=Closure())
+        trial = dataclasses.replace(trial, verdict=None)
     open_check = trial.chosen
-    trial = try_planned_float(inp, trial)
-    trial = try_open(inp, trial, open_check)
-    trial = try_other_floats(inp, trial)
+    if staged_split is None:
+        trial = try_planned_float(inp, trial)
+        trial = try_open(inp, trial, open_check)
+        trial = try_other_floats(inp, trial)
     trial = try_stages(inp, trial)
     trial = cannot_land(trial)
     trial = check_hole_depth(inp, trial)

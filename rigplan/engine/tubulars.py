@@ -277,7 +277,8 @@ def body_yield(od, wall, yield_strength):
     od : float or array_like
         Outside diameter [m].
     wall : float or array_like
-        Wall thickness [m], 0 < wall < od/2 (the minimum wall for ratings).
+        Wall thickness [m], 0 < wall < od/2: the specified wall for API
+        grades, the minimum or measured wall for other steel.
     yield_strength : float or array_like
         Specified minimum yield strength [Pa], > 0.
 
@@ -289,7 +290,8 @@ def body_yield(od, wall, yield_strength):
     Notes
     -----
     API TR 5C3 (ISO 10400) pipe-body yield, ``0.7854 (D^2 - d^2) Y``; the
-    API tables use the specified wall, rigplan's ratings use the minimum wall.
+    API tables use the specified wall, as rigplan does for API grades; other
+    steel is rated on the minimum wall its standard allows (12.5 % under).
 
     Examples
     --------

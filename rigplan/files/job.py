@@ -12,6 +12,8 @@ import enum
 from dataclasses import dataclass
 from pathlib import Path
 
+import numpy as np
+
 from rigplan.errors import InputError
 from rigplan.engine.findings import Finding, Kind, Severity, Verdict
 from rigplan.engine.stringmodel import JointSpec, StringPlan
@@ -262,11 +264,14 @@ def rated_joints(plan: StringPlan):
 
 
 def plan_job(plan: StringPlan, rig, path_name: str | None = None,
-             fixed_closure: bool = False):
+             fixed_closure: bool = False, fill_record=None, fill_fluids=None,
+             staged_split: int | None = None):
     """Rate the string and plan its landing (``rigplan.engine.planner.LandingPlan``).
 
     ``fixed_closure``: joints are in the hole, so the planned float
-    equipment is installed and no other position is tried.
+    equipment is installed and no other position is tried.  ``fill_record``,
+    ``fill_fluids`` and ``staged_split``: the run so far (see
+    :func:`plan_as_run`).
     """
     from rigplan.engine.planner import plan_landing
     joints = rated_joints(plan)
@@ -277,8 +282,97 @@ def plan_job(plan: StringPlan, rig, path_name: str | None = None,
                          f"below the top (1..{joints.n - 1}), got {closure.valve_joint}")
     try:
         return plan_landing(joints, plan.hole, rig, plan.settings, closure=closure,
-                            path=path_name, grout=plan.grout, fixed_closure=fixed_closure)
+                            path=path_name, grout=plan.grout, fixed_closure=fixed_closure,
+                            fill_record=fill_record, fill_fluids=fill_fluids,
+                            staged_split=staged_split)
     except InputError:
         raise
     except ValueError as err:
         raise InputError(plan.source or plan.name, str(err)) from None
+
+
+# ---------------------------------------------------------------------------
+# the plan as run
+
+
+def fill_record_of(landing, steps: int):
+    """The fill in the pipe after each of the first ``steps`` steps of a
+    floated plan (``rigplan.engine.floatplan.FillRecord``), or None when the
+    plan is not floated: what the crew put in while following it."""
+    from rigplan.engine.floatplan import FillRecord
+    opt = getattr(landing, "best_float", None)
+    if opt is None or opt.schedule is None or steps <= 0 or landing.chosen.closure.is_open:
+        return None
+    # the schedule's own fluid: a column of the same weight (it differs from
+    # the fluid shown when an earlier record held a heavier one)
+    vol = np.asarray(opt.schedule.fill_volume, dtype=float)[:steps]
+    return FillRecord(float(opt.schedule.fill_density), np.nan_to_num(vol, nan=0.0).copy(),
+                      in_use=float(opt.fill_density))
+
+
+#: The plan as planned, before the first joint, by plan and rig: it fixes the
+#: kind of run (floated or staged) and what the steps already run received.
+_AS_PLANNED: dict = {}
+
+
+def _as_planned(base: StringPlan, rig, path_name):
+    key = (id(base), id(rig), path_name)
+    hit = _AS_PLANNED.get(key)
+    if hit is None or hit[0] is not base or hit[1] is not rig:
+        if len(_AS_PLANNED) > 16:
+            _AS_PLANNED.clear()
+        hit = (base, rig, plan_job(base, rig, path_name))
+        _AS_PLANNED[key] = hit
+    return hit[2]
+
+
+def plan_as_run(base: StringPlan, rig, state, path_name: str | None = None,
+                fill_record=None):
+    """The landing plan as run so far: the plan with the run log applied.
+
+    ``base`` is the plan as written (no run log); ``state`` the run log's
+    :class:`rigplan.files.runlog.RunState` (None or empty: nothing run).
+    Once joints are in the hole the kind of run is a fact:
+
+    * planned in stages (before the first joint): it stays staged, with the
+      split planned then; stage 1 runs from the floor, is lowered on the
+      landing string and released, stage 2 runs from the floor and the shoe
+      stays at its landed depth;
+    * floated: the planned float equipment is installed, and the fill
+      already in the pipe stays as it is.  ``fill_record`` is that fill
+      (``rigplan.engine.floatplan.FillRecord``, e.g. kept from the plan
+      before a settings change): the later steps are planned with the fluid
+      in use while the settings still offer it, else with the fill fluid
+      the settings name now.  Without it, the steps run received
+      what the plan gives them, and the fluid the plan chose before the
+      first joint is kept (no other fluid is offered mid-run).
+    """
+    plan = apply_run_state(base, state)
+    k = len(state.run) if state is not None else 0
+    if k == 0:
+        return plan_job(plan, rig, path_name)
+    planned = _as_planned(base, rig, path_name)
+    if getattr(planned, "staged", False) and planned.stages is not None:
+        return plan_job(plan, rig, path_name, staged_split=planned.stages.split)
+    fluids = None
+    if fill_record is not None and fill_record.steps > k:
+        # joints undone since the record was kept: only those still in the hole
+        from rigplan.engine.floatplan import FillRecord
+        fill_record = FillRecord(fill_record.density, np.asarray(fill_record.volume)[:k],
+                                 fill_record.in_use)
+    if fill_record is None:
+        # the crew has been filling with the fluid the plan chose: keep it
+        # (the pipe run so far holds it, full or as scheduled)
+        opt = getattr(planned, "best_float", None)
+        if opt is not None and not planned.chosen.closure.is_open:
+            fluids = (float(opt.fill_density),)
+    else:
+        # fluids are compared only before the first joint: the fluid in use
+        # stays while the settings still offer it, else the one they name
+        s = plan.settings
+        offered = (s.fill_density,) + tuple(s.fill_density_alternatives)
+        in_use = fill_record.in_use if np.isfinite(fill_record.in_use) else fill_record.density
+        fluids = ((in_use,) if any(abs(in_use - r) < 1e-6 for r in offered)
+                  else (s.fill_density,))
+    return plan_job(plan, rig, path_name, fixed_closure=True, fill_record=fill_record,
+                    fill_fluids=fluids)

@@ -27,7 +27,7 @@ from pathlib import Path
 from rigplan.errors import InputError
 from rigplan.files.formats.planfile import (DESIGN_FACTOR_MIN, FLUID_DENSITY_RANGE,
                                             design_factor_expected)
-from rigplan.files.job import apply_run_state, collar_label, length_warnings, load_job, plan_job, rated_joints
+from rigplan.files.job import apply_run_state, plan_as_run, collar_label, length_warnings, load_job, plan_job, rated_joints
 from rigplan.files.runlog import RunLog, RunLogLocked, log_path_for
 from rigplan.engine.stringmodel import CONNECTION_KINDS, JOINT_KINDS, StringPlan
 from rigplan.files import units as U
@@ -166,6 +166,8 @@ class JobSession:
         self.plan: StringPlan = self.base_plan
         self.landing = None
         self.error = ""
+        # the fill already in the pipe, kept when a setting changes mid-run
+        self.fill_record = None
         self.length_warnings = []
         self.recompute()
 
@@ -211,9 +213,9 @@ class JobSession:
             self.plan = apply_run_state(self.base_plan, self.state)
             self.length_warnings = length_warnings(self.plan)
             # Once a joint is in the hole the planned float equipment is
-            # installed: the planner must not move it.
-            self.landing = plan_job(self.plan, self.rig, self.path_name,
-                                    fixed_closure=bool(self.state.run))
+            # installed and a staged job stays staged (rigplan.files.job.plan_as_run).
+            self.landing = plan_as_run(self.base_plan, self.rig, self.state, self.path_name,
+                                       fill_record=self.fill_record)
             self.error = ""
         except InputError as exc:
             self.landing = None
@@ -252,8 +254,17 @@ class JobSession:
             self.landing.path.path if self.landing is not None else names[0])
         i = names.index(current) if current in names else -1
         self.path_name = names[(i + 1) % len(names)]
+        self.keep_fill_run()
         self.recompute()
         return self.path_name
+
+    def keep_fill_run(self) -> None:
+        """Before a setting changes mid-run: the fill already in the pipe is
+        a fact; keep it so the change applies to the joints not yet run."""
+        k = len(self.state.run)
+        if k and self.landing is not None:
+            from rigplan.files.job import fill_record_of
+            self.fill_record = fill_record_of(self.landing, k) or self.fill_record
 
     def toggle_units(self) -> str:
         self.units = "si" if self.units == "us" else "us"
@@ -621,12 +632,14 @@ class JobSession:
         from rigplan.files.job import resolve_rig
         path = resolve_rig(text.strip(), self.plan_path)
         rig = read_rig(path)
+        self.keep_fill_run()
         self.rig, self.rig_path, self.path_name = rig, Path(path), None
         self.recompute()
         return rig.name
 
     def apply_plan(self, plan: StringPlan) -> None:
         """Use an edited base plan (from :meth:`edited_plan` or the joint edits)."""
+        self.keep_fill_run()
         self.base_plan = plan
         self.dirty = True
         self.recompute()

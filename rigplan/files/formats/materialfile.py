@@ -16,6 +16,11 @@ Schema (version 1; bare numbers in the file's ``units`` system, default
     poisson = 0.29                   # [-] or "unknown"
     wall_under_tolerance = "12.5 %"  # [-], 0 <= u < 1, required
     collapse_method = "timoshenko"   # timoshenko | api_5c3 | thermoplastic | entered
+    design_stress = "13.8 MPa"       # thermoplastics: hydrostatic design stress for the
+                                     # pressure rating 2 S / (SDR - 1); optional, absent =
+                                     # unknown (pressure rating unrated)
+    temperature_derating = "pvc"     # derating table for pressure and collapse ratings
+                                     # above 73 F: "pvc" or absent (none)
     source = "maker's data sheet ..."   # where the values come from (required
                                         # unless every value has its own below)
     replace = false                  # true: replace a material with this key
@@ -36,9 +41,9 @@ from rigplan.files.formats import Table, check_version, file_system, parse_toml_
 TOP_KEYS = ("version", "units", "material")
 MATERIAL_KEYS = ("key", "name", "family", "density", "yield_strength", "youngs_modulus",
                  "poisson", "wall_under_tolerance", "collapse_method", "source", "sources",
-                 "replace")
+                 "replace", "design_stress", "temperature_derating")
 _SOURCE_FIELDS = ("density", "yield_strength", "youngs_modulus", "poisson",
-                  "wall_under_tolerance", "collapse_method")
+                  "wall_under_tolerance", "collapse_method", "design_stress")
 UNKNOWN = "unknown"
 
 
@@ -55,7 +60,7 @@ def _maybe_unknown(t: Table, key: str, kind: str):
 
 def materials_from_data(data: dict, source: str) -> list:
     """Materials defined in a parsed file (not registered)."""
-    from rigplan.engine.materials import COLLAPSE_METHODS, FAMILIES, Material
+    from rigplan.engine.materials import COLLAPSE_METHODS, FAMILIES, TEMPERATURE_DERATING, Material
 
     check_version(data, source)
     system = file_system(data, source)
@@ -78,6 +83,10 @@ def materials_from_data(data: dict, source: str) -> list:
             "youngs_modulus": _maybe_unknown(t, "youngs_modulus", "stress"),
             "poisson": _maybe_unknown(t, "poisson", "dimensionless"),
         }
+        if "design_stress" in t:
+            values["design_stress"] = _maybe_unknown(t, "design_stress", "stress")
+        values["temperature_derating"] = t.choice("temperature_derating",
+                                                  tuple(TEMPERATURE_DERATING), default="")
         nu = values["poisson"]
         if not math.isnan(nu) and not 0.0 <= nu < 0.5:
             raise InputError(t.where("poisson"), f"expected a Poisson ratio 0 <= nu < 0.5, got "
@@ -94,6 +103,8 @@ def materials_from_data(data: dict, source: str) -> list:
         st = t.table("sources", _SOURCE_FIELDS)
         sources = {}
         for f in _SOURCE_FIELDS:
+            if f == "design_stress" and "design_stress" not in t:
+                continue
             own = st.text(f, default="").strip() if st is not None else ""
             text = own or general
             if not text:

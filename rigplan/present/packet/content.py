@@ -148,12 +148,12 @@ def crew_actions(landing, system: str) -> list:
     acts = ["run, no fill"] * n
     if landing.verdict == Verdict.LANDS_STAGED and landing.stages is not None:
         p = landing.stages.split
-        acts = [f"stage 1" for _ in range(p)] + ["stage 2"] * (n - p)
-        acts[p - 1] = "stage 1: land it, release"
+        acts = ["stage 1"] * p + ["stage 2"] * (n - p)
+        acts[p - 1] = "stage 1: release"
         return acts
     opt = landing.best_float
     if landing.chosen.closure.is_open or opt is None or opt.schedule is None:
-        return ["run (fills from the hole)"] * n
+        return ["run"] * n
     m = opt.closure.valve_joint or 0
     sch = opt.schedule
     for k in range(n):
@@ -218,6 +218,11 @@ def _cover(ctx: Context) -> Section:
         ("Date", info.date or "not given"),
         ("Units", "US field units" if W.primary(ctx.system) == "us" else "SI units"),
     ]
+    if ctx.as_run is not None:
+        st = ctx.as_run.state
+        items.append(("Record of the run", f"included: {len(st.run)} of "
+                                           f"{ctx.as_run.landing.joints.n} joints in the hole, "
+                                           f"{len(st.rejected)} set aside"))
     sec.blocks.append(Facts("", tuple(items)))
     if lp.reasons or lp.unrated:
         head = "Options set aside: " if lp.lands else "Why it cannot be confirmed: " \
@@ -636,6 +641,8 @@ def _crew(ctx: Context) -> Section:
     opt = lp.best_float
     if opt is not None and (opt.closure.valve_joint or 0) > 0 and not lp.chosen.closure.is_open:
         legend.append("Shoe track: the joints below the float collar; they fill from the hole.")
+    if lp.chosen.closure.is_open:
+        legend.append("Open shoe: each joint fills from the hole; there is nothing to fill.")
     if lp.verdict not in (Verdict.LANDS_OPEN, Verdict.LANDS_FLOATED, Verdict.LANDS_STAGED):
         legend.insert(0, "DO NOT RUN: the string cannot be landed as planned"
                          + (" (a loaded part is unrated)" if lp.verdict == Verdict.CANNOT_CONFIRM else "")
@@ -657,6 +664,17 @@ def _as_run(ctx: Context) -> Section:
     ar = ctx.as_run
     sec = Section("as_run", "Record of the run")
     state = ar.state
+    n_run = len(state.run)
+    n_all = ar.landing.joints.n
+    g = ar.landing.governing
+    sec.blocks.append(Facts("", (
+        ("Joints in the hole", f"{n_run} of {n_all}" + (" (landed)" if n_run >= n_all else "")),
+        ("Set aside", str(len(state.rejected))),
+        ("Weight readings", str(len(state.observations))),
+        ("Verdict of the plan as run", W.verdict_text(ar.landing)),
+        ("Governing limit as run", "none found" if g is None else
+         f"{g.name} at {W.limit_place(g)}, margin {W.percent(g.margin)}"),
+    )))
     order = {label: i + 1 for i, (label, _) in enumerate(state.run)}
     measured = dict(state.run)
     rows = []
@@ -709,8 +727,7 @@ def _as_run(ctx: Context) -> Section:
                             key="readings"))
     # landed depths
     planned = well_schematic(ar.planned, None)
-    done = len(state.run)
-    asrun = well_schematic(ar.landing, done if done else None)
+    asrun = well_schematic(ar.landing, None)
     drows = []
     for kind in ("shoe", "float collar", "float shoe"):
         a, b = planned.mark(kind), asrun.mark(kind)
@@ -728,8 +745,9 @@ def _as_run(ctx: Context) -> Section:
             drows.append((f"{a.label} {end}", ctx.n(va, "length", 2),
                           "" if vb is None else ctx.n(vb, "length", 2),
                           "" if vb is None else ctx.n(vb - va, "length", 2)))
-    sec.blocks.append(Table(f"Landed depths against the plan ({done} of {ar.landing.joints.n} "
-                            "joints in the hole)",
+    landed_words = ("as landed" if n_run >= n_all else
+                    "as they will land: lengths measured so far, planned lengths for the rest")
+    sec.blocks.append(Table(f"Landed depths against the plan ({landed_words})",
                             ("item", ctx.head("planned", "length"), ctx.head("as run", "length"),
                              ctx.head("difference", "length")),
                             tuple(drows), "lrrr", (5, 2, 2, 2), key="landed"))

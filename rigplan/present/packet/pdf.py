@@ -189,7 +189,6 @@ def _table(block, st, width, pad_v: float = 1.5):
 
 
 def _tab(block: Tab, st, width) -> list:
-    out = []
     title = [_p(block.title, st["h2"])] if block.title else []
     t = _table(block, st, width)
     note = [_p(block.note, st["small"])] if block.note else []
