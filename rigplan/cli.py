@@ -136,12 +136,15 @@ def cmd_check(args) -> int:
     job, landing = _load(args)
     from rigplan.cli_rack import liner_of
     liner = liner_of(job, landing)
+    code = _exit_for(landing)
+    if liner is not None and not liner.assessment.fit.fits:
+        code = EXIT_LIMIT          # the liner does not pass the old casing
     if args.format == "json":
         doc = plan_dict(landing, job.plan, job.warnings, job.rig.name)
         if liner is not None:
             from rigplan.present.rack import liner_dict
             doc["liner"] = {k: v for k, v in liner_dict(liner, {}).items() if k != "plan"}
-        doc["exit_code"] = _exit_for(landing)
+        doc["exit_code"] = code
         json.dump(doc, sys.stdout, indent=1, allow_nan=False)
         sys.stdout.write("\n")
     else:
@@ -159,9 +162,7 @@ def cmd_check(args) -> int:
             # rich ends the process this way when the reader of a pipe (such
             # as `| head`) has gone: the verdict still decides the exit code
             pass
-    if liner is not None and not liner.assessment.fit.fits:
-        return EXIT_LIMIT
-    return _exit_for(landing)
+    return code
 
 
 def _weigh(args, plan_override=None):

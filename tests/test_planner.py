@@ -25,7 +25,8 @@ def j55_string(n=40):
 def test_api_collapse_rating_reduced_for_axial_tension():
     # API TR 5C3 (ISO/TR 10400), collapse under axial stress: use
     # Ypa = Y [sqrt(1 - 0.75 (Sa/Y)^2) - 0.5 Sa/Y] in the collapse formulas,
-    # Sa = axial tension / steel area of the rating (minimum) wall.  The
+    # Sa = axial tension / steel area of the rating wall (the specified wall
+    # for API grades, API TR 5C3).  The
     # tension is taken independently from the step profile at the step where
     # each joint's collapse load peaks.
     j = j55_string()

@@ -34,7 +34,11 @@ def old_casing_from_spec(spec):
     Old casing that is not gauged is rated on the minimum wall its standard
     allows (specified wall less the material's under-tolerance, 12.5 % for
     ASTM A53), as for any non-API steel; corrosion since it was set can make
-    the real wall thinner still (a caution the output repeats).
+    the real wall thinner still (a caution the output repeats).  An API-grade
+    old casing is rated the same way: the API TR 5C3 formulas describe new
+    pipe within its roundness tolerance and take no ellipticity, while the
+    log measures how oval the old casing has become, which Timoshenko's
+    formula takes in; the minimum wall stands in for the unknown corrosion.
     """
     from rigplan.engine.liner import OldCasing
     from rigplan.engine.materials import LIBRARY
