@@ -325,3 +325,24 @@ def test_staged_job_stays_staged_as_run(tmp_path, capsys):
     assert all(abs(s["shoe_depth"] - total) < 1e-9 for s in s2)
     release = [s for s in doc["steps"] if s["phase"] == "lowering"][-1]
     assert_allclose(release["bottom_depth"], total, rtol=1e-12)
+
+
+def test_staged_split_stays_at_its_joint_when_one_is_set_aside(tmp_path, capsys):
+    # A joint set aside on site leaves the running order one shorter: the
+    # top of stage 1 is still the same joint (by its label), as the crew was
+    # told.  Rule of the project (one name per joint); no outside value.
+    from rigplan.files.job import load_job, plan_job
+    from rigplan.files.runlog import RunLog, log_path_for
+    plan, rig = _staged_job(tmp_path)
+    job = load_job(plan, rig)
+    fresh = plan_job(job.plan, job.rig)
+    p = fresh.stages.split
+    labels = [j.label for j in job.plan.running_joints()]
+    with RunLog(log_path_for(plan)) as log:
+        log.record_run(labels[0], None)
+        log.reject(labels[1], "dented")
+    code, doc = _check_as_run(capsys, plan, rig)
+    assert doc["verdict"] == "lands in stages"
+    assert doc["stages"]["split"] == p - 1
+    release = [s for s in doc["steps"] if s["phase"] == "lowering"][-1]
+    assert release["label"] == labels[p - 1]

@@ -353,7 +353,13 @@ def plan_as_run(base: StringPlan, rig, state, path_name: str | None = None,
         return plan_job(plan, rig, path_name)
     planned = _as_planned(base, rig, path_name)
     if getattr(planned, "staged", False) and planned.stages is not None:
-        return plan_job(plan, rig, path_name, staged_split=planned.stages.split)
+        # the split stays at the same joint (by label) when joints were set aside
+        split = planned.stages.split
+        top = base.running_joints()[split - 1].label
+        labels = [j.label for j in plan.running_joints()]
+        if top in labels:
+            split = labels.index(top) + 1
+        return plan_job(plan, rig, path_name, staged_split=split)
     fluids = None
     if fill_record is not None and fill_record.steps > k:
         # joints undone since the record was kept: only those still in the hole
