@@ -297,6 +297,81 @@ def reference_running_loads(joints, hole, closure, fill_density, fill_level):
     }
 
 
+def tight_running_loads(joints, hole, closure, fill_density, fill_level):
+    """The running loads by a tight, straightforward loop: the baseline a
+    careful programmer writes without numpy.
+
+    Same results and conventions as :func:`reference_running_loads` (the
+    pressure-area sum of the module docstring, ``dP`` at each joint's
+    bottom, top and fill surface), but written to be quick in pure Python:
+    inputs as lists once, the pressures inline (no function calls), each
+    step's forces summed from the bottom joint up in one pass that also
+    updates the envelopes, effective tension only at the string top.  Still
+    one pass over the hanging joints per step: O(N^2) for N joints.
+    """
+    n, _lengths, weights, outer, inner, tops, valve, levels = _prepare(
+        joints, hole, closure, fill_level)
+    g = G
+    rho_o = float(hole.fluid_density)
+    lvl_o = float(hole.fluid_level)
+    rho_f = float(fill_density)
+    # joint j (0-based) holds hole fluid when the shoe is open or it is in
+    # the shoe track below a float collar
+    hole_side = [valve is None or (valve >= 1 and j + 1 <= valve) for j in range(n)]
+    env_max = [-math.inf] * n
+    env_step = [0] * n
+    env_min = [math.inf] * n
+    collapse_max = [-math.inf] * n
+    shoe_depth = []
+    string_load = []
+    effective_top = []
+    for k in range(n):
+        shoe = tops[k + 1]
+        h = levels[k]
+        f = 0.0
+        p_low = 0.0           # inside pressure just below the current face
+        ao_low = ai_low = 0.0
+        for j in range(k + 1):
+            z_bot = shoe - tops[j]
+            z_top = shoe - tops[j + 1]
+            po = rho_o * g * (z_bot - lvl_o) if z_bot > lvl_o else 0.0
+            if hole_side[j]:
+                pi = po
+            else:
+                pi = rho_f * g * (z_bot - h) if z_bot > h else 0.0
+            ao, ai = outer[j], inner[j]
+            f += weights[j] + po * (ao_low - ao) + pi * ai - p_low * ai_low
+            if f > env_max[j]:
+                env_max[j] = f
+                env_step[j] = k + 1
+            if f < env_min[j]:
+                env_min[j] = f
+            po_top = rho_o * g * (z_top - lvl_o) if z_top > lvl_o else 0.0
+            if hole_side[j]:
+                pi_top = po_top
+            else:
+                pi_top = rho_f * g * (z_top - h) if z_top > h else 0.0
+            dp = po - pi
+            if po_top - pi_top > dp:
+                dp = po_top - pi_top
+            if not hole_side[j] and z_top < h < z_bot:
+                dp_surface = rho_o * g * (h - lvl_o) if h > lvl_o else 0.0
+                if dp_surface > dp:
+                    dp = dp_surface
+            if dp > collapse_max[j]:
+                collapse_max[j] = dp
+            # the inside pressure at this joint's top acts on the next face
+            # from below (the same fluid column continues up the bore)
+            p_low = pi_top
+            ao_low, ai_low = ao, ai
+        shoe_depth.append(shoe)
+        string_load.append(f)
+        effective_top.append(f + (po_top * outer[k] - pi_top * inner[k]))
+    return {"shoe_depth": shoe_depth, "string_load": string_load,
+            "envelope_max": env_max, "envelope_step": env_step, "envelope_min": env_min,
+            "collapse_max": collapse_max, "effective_top": effective_top}
+
+
 # ---------------------------------------------------------------------------
 # The previous vectorized engine: interfaces x steps
 # ---------------------------------------------------------------------------

@@ -54,6 +54,9 @@ def _parser() -> argparse.ArgumentParser:
     c.add_argument("--format", choices=("text", "json"), default="text")
     c.add_argument("--brief", action="store_true",
                    help="text: show only the first and last steps and the summary")
+    c.add_argument("--full", action="store_true",
+                   help="text: every step and joint of a long string (by default a string of "
+                        "more than 60 joints shows the first and last 20 and the most loaded)")
     o = sub.add_parser("open", help="open the terminal app on a job")
     job_args(o)
     r = sub.add_parser("report", help="write the job packet (PDF, HTML, Markdown, CSV or JSON)")
@@ -80,6 +83,8 @@ def _parser() -> argparse.ArgumentParser:
     sub.add_parser("rigs", help="list the bundled rig profiles and their hoisting paths")
     from rigplan.cli_rack import add_commands
     add_commands(sub, job_args)
+    from rigplan.cli_risk import add_commands as add_risk
+    add_risk(sub, job_args)
     return p
 
 
@@ -145,13 +150,14 @@ def cmd_check(args) -> int:
             from rigplan.present.rack import liner_dict
             doc["liner"] = {k: v for k, v in liner_dict(liner, {}).items() if k != "plan"}
         doc["exit_code"] = code
-        json.dump(doc, sys.stdout, indent=1, allow_nan=False)
-        sys.stdout.write("\n")
+        # compact and in one piece: a long string's JSON is megabytes
+        sys.stdout.write(json.dumps(doc, allow_nan=False, separators=(",", ":")) + "\n")
     else:
         console = _console()
         try:
             for r in text_renderables(landing, job.plan, _system(args), job.warnings, job.rig.name,
-                                      all_steps=not args.brief):
+                                      all_steps=True if args.full else
+                                      False if args.brief else None):
                 console.print(r)
             if liner is not None:
                 from rigplan.present.rack import liner_lines
@@ -365,6 +371,9 @@ def main(argv=None) -> int:
         if args.command in ("place", "liner"):
             from rigplan import cli_rack
             return getattr(cli_rack, f"cmd_{args.command}")(args, _load)
+        if args.command == "risk":
+            from rigplan.cli_risk import cmd_risk
+            return cmd_risk(args, _load)
         return {"check": cmd_check, "open": cmd_open, "report": cmd_report,
                 "demo": cmd_demo, "rigs": cmd_rigs}[args.command](args)
     except InputError as err:

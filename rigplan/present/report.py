@@ -26,6 +26,23 @@ def _f(x):
     return x if math.isfinite(x) else None
 
 
+def _col(values) -> list:
+    """A numpy column as a JSON-ready list: floats, None where not finite."""
+    a = np.asarray(values, dtype=float)
+    out = a.tolist()
+    bad = ~np.isfinite(a)
+    if bad.any():
+        for i in np.flatnonzero(bad).tolist():
+            out[i] = None
+    return out
+
+
+def _records(**columns) -> list:
+    """One dict per row from equal-length columns (lists or numpy arrays)."""
+    keys = list(columns)
+    return [dict(zip(keys, row)) for row in zip(*columns.values())]
+
+
 def _texts_and_codes(findings, unrated=()):
     lines = W.finding_lines(findings, "si", unrated)
     return [t for _, t in lines], [c for c, _ in lines]
@@ -44,12 +61,11 @@ def plan_dict(landing, plan=None, warnings=(), rig_name: str = "") -> dict:
     hook_limit = landing.path.hook_limit
     hook = landing.hook_load
     fill_level = loads.fill_level if not chk.closure.is_open else np.full(n, np.nan)
-    steps = [{
-        "joint": k + 1, "label": j.label[k], "shoe_depth": _f(loads.shoe_depth[k]),
-        "hook_load": _f(hook[k]), "string_load": _f(loads.string_load[k]),
-        "hook_limit": _f(hook_limit), "margin": _f(chk.capacity_margin[k]),
-        "fill_level": _f(fill_level[k]),
-    } for k in range(n)]
+    number = list(range(1, n + 1))
+    steps = _records(
+        joint=number, label=j.label, shoe_depth=_col(loads.shoe_depth), hook_load=_col(hook),
+        string_load=_col(loads.string_load), hook_limit=[_f(hook_limit)] * n,
+        margin=_col(chk.capacity_margin), fill_level=_col(fill_level))
     shoe = loads.shoe_depth[-1]
     top_depth = shoe - np.cumsum(j.length)
     landed = landing.landed
@@ -59,31 +75,30 @@ def plan_dict(landing, plan=None, warnings=(), rig_name: str = "") -> dict:
     unrated, unrated_codes = _texts_and_codes(landing.unrated)
     tcap = np.where(np.isnan(j.connection_rating) | np.isnan(j.body_rating), np.nan,
                     np.fmin(j.connection_rating, j.body_rating))
-    connections = [{
-        "joint": i + 1, "label": j.label[i], "depth": _f(top_depth[i]),
-        "max_true_tension": _f(loads.envelope_max[i]), "step": int(loads.envelope_step[i]),
-        "min_true_force": _f(loads.envelope_min[i]),
-        "capacity": _f(tcap[i]), "connection_rating": _f(j.connection_rating[i]),
-        "body_rating": _f(j.body_rating[i]),
-        "utilization": _f(chk.tension_utilization[i]),
-        "landed_true_force": _f(landed.true_force_top[i]),
-        "landed_effective_tension": _f(landed.effective_top[i]),
-    } for i in range(n)]
-    joints = [{
-        "joint": i + 1, "label": j.label[i], "kind": j.kind[i],
-        "length": _f(j.length[i]), "od": _f(j.od[i]), "bore": _f(j.bore[i]),
-        "weight": _f(j.weight[i]),
-        "collapse_rating": _f(j.collapse_rating[i]),
-        "collapse_rating_under_load": _f(chk.collapse_rating[i])
-        if chk.collapse_rating is not None else _f(j.collapse_rating[i]),
-        "collapse_method": j.collapse_method[i] if j.collapse_method else "",
-        "max_collapse_load": _f(loads.collapse_max[i]),
-        "collapse_utilization": _f(chk.collapse_utilization[i]),
-        "burst_rating": _f(j.burst_rating[i]), "max_burst_load": _f(loads.burst_max[i]),
-        "burst_utilization": _f(chk.burst_utilization[i]),
-        "rating_basis": _rating_basis(j, i),
-        "rating_flags": [str(f.code) for f in j.findings if f.joint == i + 1],
-    } for i in range(n)]
+    flags = {}
+    for f in j.findings:
+        flags.setdefault(f.joint, []).append(str(f.code))
+    connections = _records(
+        joint=number, label=j.label, depth=_col(top_depth),
+        max_true_tension=_col(loads.envelope_max),
+        step=np.asarray(loads.envelope_step, dtype=int).tolist(),
+        min_true_force=_col(loads.envelope_min), capacity=_col(tcap),
+        connection_rating=_col(j.connection_rating), body_rating=_col(j.body_rating),
+        utilization=_col(chk.tension_utilization),
+        landed_true_force=_col(landed.true_force_top),
+        landed_effective_tension=_col(landed.effective_top))
+    joints = _records(
+        joint=number, label=j.label, kind=j.kind, length=_col(j.length), od=_col(j.od),
+        bore=_col(j.bore), weight=_col(j.weight), collapse_rating=_col(j.collapse_rating),
+        collapse_rating_under_load=_col(j.collapse_rating if chk.collapse_rating is None
+                                        else chk.collapse_rating),
+        collapse_method=list(j.collapse_method) if j.collapse_method else [""] * n,
+        max_collapse_load=_col(loads.collapse_max),
+        collapse_utilization=_col(chk.collapse_utilization),
+        burst_rating=_col(j.burst_rating), max_burst_load=_col(loads.burst_max),
+        burst_utilization=_col(chk.burst_utilization),
+        rating_basis=[_rating_basis(j, i) for i in range(n)],
+        rating_flags=[flags.get(i + 1, []) for i in range(n)])
     gov = landing.governing
     out = {
         "verdict": str(landing.verdict),
@@ -120,13 +135,15 @@ def plan_dict(landing, plan=None, warnings=(), rig_name: str = "") -> dict:
         carried = np.concatenate(([0.0], opt.schedule.fill_volume[:-1]))
         add_lo = np.maximum(w.min_volume - carried, 0.0)
         add_hi = w.max_volume - carried
-        out["fill_window"] = [{
-            "volume_to_add_min": _f(add_lo[k]), "volume_to_add_max": _f(add_hi[k]),
-            "joint": int(w.joint[k]), "min_fill_level": _f(w.min_fill_level[k]),
-            "max_fill_level": _f(w.max_fill_level[k]), "min_volume": _f(w.min_volume[k]),
-            "max_volume": _f(w.max_volume[k]), "closing_limit": str(w.closing_limit[k]),
-            "empty_limit": str(w.empty_limit[k]), "full_limit": str(w.full_limit[k]),
-            "feasible": bool(w.feasible[k])} for k in range(n)]
+        out["fill_window"] = _records(
+            volume_to_add_min=_col(add_lo), volume_to_add_max=_col(add_hi),
+            joint=np.asarray(w.joint, dtype=int).tolist(),
+            min_fill_level=_col(w.min_fill_level), max_fill_level=_col(w.max_fill_level),
+            min_volume=_col(w.min_volume), max_volume=_col(w.max_volume),
+            closing_limit=[str(x) for x in w.closing_limit],
+            empty_limit=[str(x) for x in w.empty_limit],
+            full_limit=[str(x) for x in w.full_limit],
+            feasible=np.asarray(w.feasible, dtype=bool).tolist())
         s = opt.schedule
         out["fill_schedule"] = {
             "closure": closure_name(opt.closure, landing.joints.label), "valve_joint": opt.closure.valve_joint,
@@ -138,12 +155,11 @@ def plan_dict(landing, plan=None, warnings=(), rig_name: str = "") -> dict:
             "lowered_below_window": list(s.lowered_below_window),
             "least_margin": _f(s.least_margin), "least_margin_step": s.least_margin_step,
             "final_fill_volume": _f(s.added_volume),
-            "steps": [{"joint": k + 1, "fill_level": _f(s.fill_level[k]),
-                       "fill_volume": _f(s.fill_volume[k]),
-                       "hook_load": _f(s.string_load[k] + landing.dead_load),
-                       "capacity_margin": _f(s.capacity_margin[k]),
-                       "collapse_utilization": _f(s.collapse_utilization[k])}
-                      for k in range(n)],
+            "steps": _records(joint=number, fill_level=_col(s.fill_level),
+                              fill_volume=_col(s.fill_volume),
+                              hook_load=_col(s.string_load + landing.dead_load),
+                              capacity_margin=_col(s.capacity_margin),
+                              collapse_utilization=_col(s.collapse_utilization)),
         }
     for o in landing.float_options:
         out["float_options"].append({
@@ -362,6 +378,39 @@ def _q(value, kind, system, digits=None):
     return W.fmt(value, kind, system, digits, missing="unrated")
 
 
+#: Tables longer than this are summarized in text unless every row is asked for.
+LONG_TABLE = 60
+
+
+def _table_rows(n: int, all_steps, most_loaded) -> list:
+    """Row indices of a per-step or per-joint table, ``None`` where rows are
+    left out.  ``all_steps``: True every row; False the first and last 10;
+    None every row up to :data:`LONG_TABLE`, else the first and last 20 and
+    the 10 most loaded (``most_loaded``: indices, most loaded first)."""
+    if all_steps or n <= (20 if all_steps is False else LONG_TABLE):
+        return list(range(n))
+    edge = 10 if all_steps is False else 20
+    keep = set(range(edge)) | set(range(n - edge, n))
+    if all_steps is None:
+        keep |= {int(i) for i in most_loaded[:10]}
+    rows, last = [], -1
+    for i in sorted(keep):
+        if i > last + 1:
+            rows.append(None)
+        rows.append(i)
+        last = i
+    return rows
+
+
+def _gap_row(table, all_steps, columns: int) -> tuple:
+    """The row that stands for rows left out; says so under the table."""
+    note = ("long table: the first and last 20 rows and the 10 most loaded shown; "
+            "--full shows every row" if all_steps is None else "first and last 10 rows shown")
+    if note not in (table.caption or ""):
+        table.caption = note if not table.caption else f"{table.caption}\n{note}"
+    return ("...",) * columns
+
+
 def _staged_step_table(landing, system: str, all_steps: bool = True):
     """The running steps of a staged plan: stage 1 from the floor, the
     lowering on the landing string to the release, stage 2 from the floor."""
@@ -405,8 +454,12 @@ def _staged_step_table(landing, system: str, all_steps: bool = True):
 
 
 def text_renderables(landing, plan=None, system: str = "us", warnings=(), rig_name="",
-                     all_steps: bool = True):
-    """A list of rich renderables for ``rigplan check`` and the printed plan."""
+                     all_steps: bool | None = True):
+    """A list of rich renderables for ``rigplan check`` and the printed plan.
+
+    ``all_steps``: True shows every step and joint; False the first and last
+    10; None every row of a short string and a summary of a long one
+    (:func:`_table_rows`)."""
     from rich.table import Table
     from rich.text import Text
     from rich.panel import Panel
@@ -532,8 +585,11 @@ def text_renderables(landing, plan=None, system: str = "us", warnings=(), rig_na
         out.append(_staged_step_table(landing, system, all_steps))
         rows = ()
     else:
-        rows = range(n) if all_steps or n <= 40 else list(range(10)) + list(range(n - 10, n))
+        rows = _table_rows(n, all_steps, np.argsort(chk.capacity_margin, kind="stable"))
     for k in rows:
+        if k is None:
+            st_t.add_row(*_gap_row(st_t, all_steps, 7))
+            continue
         fl = "-" if chk.closure.is_open or not np.isfinite(loads.fill_level[k]) else \
             _q(loads.fill_level[k], "length", system, 1)
         m = chk.capacity_margin[k]
@@ -557,7 +613,12 @@ def text_renderables(landing, plan=None, system: str = "us", warnings=(), rig_na
     for c in ("joint", "kind", "max tension", "tension", "collapse load", "collapse rating",
               "rated on", "collapse", "burst"):
         jt.add_column(c, justify="right")
-    for i in range(n):
+    worst = np.fmax(np.fmax(tu, chk.collapse_utilization), chk.burst_utilization)
+    for i in _table_rows(n, all_steps, np.argsort(-np.nan_to_num(worst, nan=-np.inf),
+                                                   kind="stable")):
+        if i is None:
+            jt.add_row(*_gap_row(jt, all_steps, 8))
+            continue
         jt.add_row(f"{i + 1} {j.label[i]}", j.kind[i],
                    _q(loads.envelope_max[i], "force", system, 0), _pct(tu[i]),
                    _q(loads.collapse_max[i], "pressure", system, 0),
