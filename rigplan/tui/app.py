@@ -615,17 +615,37 @@ class RigplanApp(App):
 
 
 def build_app(plan_path, rig_path, path_name: str | None = None, units: str = "us",
-              **session_options) -> RigplanApp:
+              tally=None, **session_options) -> RigplanApp:
     """The app for a plan and a rig (raises InputError for bad files).
 
+    ``tally``: a tally CSV applied at once (not saved), as ``t`` does.
     ``session_options`` go to :class:`JobSession` (``band_fraction``,
     ``band_force``).
     """
     session = JobSession(Path(plan_path), rig_path, path_name=path_name, units=units,
                          **session_options)
+    if tally is not None:
+        try:
+            session.import_tally(Path(tally).resolve())
+        except BaseException:
+            session.close()
+            raise
     return RigplanApp(session)
 
 
-def run_app(plan_path, rig_path, path_name: str | None = None, units: str = "us") -> None:
-    """Open the terminal app on a plan and a rig and run it until the user quits."""
-    build_app(plan_path, rig_path, path_name=path_name, units=units).run()
+def run_app(plan_path, rig_path, path_name: str | None = None, units: str = "us",
+            tally=None) -> None:
+    """Open the terminal app on a plan and a rig and run it until the user quits.
+
+    A damaged run log is never changed: the app first offers to set it aside
+    (renamed, kept) and start a new one; refused, the error stands (one line).
+    """
+    from rigplan.files.runlog import RunLogDamaged
+    from rigplan.tui.dialogs import DamagedLogApp
+    try:
+        app = build_app(plan_path, rig_path, path_name=path_name, units=units, tally=tally)
+    except RunLogDamaged as exc:
+        if DamagedLogApp(exc).run() is None:
+            raise
+        app = build_app(plan_path, rig_path, path_name=path_name, units=units, tally=tally)
+    app.run()
