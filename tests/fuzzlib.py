@@ -784,6 +784,14 @@ def fuzz_prompts(n: int, seed: int) -> Stats:
                 attempt(stats, f"setting {key} = {text!r}",
                         lambda: session.edited_setting(key, text),
                         names=("job setting", key, str(plan)), oracle=plan_problems)
+            elif r < 0.80:
+                text = quantity_text(rng) if rng.random() < 0.8 else rng.choice(
+                    ("", "1e300 lbf", "-5", "nan", "50000", "5e7 N", "1e7"))
+
+                def reading_oracle(v):
+                    return [] if ranges.RANGES["force"].contains(v) else [f"reading {v!r}"]
+                attempt(stats, f"reading {text!r}", lambda: session.reading_value(text),
+                        names=("weight reading",), oracle=reading_oracle)
             elif r < 0.85:
                 text = rng.choice((quantity_text(rng), f"{rng.uniform(-5, 120):.3g} %",
                                    f"{rng.uniform(-1, 2):.3g}", "nan %", "inf", "1e400 %"))
@@ -1021,6 +1029,7 @@ def fuzz_cli(n: int, seed: int) -> Stats:
     work = scratch_dir("fuzz-cli-")
     pool = CliPool(rng, work)
     stats = Stats("command line")
+    exits = {}
     try:
         with app_stubbed():
             for _ in range(n):
@@ -1030,6 +1039,7 @@ def fuzz_cli(n: int, seed: int) -> Stats:
 
                 def run():
                     code, out, err = run_cli(argv)
+                    exits[code] = exits.get(code, 0) + 1
                     return code, out, err
 
                 def oracle(res):
@@ -1052,6 +1062,9 @@ def fuzz_cli(n: int, seed: int) -> Stats:
                         o.unlink()
     finally:
         shutil.rmtree(work, ignore_errors=True)
+    # exit 2 is a refusal (its one line is judged by the oracle)
+    stats.refused += exits.get(2, 0)
+    stats.accepted -= exits.get(2, 0)
     return stats
 
 

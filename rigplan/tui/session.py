@@ -399,6 +399,7 @@ class JobSession:
         value = U.parse(t, "force", unit, where)
         if value < 0:
             raise InputError(where, f"a hook load cannot be below zero, got {t!r}")
+        ranges.check("force", value, where, t, self.units)
         top = self.hook_rating()
         if math.isfinite(top) and value > top:
             raise InputError(where, f"{P.fmt(value, 'force', self.units)} is above the rig's "
