@@ -362,6 +362,7 @@ class RunLog:
         self._lock_fd = None
         self.read_only = bool(read_only or snapshot)
         self._snapshot = bool(snapshot)
+        self._events = []
         self._has_basis = True
         self._data_version = None
         where = str(self.path)
@@ -576,6 +577,7 @@ class RunLog:
     def _upgrade(self, conn: sqlite3.Connection) -> None:
         """Bring a version-1 log to version 2 (adds a column and a trigger;
         no entry is changed).  Readers of either version keep working."""
+        self._events = []
         if conn.execute("PRAGMA user_version").fetchone()[0] >= SCHEMA_VERSION:
             self._has_basis = True
             return
@@ -789,20 +791,25 @@ class RunLog:
 
     def events(self) -> list:
         """Every event in the order recorded (RunLogDamaged when the file
-        cannot be read back)."""
+        cannot be read back).
+
+        The log is append-only, so only the events after the last one read
+        are fetched (a re-read after each entry costs one row, not all)."""
         cols = _COLUMNS if self._has_basis else _COLUMNS_V1
         with self._lock:
+            last = self._events[-1].id if self._events else 0
             try:
                 rows = self._connection().execute(
-                    f"SELECT {cols} FROM events ORDER BY id").fetchall()
+                    f"SELECT {cols} FROM events WHERE id > ? ORDER BY id", (last,)).fetchall()
             except sqlite3.DatabaseError as exc:
                 raise RunLogDamaged(self.path, _one_line(exc)) from None
             except UnicodeDecodeError as exc:
                 raise RunLogDamaged(self.path, f"text that is not UTF-8 ({exc.reason})") from None
-        events = [_event(r) for r in rows]
-        for e in events:
-            _check_event(e, self.path)
-        return events
+            new = [_event(r) for r in rows]
+            for e in new:
+                _check_event(e, self.path)
+            self._events.extend(new)
+            return list(self._events)
 
     def state(self) -> RunState:
         """Replay the log into the present state of the run."""
@@ -815,6 +822,8 @@ class RunLog:
             conn = self._connection()
             if not self._has_basis:
                 self._has_basis = _has_column(conn, "events", "basis")
+                if self._has_basis:
+                    self._events = []       # re-read with the basis column
             v = conn.execute("PRAGMA data_version").fetchone()[0]
         changed = v != self._data_version
         self._data_version = v

@@ -758,13 +758,19 @@ class JobSession:
         run (measured lengths, joints set aside) against the plan as written
         and TD (:func:`rigplan.engine.landing.landing_picture`)."""
         from rigplan.engine.landing import landing_picture
+        key = (id(self.base_plan), id(self.plan))
+        cached = getattr(self, "_picture", None)
+        if cached is not None and cached[0] == key:
+            return cached[1]
         planned = self.base_plan.running_joints()
         run = self.plan.running_joints()
-        return landing_picture(
+        picture = landing_picture(
             [j.label for j in planned], [j.length for j in planned],
             [j.kind == "screen" for j in planned], self.base_plan.closure.valve_joint,
             [j.label for j in run], [j.run_length for j in run], self.plan.closure.valve_joint,
             self.base_plan.hole.depth, self.base_plan.settings.screen_depth_tolerance)
+        self._picture = (key, picture, self.base_plan, self.plan)   # plans kept: ids stay theirs
+        return picture
 
     def engine_index(self) -> dict:
         """label -> index into the landing plan's per-joint arrays (running joints)."""
