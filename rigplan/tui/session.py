@@ -399,12 +399,12 @@ class JobSession:
         value = U.parse(t, "force", unit, where)
         if value < 0:
             raise InputError(where, f"a hook load cannot be below zero, got {t!r}")
-        ranges.check("force", value, where, t, self.units)
         top = self.hook_rating()
         if math.isfinite(top) and value > top:
             raise InputError(where, f"{P.fmt(value, 'force', self.units)} is above the rig's "
                                     f"hook rating ({P.fmt(top, 'force', self.units)}): "
                                     "check the indicator and the units")
+        ranges.check("force", value, where, t, self.units)    # a rig rated nowhere
         return value
 
     def observe(self, hook_load_n: float, note: str = "") -> tuple:
