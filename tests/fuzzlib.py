@@ -1075,7 +1075,7 @@ def fuzz_cli(n: int, seed: int) -> Stats:
                     for name, digest in before.items():
                         if (work / name).absolute() in outputs:
                             continue
-                        if name.endswith((".sqlite", "-wal", "-shm", ".lock")) and argv[:1] == ["open"]:
+                        if name.endswith((".sqlite", "-wal", "-shm", ".lock")) and argv[:1] in (["open"], []):
                             continue        # the app's own log, opened to record
                         if name.endswith(("-wal", "-shm")):
                             continue        # SQLite's index beside a log read as it is
