@@ -3,7 +3,9 @@
 Exit codes: 0 the string lands within every limit; 1 a limit is exceeded
 (or a loaded part is unrated, so landing cannot be confirmed); 2 an input
 error (one line on stderr naming the file, the key or row, and what was
-expected).  Textual is imported only by ``open`` and the bare command.
+expected); 3 an internal error of rigplan (one line; a bug to report, never
+read as a verdict).  Textual is imported only by ``open`` and the bare
+command.  No command writes onto a file it reads.
 """
 
 from __future__ import annotations
@@ -15,11 +17,19 @@ from pathlib import Path
 
 from rigplan.errors import InputError
 
-EXIT_LANDS, EXIT_LIMIT, EXIT_INPUT = 0, 1, 2
+EXIT_LANDS, EXIT_LIMIT, EXIT_INPUT, EXIT_INTERNAL = 0, 1, 2, 3
+
+
+class _Parser(argparse.ArgumentParser):
+    """argparse with its errors on one line (exit 2), like every input error."""
+
+    def error(self, message):
+        from rigplan.errors import one_line
+        self.exit(EXIT_INPUT, f"{self.prog}: {one_line(message)} (see {self.prog} --help)\n")
 
 
 def _parser() -> argparse.ArgumentParser:
-    p = argparse.ArgumentParser(
+    p = _Parser(
         prog="rigplan",
         description="Hoisting, running-load, float and fill planning for water-well casing "
                     "and screen strings. With no command, opens the terminal app on the "
@@ -97,6 +107,7 @@ def _load(args):
     if getattr(args, "tally", None):
         plan = apply_tally_file(plan, args.tally)
     state = None
+    from rigplan.files.runlog import log_path_for
     if getattr(args, "as_run", False):
         state = read_run_state(job.plan_path)
         if state is None:
@@ -104,7 +115,8 @@ def _load(args):
                                                            "job has not been run in the app")
     from rigplan.files.job import length_warnings, plan_as_run
     base = plan
-    plan = apply_run_state(base, state)
+    plan = apply_run_state(base, state, str(log_path_for(job.plan_path))
+                           if state is not None else "")
     extra = [w for w in length_warnings(plan) if w not in job.warnings]
     job = dataclasses.replace(job, plan=plan, warnings=tuple(job.warnings) + tuple(extra))
     # the plan as run: the kind of run and the fill already in the pipe are facts
@@ -131,7 +143,16 @@ def _exit_for(landing) -> int:
 
 def _many_rigs(args) -> bool:
     rigs = args.rig if isinstance(args.rig, list) else [args.rig]
-    return len(rigs) > 1 or any(Path(r).is_dir() for r in rigs)
+    return len(rigs) > 1 or any(_is_dir(r) for r in rigs)
+
+
+def _is_dir(path) -> bool:
+    """Whether ``path`` is a folder; a name the system refuses is not one
+    (it is then refused as a file, in one line)."""
+    try:
+        return Path(path).is_dir()
+    except (OSError, ValueError):
+        return False
 
 
 def cmd_check(args) -> int:
@@ -190,7 +211,7 @@ def _with_first_rig(args):
     from rigplan.present.packet.rigs import expand_rigs
     one = copy.copy(args)
     rigs = args.rig if isinstance(args.rig, list) else [args.rig]
-    one.rig = str(expand_rigs(rigs[:1], args.plan)[0]) if Path(rigs[0]).is_dir() else rigs[0]
+    one.rig = str(expand_rigs(rigs[:1], args.plan)[0]) if _is_dir(rigs[0]) else rigs[0]
     return one
 
 
@@ -226,30 +247,64 @@ def cmd_check_rigs(args) -> int:
 
 
 def _input_files(args, job) -> list:
-    """Every file the command reads (a report may be written onto none of them)."""
-    files = [args.plan, getattr(args, "tally", None), getattr(args, "materials", None),
-             job.rig_path]
+    """(role, path) of every file the command reads (a report may be written
+    onto none of them); ``job`` None: those named on the command line,
+    before any is read."""
+    from rigplan.files.runlog import log_path_for
     rigs = args.rig if isinstance(args.rig, list) else [args.rig]
-    files += [r for r in rigs if r and Path(r).exists()]
+    if job is None:
+        from types import SimpleNamespace
+        from rigplan.files.job import resolve_rig
+        resolved = []
+        for r in rigs:
+            try:
+                resolved.append(resolve_rig(r, Path(args.plan)))
+            except InputError:
+                pass
+        job = SimpleNamespace(plan_path=Path(args.plan), rig_path=resolved[0] if resolved
+                              else None, tally_path=None)
+    files = [("string plan", args.plan), ("string plan", job.plan_path),
+             ("rig profile", job.rig_path),
+             ("tally named in the plan", getattr(job, "tally_path", None)),
+             ("tally", getattr(args, "tally", None)),
+             ("materials file", getattr(args, "materials", None))]
+    files += [("rig profile", r) for r in rigs if r and _exists(r)]
     if job.plan_path is not None:
-        from rigplan.files.runlog import log_path_for
-        files.append(log_path_for(job.plan_path))
-    return [Path(f) for f in files if f]
-
-
-def refuse_input_overwrite(out: Path, inputs) -> None:
-    """An output path that is one of the inputs is refused (exit 2): nothing the
-    user entered is overwritten."""
-    target = Path(out).resolve()
-    for f in inputs:
         try:
-            same = Path(f).resolve() == target or (Path(f).exists() and target.exists()
-                                                   and target.samefile(f))
-        except OSError:
-            same = False
-        if same:
-            raise InputError(f"{out}", "this is one of the input files; expected a new "
-                                       "output path (the report never overwrites an input)")
+            log = log_path_for(job.plan_path)
+        except InputError:
+            log = None
+        if log is not None:
+            files += [("run log", log), ("run log", Path(str(log) + "-wal")),
+                      ("run log", Path(str(log) + "-shm"))]
+    return [(role, Path(f)) for role, f in files if f]
+
+
+def _exists(path) -> bool:
+    try:
+        return Path(path).exists()
+    except (OSError, ValueError):
+        return False
+
+
+def _same_file(a: Path, b: Path) -> bool:
+    import os
+    try:
+        if os.path.realpath(a) == os.path.realpath(b):
+            return True
+        return a.exists() and b.exists() and os.path.samefile(a, b)
+    except (OSError, ValueError):
+        return False
+
+
+def refuse_input_overwrite(out: Path, inputs, option: str = "-o") -> None:
+    """An output path that is one of the ``(role, path)`` inputs is refused
+    (exit 2), naming both: no command writes onto a file it reads."""
+    for role, path in inputs:
+        if _same_file(Path(out), Path(path)):
+            raise InputError(f"{option} {out}", f"this is the {role} {str(path)!r}, an input "
+                                                "of this command, and inputs are never written "
+                                                "over: choose another output file")
 
 
 def cmd_report(args) -> int:
@@ -259,6 +314,7 @@ def cmd_report(args) -> int:
     from rigplan.present.packet import FORMATS, format_for, render
     from rigplan.present.packet.content import AsRun, DEFAULT_BAND, ReportInfo
     out = Path(args.output)
+    refuse_input_overwrite(out, _input_files(args, None))      # before any work
     fmt = format_for(out)
     if fmt is None:
         raise InputError(f"{out}", "unknown report format: expected a file name ending in "
@@ -300,14 +356,16 @@ def cmd_report(args) -> int:
         if state is None:
             raise InputError(f"{job.plan_path}: --as-run", "no run log beside the plan: the "
                                                            "job has not been run in the app")
-        run_plan = apply_run_state(job.plan, state)
+        from rigplan.files.runlog import log_path_for
+        run_plan = apply_run_state(job.plan, state, str(log_path_for(job.plan_path)))
         run_landing = plan_job(run_plan, job.rig, path_name, fixed_closure=bool(state.run))
         as_run = AsRun(job.plan, landing, state, run_plan, run_landing)
     data = render(fmt, job, landing, _system(args), info, choices, as_run, job.rig.name)
     try:
         atomic_write_bytes(out, data)
-    except OSError as err:
-        raise InputError(f"{out}", f"cannot write the report ({err.strerror or err}): expected "
+    except (OSError, ValueError) as err:
+        reason = getattr(err, "strerror", None) or err
+        raise InputError(f"{out}", f"cannot write the report ({reason}): expected "
                                    "a writable file path") from None
     print(f"wrote {out} ({landing.verdict.value})")
     return _exit_for(landing)
@@ -352,15 +410,53 @@ def cmd_rigs(args) -> int:
 
 
 def cmd_open(args) -> int:
-    from rigplan.files.job import load_job
+    from rigplan.files.job import apply_tally_file, load_job, read_run_state
     job = load_job(args.plan, args.rig, args.path, args.materials)   # fail fast, one line
+    options = {}
+    if args.tally:
+        apply_tally_file(job.plan, args.tally)     # a bad tally: one line, before the app
+        options["tally"] = args.tally
+    if args.as_run:
+        # the app always applies the run log beside the plan; --as-run asks
+        # that there is one (a damaged one is offered to be set aside)
+        from rigplan.files.runlog import RunLogDamaged, log_path_for
+        try:
+            state = read_run_state(job.plan_path)
+        except RunLogDamaged:
+            state = True
+        if state is None:
+            raise InputError(f"{log_path_for(job.plan_path)}: --as-run",
+                             "no run log beside the plan: the job has not been run in the app "
+                             "(leave --as-run out to start running it)")
     from rigplan.tui.app import run_app
-    run_app(job.plan_path, job.rig_path, args.path, args.units)
+    run_app(job.plan_path, job.rig_path, args.path, args.units, **options)
     return EXIT_LANDS
 
 
 def main(argv=None) -> int:
-    args = _parser().parse_args(argv)
+    try:
+        args = _parser().parse_args(argv)
+    except SystemExit as exc:       # --help (0) or a usage error (2, one line)
+        return exc.code if isinstance(exc.code, int) else EXIT_INPUT
+    try:
+        return _run(args)
+    except (KeyboardInterrupt, SystemExit):
+        raise
+    except Exception as exc:      # a bug of ours: one line, never read as a verdict
+        import os
+        import traceback
+        from rigplan.errors import one_line
+        frame = traceback.extract_tb(exc.__traceback__)[-1] if exc.__traceback__ else None
+        at = f" at {Path(frame.filename).name}:{frame.lineno}" if frame else ""
+        print(f"rigplan: internal error{at}: {type(exc).__name__}: {one_line(exc)[:300]} "
+              "(a bug in rigplan, not in your files: please report it with the files used; "
+              "set RIGPLAN_DEBUG=1 for the traceback)", file=sys.stderr)
+        if os.environ.get("RIGPLAN_DEBUG"):
+            traceback.print_exc()
+        return EXIT_INTERNAL
+
+
+def _run(args) -> int:
     try:
         if args.command is None:
             from rigplan.files.job import demo_paths

@@ -209,13 +209,17 @@ def test_tally_and_as_run_override_planned_lengths(tmp_path, capsys):
 def test_tally_slip_is_flagged_and_a_string_longer_than_the_hole_cannot_land(tmp_path, capsys):
     # Common practice, no source: a casing string longer than the drilled
     # hole cannot be landed; a tally length far from the joint's planned
-    # length is a slip to check (2006 typed for 20.06).
+    # length is a slip to check (60 typed for 20.06); a length no joint has
+    # (2006 ft) is refused outright (rigplan.files.ranges: joint_length).
     import shutil
     plan = tmp_path / "cv3.toml"
     shutil.copy(STRINGS / "cv3-8in-a53b.toml", plan)
     shutil.copy(STRINGS / "cv3-8in-a53b.tally.csv", tmp_path / "cv3-8in-a53b.tally.csv")
     tally = tmp_path / "slip.csv"
     tally.write_text("label,measured_length [ft],status\nJ8,2006,run\n")
+    code, doc = run_json(capsys, str(plan), "--rig", "th30", "--tally", str(tally))
+    assert code == 2 and doc["error"].startswith(f"{tally}: row 2, measured_length")
+    tally.write_text("label,measured_length [ft],status\nJ8,60,run\n")
     code, doc = run_json(capsys, str(plan), "--rig", "th30", "--tally", str(tally))
     assert any("J8" in w and "check the tally" in w for w in doc["warnings"])
     assert doc["verdict"] == "cannot land" and code == 1

@@ -597,15 +597,15 @@ def test_other_tool_can_be_declared_net():
 
 
 @pytest.mark.parametrize("change, key, fragment", [
-    (("lines = 4", "lines = 25"), "path[1].lines", "from 1 to 24"),
-    (("lines = 4", "lines = 100000"), "path[1].lines", "from 1 to 24"),
+    (("lines = 4", "lines = 25"), "path[1].lines", "between 1 and 24"),
+    (("lines = 4", "lines = 100000"), "path[1].lines", "between 1 and 24"),
     (("lines = 4", "lines = 0"), "path[1].lines", ">= 1"),
-    (("sheave_factor = 1.04", "sheave_factor = 1.5"), "path[1].sheave_factor", "from 1 to 1.2"),
-    (("sheave_factor = 1.04", "sheave_factor = 0.9"), "path[1].sheave_factor", "from 1 to 1.2"),
+    (("sheave_factor = 1.04", "sheave_factor = 1.5"), "path[1].sheave_factor", "between 1 and 1.2"),
+    (("sheave_factor = 1.04", "sheave_factor = 0.9"), "path[1].sheave_factor", "between 1 and 1.2"),
     (("sheave_factor = 1.04", 'sheave_factor = "nan"'), "path[1].sheave_factor", ""),
     (("rope_design_factor = 3", "rope_design_factor = 0.5"), "path[1].rope_design_factor",
-     "from 1 to 20"),
-    (("dynamic_factor = 1.2", "dynamic_factor = 12"), "path[1].dynamic_factor", "from 1 to 3"),
+     "between 1 and 20"),
+    (("dynamic_factor = 1.2", "dynamic_factor = 12"), "path[1].dynamic_factor", "between 1 and 3"),
     (('top_head_pullup_basis = "net"', 'top_head_pullup_basis = "nett"'),
      "path[2].top_head_pullup_basis", "gross, net"),
     (('top_head_pullup_basis = "net"', 'top_head_pullup_basis = "gross"'),

@@ -677,6 +677,8 @@ async def test_each_joint_is_named_by_its_label_after_a_set_aside(job):
         await answer(pilot, "dented")            # J1 set aside: J2 runs first
         nxt = app.session.next_joint().label
         assert nxt == "J2"
+        await pilot.press("1")
+        await pilot.pause()
         texts = [static_text(app, w) for w in ("#next-action", "#fill-plan", "#float-line")]
         texts.append("\n".join(P_lines(app)))
         for t in texts:

@@ -70,15 +70,32 @@ def demo_paths() -> tuple[Path, Path]:
     return plan, rig
 
 
+def path_exists(path, what: str = "file") -> bool:
+    """Whether ``path`` exists; a name the system refuses (too long, a NUL
+    inside) is an InputError naming it, never a traceback."""
+    try:
+        return Path(path).exists()
+    except ValueError:
+        raise InputError(str(path), f"not a usable {what} name (it holds a NUL character)") from None
+    except OSError as exc:
+        raise InputError(str(path), f"not a usable {what} name ({exc.strerror or exc})") from None
+
+
 def resolve_rig(name_or_path: str, plan_path: Path | None = None) -> Path:
     """A rig argument: a path, or the name of a bundled profile."""
     p = Path(name_or_path)
-    if p.exists():
+    if not str(name_or_path).strip():
+        raise InputError("rig", "expected a rig profile: a path to a rigs/*.toml file or the "
+                                "name of a bundled rig (th30, mw80), got an empty text")
+    if path_exists(p, "rig profile"):
         return p
     for base in ([plan_path.parent.parent / "rigs"] if plan_path else []) + [demo_dir("rigs")]:
         for cand in (base / name_or_path, base / f"{name_or_path}.toml"):
-            if cand.exists():
-                return cand
+            try:
+                if cand.exists():
+                    return cand
+            except (OSError, ValueError):
+                continue
     raise InputError(str(name_or_path), "no such rig profile file (expected a path to a "
                                         "rigs/*.toml file or the name of a bundled rig)")
 
@@ -106,6 +123,7 @@ class Job:
     rig: object
     warnings: tuple[Finding, ...] = ()
     path_name: str | None = None
+    tally_path: Path | None = None
     units: str = "si"          # the plan file's unit system for bare numbers
 
 
@@ -123,7 +141,7 @@ def load_job(plan_path, rig_path, path_name: str | None = None,
         from rigplan.files.formats.materialfile import read_materials
         read_materials(materials_path)
     plan_path = Path(plan_path)
-    if not plan_path.exists():
+    if not path_exists(plan_path, "string plan file"):
         raise InputError(str(plan_path), "no such string plan file (expected a strings/*.toml file)")
     rig_path = resolve_rig(str(rig_path), plan_path)
     read = read_plan(plan_path)
@@ -134,7 +152,7 @@ def load_job(plan_path, rig_path, path_name: str | None = None,
                          + ", ".join(p.name for p in rig.paths))
     return Job(plan_path=plan_path, rig_path=rig_path, plan=read.plan, rig=rig,
                warnings=tuple(file_warning(w) for w in read.warnings), path_name=path_name,
-               units=read.units)
+               tally_path=read.tally_path, units=read.units)
 
 
 def collar_label(plan: StringPlan) -> str | None:
@@ -146,15 +164,17 @@ def collar_label(plan: StringPlan) -> str | None:
     return running[m - 1].label if m <= len(running) else None
 
 
-def _keep_collar(before: StringPlan, after: StringPlan, collar) -> StringPlan:
+def _keep_collar(before: StringPlan, after: StringPlan, collar, source: str = "") -> StringPlan:
     """``after`` with the float collar on the same joint (by label) as in
-    ``before``; refused when that joint has been set aside."""
+    ``before``; refused when that joint has been set aside (``source``: the
+    tally or run log that set it aside, named in the message)."""
     if collar is None:
         return after
     labels = [j.label for j in after.running_joints()]
     if collar not in labels:
-        raise InputError(f"joint {collar}", "the float collar joint is set aside: move the "
-                                            "collar in the plan first")
+        where = f"{source}: joint {collar}" if source else f"joint {collar}"
+        raise InputError(where, "the float collar joint is set aside here: move the collar in "
+                                f"the plan {before.source or before.name!r} first")
     return dataclasses.replace(after, closure=dataclasses.replace(
         before.closure, valve_joint=labels.index(collar) + 1))
 
@@ -165,21 +185,26 @@ def apply_tally_file(plan: StringPlan, path) -> StringPlan:
     from rigplan.files.formats.tally import read_tally
     rows = read_tally(path)
     joints = apply_tally(list(plan.joints), rows, str(path))
+    if not any(not j.rejected for j in joints):
+        raise InputError(str(path), "every joint of the plan is set aside (status rejected) in "
+                                    "this tally: nothing to run")
     return _keep_collar(plan, dataclasses.replace(plan, joints=tuple(joints)),
-                        collar_label(plan))
+                        collar_label(plan), str(path))
 
 
 def read_run_state(plan_path):
-    """The run log beside a plan (None when the job has not been run)."""
+    """The run log beside a plan (None when the job has not been run), read
+    without writing: a log in a read-only folder is read as it is, and a
+    damaged one raises RunLogDamaged naming it (it is never changed)."""
     from rigplan.files.runlog import RunLog, log_path_for
     log = log_path_for(plan_path)
     if not Path(log).exists():
         return None
-    with RunLog(log) as rl:
+    with RunLog(log, snapshot=True) as rl:
         return rl.state()
 
 
-def apply_run_state(plan: StringPlan, state) -> StringPlan:
+def apply_run_state(plan: StringPlan, state, source: str = "") -> StringPlan:
     """The plan as run so far: measured lengths and rejections from a run log.
 
     ``state`` is a :class:`rigplan.files.runlog.RunState` (or None).  Joints run
@@ -199,7 +224,7 @@ def apply_run_state(plan: StringPlan, state) -> StringPlan:
         if j.label in rejected:
             changes["rejected"] = True
         joints.append(_changed(j, **changes) if changes else j)
-    return _keep_collar(plan, dataclasses.replace(plan, joints=tuple(joints)), collar)
+    return _keep_collar(plan, dataclasses.replace(plan, joints=tuple(joints)), collar, source)
 
 
 _CHANGED: dict = {}
@@ -255,12 +280,25 @@ def rated_joints(plan: StringPlan):
     specs = plan.running_joints()
     if not specs:
         raise InputError(plan.source or plan.name, "the string has no joints to run")
+    src = plan.source or plan.name
     try:
         return rate_joints(specs, temperature=plan.hole.temperature)
-    except InputError:
-        raise
+    except InputError as err:
+        where = err.where if src and err.where.startswith(src) else f"{src}: {err.where}"
+        raise InputError(where, err.message + _material_file_note(err.message)) from None
     except (ValueError, KeyError) as err:
-        raise InputError(plan.source or plan.name, str(err).strip("'\"")) from None
+        text = str(err).strip("'\"")
+        raise InputError(src, text + _material_file_note(text)) from None
+
+
+def _material_file_note(message: str) -> str:
+    """`` (material 'x' is from the materials file F)`` when the message
+    names a material read from a user's materials file."""
+    import re
+    from rigplan.files.formats.materialfile import material_file
+    m = re.search(r"material '([^']+)'", message)
+    source = material_file(m.group(1)) if m else None
+    return f" (material {m.group(1)!r} comes from the materials file {source})" if source else ""
 
 
 def plan_job(plan: StringPlan, rig, path_name: str | None = None,

@@ -63,12 +63,14 @@ __all__ = [
     "Event",
     "Observation",
     "RunLog",
+    "RunLogDamaged",
     "RunLogLocked",
     "RunLogReadOnly",
     "RunLogWriteError",
     "RunState",
     "SchemaVersionError",
     "log_path_for",
+    "set_aside_damaged",
 ]
 
 #: Schema version written to ``PRAGMA user_version``.
@@ -155,6 +157,11 @@ ORDER BY e.id DESC LIMIT 1
 
 _COLUMNS = "id, ts, kind, label, value, note, ref, step, predicted, basis"
 _COLUMNS_V1 = "id, ts, kind, label, value, note, ref, step, predicted, NULL"
+#: Kinds of event a log holds (the CHECK of the events table).
+_EVENT_KINDS = ("run", "reject", "undo", "observe")
+
+#: Columns every readable log has (``basis`` came with version 2).
+_REQUIRED_COLUMNS = ("id", "ts", "kind", "label", "value", "note", "ref", "step", "predicted")
 
 
 class SchemaVersionError(InputError):
@@ -179,6 +186,24 @@ class RunLogLocked(InputError):
 
 class RunLogReadOnly(InputError):
     """The log was opened read-only (another program records this job)."""
+
+
+class RunLogDamaged(InputError):
+    """The run log file is damaged (not readable as a rigplan run log).
+
+    The file is never changed or deleted by rigplan.  ``path`` is the file;
+    :func:`set_aside_damaged` renames it (and its ``-wal``/``-shm``
+    companions) so that a new log can be started, keeping the old one.
+    """
+
+    def __init__(self, path, detail: str):
+        self.path = Path(path)
+        self.detail = detail
+        super().__init__(str(path), (
+            f"the run log is damaged ({detail}); it was left unchanged. To go on, open the job "
+            f"in the app, which offers to set it aside (renamed to "
+            f"{Path(path).stem}.damaged-<time>.sqlite, kept) and start a new log; its entries "
+            "may be recovered with the sqlite3 tool's .recover command"))
 
 
 @dataclass(frozen=True)
@@ -278,6 +303,8 @@ def log_path_for(plan_path: str | os.PathLike) -> Path:
     'plans/well-7.rigrun.sqlite'
     """
     p = Path(plan_path)
+    if not p.name or p.name in (".", ".."):
+        raise InputError(str(plan_path), "expected the file name of a string plan, got a folder")
     return p.with_name(p.stem + LOG_SUFFIX)
 
 
@@ -328,19 +355,28 @@ class RunLog:
     """
 
     def __init__(self, path: str | os.PathLike, *, lock: bool = False,
-                 read_only: bool = False):
+                 read_only: bool = False, snapshot: bool = False):
         self.path = Path(path)
         self._lock = threading.RLock()
         self._conn = None
         self._lock_fd = None
-        self.read_only = bool(read_only)
+        self.read_only = bool(read_only or snapshot)
+        self._snapshot = bool(snapshot)
+        self._events = []
         self._has_basis = True
         self._data_version = None
         where = str(self.path)
-        if self.path.is_dir():
-            raise InputError(where, "expected a run-log file, found a directory")
-        if self.read_only and not self.path.exists():
-            raise InputError(where, "no run log to read (the job has not been run)")
+        try:
+            if self.path.is_dir():
+                raise InputError(where, "expected a run-log file, found a directory")
+            if self.read_only and not self.path.exists():
+                raise InputError(where, "no run log to read (the job has not been run)")
+        except (OSError, ValueError) as exc:
+            raise InputError(where, f"cannot open the run log "
+                                    f"({getattr(exc, 'strerror', None) or exc})") from None
+        if self._snapshot:
+            self._conn = self._open_snapshot()
+            return
         if lock and not self.read_only:
             self._lock_fd = _take_lock(self.lock_path)
         try:
@@ -348,13 +384,22 @@ class RunLog:
                 conn = sqlite3.connect(where, isolation_level=None, timeout=10.0,
                                        check_same_thread=False)
             except sqlite3.Error as exc:
-                raise InputError(where, f"cannot open the run log ({exc})") from exc
+                raise InputError(where, f"cannot open the run log ({_one_line(exc)}): "
+                                        "expected a folder beside the plan that can be "
+                                        "written") from None
             try:
                 self._open(conn)
             except sqlite3.DatabaseError as exc:
                 conn.close()
-                raise InputError(where, f"expected a rigplan run log (SQLite file), "
-                                        f"cannot read it ({exc})") from exc
+                if self.read_only and not _damage_text(exc):
+                    # a sound log in a folder that cannot be written: read it as it is
+                    self._snapshot = True
+                    self._conn = self._open_snapshot()
+                    return
+                raise self._open_error(exc) from None
+            except UnicodeDecodeError as exc:
+                conn.close()
+                raise RunLogDamaged(self.path, f"text that is not UTF-8 ({exc.reason})") from None
             except BaseException:
                 conn.close()
                 raise
@@ -362,6 +407,74 @@ class RunLog:
             self._release_lock()
             raise
         self._conn = conn
+
+    def _open_error(self, exc: sqlite3.Error) -> InputError:
+        """The one-line error for a log that cannot be opened."""
+        text = _one_line(exc)
+        if _damage_text(exc):
+            return RunLogDamaged(self.path, text)
+        return InputError(str(self.path), f"cannot write the run log ({text}): the folder "
+                                          "beside the plan must be writable to record the "
+                                          "run; rigplan check --as-run reads it as it is")
+
+    def _open_snapshot(self) -> sqlite3.Connection:
+        """A read-only connection that creates and changes no file: a sound
+        log in a read-only folder is read as it is.
+
+        At rest (no -wal file: no writer has it open, nothing waits to be
+        checkpointed) the file is the whole log and is read as immutable,
+        which leaves no -wal/-shm behind.  A -wal beside it (the app has it
+        open, or was killed) is read through SQLite's read-only WAL mode,
+        then as immutable when the folder cannot be written.
+        """
+        from urllib.parse import quote
+        base = "file:" + quote(str(self.path.resolve()))
+        last = None
+        at_rest = not Path(str(self.path) + "-wal").exists()
+        tries = ("?mode=ro&immutable=1",) if at_rest else ("?mode=ro", "?mode=ro&immutable=1")
+        for options in tries:
+            try:
+                conn = sqlite3.connect(base + options, uri=True, isolation_level=None,
+                                       timeout=10.0, check_same_thread=False)
+            except sqlite3.Error as exc:
+                last = exc
+                continue
+            try:
+                version, app_id, n_tables = self._header(conn)
+                if version == 0 and n_tables == 0:
+                    raise RunLogDamaged(self.path, "an empty file, not a run log")
+                self._check_header(version, app_id, n_tables)
+                self._check_tables(conn)
+                self._has_basis = _has_column(conn, "events", "basis")
+                return conn
+            except sqlite3.DatabaseError as exc:
+                conn.close()
+                last = exc
+                if _damage_text(exc):
+                    break
+            except UnicodeDecodeError as exc:
+                conn.close()
+                raise RunLogDamaged(self.path, f"text that is not UTF-8 ({exc.reason})") from None
+            except BaseException:
+                conn.close()
+                raise
+        if last is not None and _damage_text(last):
+            raise RunLogDamaged(self.path, _one_line(last))
+        raise InputError(str(self.path), f"cannot read the run log "
+                                          f"({_one_line(last) if last else 'cannot open'})")
+
+    def _check_tables(self, conn) -> None:
+        """The events table has the columns this rigplan reads, and the file
+        passes SQLite's quick check; else RunLogDamaged."""
+        columns = tuple(r[1] for r in conn.execute("PRAGMA table_info(events)"))
+        missing = [c for c in _REQUIRED_COLUMNS if c not in columns]
+        if missing:
+            raise RunLogDamaged(self.path, f"the events table lacks the column"
+                                           f"{'s' if len(missing) > 1 else ''} "
+                                           f"{', '.join(missing)}")
+        problems = [r[0] for r in conn.execute("PRAGMA quick_check(3)")]
+        if problems != ["ok"]:
+            raise RunLogDamaged(self.path, f"SQLite quick check: {_one_line(problems[0])}")
 
     @classmethod
     def open_writer(cls, path: str | os.PathLike) -> "RunLog":
@@ -391,6 +504,8 @@ class RunLog:
         with self._lock:
             if self._lock_fd is not None:
                 return True
+            if self._snapshot:          # a file read as it is is never written
+                return False
             try:
                 fd = _take_lock(self.lock_path)
             except RunLogLocked:
@@ -427,6 +542,8 @@ class RunLog:
         conn.execute("PRAGMA foreign_keys=ON")
         version, app_id, n_tables = self._header(conn)
         self._check_header(version, app_id, n_tables)
+        if version >= 1:
+            self._check_tables(conn)
         if self.read_only:
             if version == 0:
                 raise InputError(where, "the run log is empty and not yet set up by its writer")
@@ -460,6 +577,7 @@ class RunLog:
     def _upgrade(self, conn: sqlite3.Connection) -> None:
         """Bring a version-1 log to version 2 (adds a column and a trigger;
         no entry is changed).  Readers of either version keep working."""
+        self._events = []
         if conn.execute("PRAGMA user_version").fetchone()[0] >= SCHEMA_VERSION:
             self._has_basis = True
             return
@@ -530,10 +648,11 @@ class RunLog:
                     if conn.in_transaction:
                         conn.execute("ROLLBACK")
                     raise
-            except sqlite3.Error as exc:
+            except (sqlite3.Error, UnicodeDecodeError) as exc:
                 raise RunLogWriteError(
                     f"{self.path}: could not save the {kind} entry"
-                    f"{f' for {label!r}' if label else ''} ({exc}); it was NOT recorded") from exc
+                    f"{f' for {label!r}' if label else ''} ({_one_line(exc)}); it was NOT "
+                    "recorded") from exc
             return event_id
 
     def _where(self, what: str) -> str:
@@ -671,12 +790,26 @@ class RunLog:
     # -- reading -----------------------------------------------------------
 
     def events(self) -> list:
-        """Every event in the order recorded."""
+        """Every event in the order recorded (RunLogDamaged when the file
+        cannot be read back).
+
+        The log is append-only, so only the events after the last one read
+        are fetched (a re-read after each entry costs one row, not all)."""
         cols = _COLUMNS if self._has_basis else _COLUMNS_V1
         with self._lock:
-            rows = self._connection().execute(
-                f"SELECT {cols} FROM events ORDER BY id").fetchall()
-        return [_event(r) for r in rows]
+            last = self._events[-1].id if self._events else 0
+            try:
+                rows = self._connection().execute(
+                    f"SELECT {cols} FROM events WHERE id > ? ORDER BY id", (last,)).fetchall()
+            except sqlite3.DatabaseError as exc:
+                raise RunLogDamaged(self.path, _one_line(exc)) from None
+            except UnicodeDecodeError as exc:
+                raise RunLogDamaged(self.path, f"text that is not UTF-8 ({exc.reason})") from None
+            new = [_event(r) for r in rows]
+            for e in new:
+                _check_event(e, self.path)
+            self._events.extend(new)
+            return list(self._events)
 
     def state(self) -> RunState:
         """Replay the log into the present state of the run."""
@@ -689,6 +822,8 @@ class RunLog:
             conn = self._connection()
             if not self._has_basis:
                 self._has_basis = _has_column(conn, "events", "basis")
+                if self._has_basis:
+                    self._events = []       # re-read with the basis column
             v = conn.execute("PRAGMA data_version").fetchone()[0]
         changed = v != self._data_version
         self._data_version = v
@@ -807,6 +942,75 @@ class RunLog:
 
     def __repr__(self) -> str:
         return f"RunLog({str(self.path)!r})"
+
+
+def _one_line(exc) -> str:
+    return " ".join(str(exc).split())
+
+
+def _damage_text(exc) -> bool:
+    """Whether an SQLite error says the file itself is damaged."""
+    low = str(exc).lower()
+    return "malformed" in low or "not a database" in low or "no such" in low
+
+
+def _check_event(e: Event, path) -> None:
+    """An event read back has the types and values the writer gives it."""
+    ok = (isinstance(e.id, int) and e.kind in _EVENT_KINDS
+          and (e.label is None or isinstance(e.label, str))
+          and (e.value is None or (isinstance(e.value, (int, float))
+                                   and math.isfinite(e.value)))
+          and isinstance(e.note, str)
+          and (e.ref is None or isinstance(e.ref, int))
+          and (e.step is None or (isinstance(e.step, int) and e.step >= 0))
+          and (e.predicted is None or (isinstance(e.predicted, (int, float))
+                                       and math.isfinite(e.predicted))))
+    if ok and e.kind == "run" and e.value is not None and not e.value > 0:
+        ok = False
+    if ok and e.kind in ("run", "reject") and not (e.label and e.label.strip()):
+        ok = False
+    if ok and e.kind == "undo" and e.ref is None:
+        ok = False
+    if ok and e.kind == "observe" and (e.step is None or e.value is None):
+        ok = False
+    if ok and e.basis is not None and e.basis not in ("measured", "planned"):
+        ok = False
+    if not ok:
+        raise RunLogDamaged(path, f"entry {e.id!r} holds values no rigplan writes")
+
+
+def set_aside_damaged(path: str | os.PathLike) -> Path:
+    """Rename a damaged run log (and its ``-wal`` and ``-shm`` files) out of
+    the way, keeping every byte; return the new path of the log.
+
+    The new name is ``<stem>.damaged-<UTC time>.sqlite`` beside it (with
+    ``-2``, ``-3`` ... when taken).  Nothing is deleted or overwritten, so a
+    new log can be started under the old name and the old one recovered
+    later (e.g. with the sqlite3 tool's ``.recover``).
+    """
+    src = Path(path)
+    stamp = datetime.now(timezone.utc).strftime("%Y%m%dT%H%M%SZ")
+    stem = src.name[:-len(".sqlite")] if src.name.endswith(".sqlite") else src.name
+    n = 1
+    while True:
+        name = f"{stem}.damaged-{stamp}{'' if n == 1 else f'-{n}'}.sqlite"
+        dst = src.with_name(name)
+        if not any(Path(str(dst) + sfx).exists() for sfx in ("", "-wal", "-shm")):
+            break
+        n += 1
+    try:
+        # the companions first: the log itself moves last, so a crash in
+        # between leaves it under its own name
+        for sfx in ("-wal", "-shm"):
+            if Path(str(src) + sfx).exists():
+                os.rename(str(src) + sfx, str(dst) + sfx)
+        os.rename(src, dst)
+        from rigplan.files.atomicio import fsync_directory
+        fsync_directory(src.parent)
+    except OSError as exc:
+        raise InputError(str(src), f"cannot set the damaged run log aside "
+                                   f"({exc.strerror or exc}): rename it yourself") from None
+    return dst
 
 
 class _NothingToUndo(Exception):

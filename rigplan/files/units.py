@@ -96,6 +96,9 @@ KINDS = (
 
 SYSTEMS = ("us", "si")
 
+#: Longest quantity text read [characters]: "20 ft 6-1/2 in" needs 14.
+MAX_TEXT = 200
+
 # kind -> (what it is called, example for messages)
 _DESCRIPTION = {
     "length": ("a length", "1200 ft or 365 m"),
@@ -251,6 +254,8 @@ _MARKS = {"\u2032": "'", "\u2019": "'", "\u2018": "'", "\u2033": '"', "\u201c": 
 
 def _normalize_marks(text: str) -> str:
     """Typographic feet/inch marks and vulgar fractions (9\u215d) to plain text."""
+    if text.isascii():
+        return text
     for mark, plain in _MARKS.items():
         text = text.replace(mark, plain)
     for frac, plain in _VULGAR_FRACTIONS.items():
@@ -315,21 +320,36 @@ def _check_kind(kind: str) -> None:
         raise ValueError(f"unknown quantity kind {kind!r}; known: {', '.join(KINDS)}")
 
 
+def _shorten(text: str, limit: int = 60) -> str:
+    """``text`` cut to ``limit`` characters for a one-line message."""
+    text = str(text)
+    return text if len(text) <= limit else text[:limit - 3] + "..."
+
+
 def _convert(value: float, unit_text: str, kind: str, where: str, shown: str) -> float:
-    """value [unit_text] -> SI float for kind, checking the dimension."""
+    """value [unit_text] -> SI float for kind, checking the dimension and
+    that the result is a finite number (``1e308 psi`` overflows to inf)."""
+    result = _convert_unchecked(value, unit_text, kind, where, _shorten(shown))
+    if not math.isfinite(result):
+        raise InputError(where, f"expected {_describe(kind)}, got {_shorten(shown)!r}, "
+                                "which is too large to use")
+    return result
+
+
+def _convert_unchecked(value: float, unit_text: str, kind: str, where: str, shown: str) -> float:
     if unit_text == "" and kind == "dimensionless":
         return value
     try:
         factor, dims = _unit_to_si(unit_text)
     except KeyError:
-        raise InputError(where, f"unknown unit {unit_text.strip()!r} in {shown!r}; "
+        raise InputError(where, f"unknown unit {_shorten(unit_text.strip())!r} in {_shorten(shown)!r}; "
                                 f"expected {_describe(kind)}") from None
     if dims == _DIMS[kind]:
         return value * factor
     alt = _ALTERNATIVE.get(kind)
     if alt is not None and dims == alt[0]:
         return value * factor * alt[1]
-    raise InputError(where, f"expected {_describe(kind)}, got {shown}")
+    raise InputError(where, f"expected {_describe(kind)}, got {_shorten(shown)}")
 
 
 def parse(value, kind: str, default_unit: str | None = None, where: str = "") -> float:
@@ -376,7 +396,11 @@ def parse(value, kind: str, default_unit: str | None = None, where: str = "") ->
     if isinstance(value, bool) or not isinstance(value, (int, float, str)):
         raise InputError(where, f"expected {_describe(kind)}, got {value!r}")
     if isinstance(value, (int, float)):
-        number = float(value)
+        try:
+            number = float(value)
+        except OverflowError:
+            raise InputError(where, f"expected {_describe(kind)}, got a number with "
+                                    f"{len(str(abs(value)))} digits (too large)") from None
         if not math.isfinite(number):
             raise InputError(where, f"expected {_describe(kind)}, got {value!r}")
         unit = default_unit if default_unit is not None else ""
@@ -384,40 +408,46 @@ def parse(value, kind: str, default_unit: str | None = None, where: str = "") ->
             raise InputError(where, f"a bare number needs a unit here: expected {_describe(kind)}, got {value!r}")
         return _convert(number, unit, kind, where, f"{value!r} {unit}".strip())
 
+    if len(value) > MAX_TEXT:
+        raise InputError(where, f"expected {_describe(kind)}, got a text of {len(value):,} "
+                                f"characters (at most {MAX_TEXT})")
     text = _normalize_marks(value.strip())
     if not text:
         raise InputError(where, f"expected {_describe(kind)}, got an empty value")
     if "," in text:
         if _RE_THOUSANDS.match(text):
             fixed = text.replace(",", "")
-            raise InputError(where, f"no commas in numbers: write {fixed!r} instead of {text!r} "
+            raise InputError(where, f"no commas in numbers: write {_shorten(fixed)!r} instead of {_shorten(text)!r} "
                                     "(a comma is never read, neither as a thousands "
                                     "separator nor as a decimal point)")
         if _RE_DECIMAL_COMMA.match(text):
             fixed = text.replace(",", ".", 1)
-            raise InputError(where, f"decimal comma in {text!r}: write {fixed!r} "
+            raise InputError(where, f"decimal comma in {_shorten(text)!r}: write {_shorten(fixed)!r} "
                                     "(use a point for decimals)")
-        raise InputError(where, f"unexpected comma in {text!r}: expected {_describe(kind)}")
+        raise InputError(where, f"unexpected comma in {_shorten(text)!r}: expected {_describe(kind)}")
     if _RE_SPACED_DIGITS.match(text) and not _RE_MIXED.match(text):
         fixed = re.sub(r"(?<=\d)\s+(?=\d)", "", text)
-        raise InputError(where, f"space inside the number {text!r}: write {fixed!r} "
+        raise InputError(where, f"space inside the number {_shorten(text)!r}: write {_shorten(fixed)!r} "
                                 "(no thousands separators)")
     m = _RE_FEET_INCHES_UNMARKED.match(text) if kind in ("length", "diameter") else None
     if m:
-        raise InputError(where, f"mark the inches in {text!r}: write "
+        raise InputError(where, f"mark the inches in {_shorten(text)!r}: write "
                                 f"'{m.group('ft')} ft {m.group('inch')} in'")
     try:
         split = _split_number_unit(text)
     except ZeroDivisionError:
-        raise InputError(where, f"zero denominator in {text!r}: expected {_describe(kind)}") from None
+        raise InputError(where, f"zero denominator in {_shorten(text)!r}: expected {_describe(kind)}") from None
+    except (OverflowError, ValueError):
+        raise InputError(where, f"expected {_describe(kind)}, got {_shorten(text)!r} "
+                                "(a number too large to use)") from None
     if split is None:
-        raise InputError(where, f"expected {_describe(kind)}, got {text!r}")
+        raise InputError(where, f"expected {_describe(kind)}, got {_shorten(text)!r}")
     number, unit = split
     if not math.isfinite(number):
-        raise InputError(where, f"expected {_describe(kind)}, got {text!r}")
+        raise InputError(where, f"expected {_describe(kind)}, got {_shorten(text)!r}")
     if unit == "":
         if default_unit is None and kind != "dimensionless":
-            raise InputError(where, f"give a unit: expected {_describe(kind)}, got {text!r}")
+            raise InputError(where, f"give a unit: expected {_describe(kind)}, got {_shorten(text)!r}")
         unit = default_unit or ""
     return _convert(number, unit, kind, where, text)
 

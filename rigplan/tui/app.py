@@ -11,7 +11,7 @@ textual-plot is imported only when the Charts tab is first shown.
 
 from __future__ import annotations
 
-
+import gc
 from pathlib import Path
 
 from textual.app import App, ComposeResult
@@ -105,10 +105,31 @@ class RigplanApp(App):
         self._banner = self.query_one("#read-only-banner", Static)
         self._fit(self.size.width, self.size.height)
         self.refresh_views()
+        self._calm_collector()
         self.set_interval(self.FOLLOW_INTERVAL, self.follow_log)
 
     def on_unmount(self) -> None:
         self.session.close()
+        self._restore_collector()
+
+    def _calm_collector(self) -> None:
+        """While the app runs: the widgets and the plan built so far live for
+        the whole session, so they are moved out of the garbage collector's
+        sight, and young collections are made rarer (each re-plan allocates
+        many short-lived arrays).  A full collection then no longer stalls a
+        keystroke on site.  Undone when the app closes, so the process is
+        left as it was found (tests run many apps in one process)."""
+        self._gc_threshold = gc.get_threshold()
+        gc.collect()
+        gc.freeze()
+        gc.set_threshold(50_000, 50, 1000)
+
+    def _restore_collector(self) -> None:
+        threshold = getattr(self, "_gc_threshold", None)
+        if threshold is not None:
+            gc.set_threshold(*threshold)
+            gc.unfreeze()
+            self._gc_threshold = None
 
     #: Below this width or height [cells] the screens use their compact
     #: layout (80x24 is the smallest terminal planned for).
@@ -166,8 +187,6 @@ class RigplanApp(App):
         self._banner.display = bool(banner)
         self._stale = set(TABS)
         self._show(self.active_tab)
-        if self.active_tab != "overview":
-            self._show("overview")
 
     def _show(self, tab: str) -> None:
         self._pane(tab).show(self.session)
@@ -596,17 +615,37 @@ class RigplanApp(App):
 
 
 def build_app(plan_path, rig_path, path_name: str | None = None, units: str = "us",
-              **session_options) -> RigplanApp:
+              tally=None, **session_options) -> RigplanApp:
     """The app for a plan and a rig (raises InputError for bad files).
 
+    ``tally``: a tally CSV applied at once (not saved), as ``t`` does.
     ``session_options`` go to :class:`JobSession` (``band_fraction``,
     ``band_force``).
     """
     session = JobSession(Path(plan_path), rig_path, path_name=path_name, units=units,
                          **session_options)
+    if tally is not None:
+        try:
+            session.import_tally(Path(tally).resolve())
+        except BaseException:
+            session.close()
+            raise
     return RigplanApp(session)
 
 
-def run_app(plan_path, rig_path, path_name: str | None = None, units: str = "us") -> None:
-    """Open the terminal app on a plan and a rig and run it until the user quits."""
-    build_app(plan_path, rig_path, path_name=path_name, units=units).run()
+def run_app(plan_path, rig_path, path_name: str | None = None, units: str = "us",
+            tally=None) -> None:
+    """Open the terminal app on a plan and a rig and run it until the user quits.
+
+    A damaged run log is never changed: the app first offers to set it aside
+    (renamed, kept) and start a new one; refused, the error stands (one line).
+    """
+    from rigplan.files.runlog import RunLogDamaged
+    from rigplan.tui.dialogs import DamagedLogApp
+    try:
+        app = build_app(plan_path, rig_path, path_name=path_name, units=units, tally=tally)
+    except RunLogDamaged as exc:
+        if DamagedLogApp(exc).run() is None:
+            raise
+        app = build_app(plan_path, rig_path, path_name=path_name, units=units, tally=tally)
+    app.run()

@@ -4,7 +4,7 @@ from __future__ import annotations
 
 from typing import Callable
 
-from textual.app import ComposeResult
+from textual.app import App, ComposeResult
 from textual.binding import Binding
 from textual.containers import Horizontal, Vertical, VerticalScroll
 from textual.screen import ModalScreen
@@ -171,3 +171,44 @@ class ChoiceScreen(ModalScreen):
 
     def action_cancel(self) -> None:
         self.dismiss(None)
+
+
+class DamagedLogApp(App):
+    """Asked before the app opens on a job whose run log is damaged: set the
+    file aside (renamed, every byte kept) and start a new log, or stop.
+
+    ``run()`` returns the path the damaged log was moved to, or None when
+    the user said no (the file is then left as it is).
+    """
+
+    CSS = """
+    Screen { align: center middle; }
+    .dialog { width: 90%; max-width: 110; height: auto; border: thick $warning; padding: 1 2; }
+    .dialog-buttons { height: auto; }
+    """
+
+    def __init__(self, error):
+        super().__init__()
+        self._error = error
+
+    def on_mount(self) -> None:
+        from rigplan.files.runlog import set_aside_damaged
+        path = self._error.path
+        question = (f"The run log {path} is damaged ({self._error.detail}). Set it aside "
+                    f"(renamed to {path.stem}.damaged-<time>.sqlite, nothing deleted) and start "
+                    "a new log? The entries it holds are not in the new log; they may be "
+                    "recovered later with the sqlite3 tool's .recover command.")
+
+        def answered(yes) -> None:
+            if not yes:
+                self.exit(None)
+                return
+            try:
+                moved = set_aside_damaged(path)
+            except InputError as exc:
+                self.exit(None)
+                self._failed = exc
+                return
+            self.exit(moved)
+
+        self.push_screen(ConfirmScreen(question, yes="Set aside, new log", no="Stop"), answered)

@@ -25,8 +25,7 @@ from dataclasses import dataclass
 from pathlib import Path
 
 from rigplan.errors import InputError
-from rigplan.files.formats.planfile import (DESIGN_FACTOR_MIN, FLUID_DENSITY_RANGE,
-                                            design_factor_expected)
+from rigplan.files import ranges
 from rigplan.files.job import apply_run_state, plan_as_run, collar_label, length_warnings, load_job, plan_job, rated_joints
 from rigplan.files.runlog import RunLog, RunLogLocked, log_path_for
 from rigplan.engine.stringmodel import CONNECTION_KINDS, JOINT_KINDS, StringPlan
@@ -428,7 +427,7 @@ class JobSession:
                 v = float(t[:-1])
             except ValueError:
                 raise InputError("band", f"expected a percentage such as 10 %, got {text!r}") from None
-            if not 0 < v < 100:
+            if not ranges.RANGES["band_fraction"].contains(v / 100.0):
                 raise InputError("band", f"expected a percentage between 0 and 100, got {text!r}")
             self.band_fraction, self.band_force = v / 100.0, 0.0
         else:
@@ -437,14 +436,13 @@ class JobSession:
             except ValueError:
                 v = None
             if v is not None:
-                if not 0 < v < 1:
+                if not ranges.RANGES["band_fraction"].contains(v):
                     raise InputError("band", f"a bare number is a fraction between 0 and 1, "
                                              f"got {text!r} (or write 10 % or 2000 lbf)")
                 self.band_fraction, self.band_force = v, 0.0
             else:
                 force = U.parse(t, "force", None, "band")
-                if not force > 0:
-                    raise InputError("band", f"expected a force > 0, got {text!r}")
+                ranges.check("force_rating", force, "band", t, self.units)
                 self.band_fraction, self.band_force = 0.0, force
         self._judge_last_reading()
         return self.band_text()
@@ -520,8 +518,7 @@ class JobSession:
                 value = None
             else:
                 value = U.parse(t, what, U.unit_label(what, self.units), where)
-                if not value > 0:
-                    raise InputError(where, f"expected {U.describe(what)} greater than zero, got {t!r}")
+                ranges.check(FIELD_RANGES[field], value, where, t, self.units)
         changed = dataclasses.replace(spec, **{field: value})
         if changed.wall >= changed.od / 2.0:
             raise InputError(where, f"the wall must be less than half the od "
@@ -586,7 +583,7 @@ class JobSession:
             else:
                 ref = low.removeprefix("float collar").removeprefix("collar").strip()
                 labels = [j.label for j in running]
-                if ref.isdigit():
+                if ref.isascii() and ref.isdigit():
                     m = int(ref)
                 elif ref.upper() in [x.upper() for x in labels]:
                     m = [x.upper() for x in labels].index(ref.upper()) + 1
@@ -602,23 +599,15 @@ class JobSession:
                 value = float("nan")
             else:
                 value = U.parse(t, "pressure", U.unit_label("pressure", self.units), where)
-                if not value > 0:
-                    raise InputError(where, f"expected a pressure > 0, got {text!r}")
+                ranges.check("pressure_rating", value, where, t, self.units)
             return dataclasses.replace(p, closure=dataclasses.replace(p.closure, valve_rating=value))
         if key.endswith("_factor"):
             value = U.parse(t, "dimensionless", "", where)
-            if not value >= DESIGN_FACTOR_MIN:
-                raise InputError(where, design_factor_expected(text))
+            ranges.check("design_factor", value, where, t)
             design = dataclasses.replace(p.settings.design, **{key[:-len("_factor")]: value})
             return dataclasses.replace(p, settings=dataclasses.replace(p.settings, design=design))
         value = U.parse(t, kind, U.unit_label(kind, self.units), where)
-        if kind == "density" and not FLUID_DENSITY_RANGE[0] <= value <= FLUID_DENSITY_RANGE[1]:
-            raise InputError(where, f"expected a fluid density between "
-                                    f"{P.fmt(FLUID_DENSITY_RANGE[0], 'density', self.units)} and "
-                                    f"{P.fmt(FLUID_DENSITY_RANGE[1], 'density', self.units)}, "
-                                    f"got {text!r}")
-        if kind in ("length", "force") and value < 0:
-            raise InputError(where, f"expected {U.describe(kind)} >= 0, got {text!r}")
+        ranges.check(SETTING_RANGES[key], value, where, t, self.units)
         if key == "hole_fluid_density":
             return dataclasses.replace(p, hole=dataclasses.replace(p.hole, fluid_density=value))
         if key == "hole_fluid_level":
@@ -768,13 +757,19 @@ class JobSession:
         run (measured lengths, joints set aside) against the plan as written
         and TD (:func:`rigplan.engine.landing.landing_picture`)."""
         from rigplan.engine.landing import landing_picture
+        key = (id(self.base_plan), id(self.plan))
+        cached = getattr(self, "_picture", None)
+        if cached is not None and cached[0] == key:
+            return cached[1]
         planned = self.base_plan.running_joints()
         run = self.plan.running_joints()
-        return landing_picture(
+        picture = landing_picture(
             [j.label for j in planned], [j.length for j in planned],
             [j.kind == "screen" for j in planned], self.base_plan.closure.valve_joint,
             [j.label for j in run], [j.run_length for j in run], self.plan.closure.valve_joint,
             self.base_plan.hole.depth, self.base_plan.settings.screen_depth_tolerance)
+        self._picture = (key, picture, self.base_plan, self.plan)   # plans kept: ids stay theirs
+        return picture
 
     def engine_index(self) -> dict:
         """label -> index into the landing plan's per-joint arrays (running joints)."""
@@ -809,4 +804,9 @@ JOB_SETTINGS = {
     "rig": ("Rig profile", None, "a rigs/*.toml path or a bundled rig's name"),
 }
 
-#: Fluid densities accepted [kg/m^3] (as in the plan file reader).
+#: Range (rigplan.files.ranges) of each quantity the prompts take.
+FIELD_RANGES = {"od": "diameter", "wall": "wall", "length": "joint_length",
+                "measured_length": "joint_length"}
+SETTING_RANGES = {"hole_fluid_density": "fluid_density", "hole_fluid_level": "depth",
+                  "fill_density": "fluid_density", "min_running_weight": "force",
+                  "set_down_weight": "force"}

@@ -25,7 +25,7 @@ import math
 import tomllib
 from pathlib import Path
 
-from rigplan.files import units
+from rigplan.files import ranges, units
 from rigplan.errors import InputError
 
 __all__ = [
@@ -62,23 +62,93 @@ def __getattr__(name):  # lazy: the readers import this module's helpers
 # reading
 
 
+#: Largest input file read [bytes].  The biggest plan of 20,000 joints
+#: written joint by joint is about 6 MB; a larger file is not one of ours.
+MAX_FILE_BYTES = 32 * 1024 * 1024
+
+
+def read_input_bytes(path, what: str = "file") -> bytes:
+    """The bytes of an input file, or InputError naming it (not found, a
+    folder, a device or pipe, too large, unreadable, a name too long)."""
+    p = Path(path)
+    where = str(path)
+    try:
+        st = p.stat()
+    except FileNotFoundError:
+        raise InputError(where, f"{what} not found") from None
+    except OSError as exc:
+        raise InputError(where, f"cannot read the {what} ({exc.strerror or exc})") from None
+    except ValueError:      # an embedded NUL in the name
+        raise InputError(where, f"cannot read the {what}: the name holds a NUL character") from None
+    import stat as _stat
+    if _stat.S_ISDIR(st.st_mode):
+        raise InputError(where, f"expected a {what}, found a folder")
+    if not _stat.S_ISREG(st.st_mode):
+        raise InputError(where, f"expected a {what}, found a device or pipe")
+    if st.st_size > MAX_FILE_BYTES:
+        raise InputError(where, f"the {what} is {st.st_size:,} bytes, more than the "
+                                f"{MAX_FILE_BYTES:,} this rigplan reads: not a {what} of ours")
+    try:
+        return p.read_bytes()
+    except OSError as exc:
+        raise InputError(where, f"cannot read the {what} ({exc.strerror or exc})") from None
+
+
+def decode_text(raw: bytes, source: str, what: str = "file") -> str:
+    """UTF-8 text (a byte-order mark dropped), or InputError naming the file."""
+    if b"\x00" in raw:
+        raise InputError(source, f"binary data (NUL bytes): expected a {what} saved as UTF-8 text")
+    try:
+        return raw.decode("utf-8-sig")
+    except UnicodeDecodeError as exc:
+        raise InputError(source, f"not UTF-8 text (byte {exc.start + 1}): expected a {what} "
+                                 "saved as UTF-8 text") from None
+
+
 def read_toml(path) -> dict:
     """Read a TOML file; a syntax error becomes an InputError naming the file."""
-    p = Path(path)
-    try:
-        raw = p.read_bytes()
-    except FileNotFoundError:
-        raise InputError(str(path), "file not found") from None
-    except OSError as exc:
-        raise InputError(str(path), f"cannot read the file ({exc.strerror})") from None
-    return parse_toml_text(raw.decode("utf-8", errors="replace"), str(path))
+    raw = read_input_bytes(path, "TOML file")
+    return parse_toml_text(decode_text(raw, str(path), "TOML file"), str(path))
+
+
+#: Deepest nesting of arrays and tables read (rigplan's files use 3).
+MAX_NESTING = 20
 
 
 def parse_toml_text(text: str, source: str) -> dict:
     try:
-        return tomllib.loads(text)
+        data = tomllib.loads(text)
     except tomllib.TOMLDecodeError as exc:
         raise InputError(source, f"not valid TOML: {exc}") from None
+    except RecursionError:
+        raise InputError(source, "not valid TOML for rigplan: arrays or tables nested too deeply "
+                                 f"(rigplan files nest at most {MAX_NESTING} levels)") from None
+    except (ValueError, OverflowError, MemoryError) as exc:
+        raise InputError(source, f"not valid TOML: {exc}") from None
+    depth = _depth(data)
+    if depth > MAX_NESTING:
+        raise InputError(source, f"arrays or tables nested {depth} levels deep: rigplan files "
+                                 f"nest at most {MAX_NESTING} levels")
+    return data
+
+
+def _depth(value, level: int = 0) -> int:
+    """Nesting depth of parsed TOML, without recursion past MAX_NESTING + 1."""
+    if level > MAX_NESTING:
+        return level
+    if isinstance(value, dict):
+        return max((_depth(v, level + 1) for v in value.values()), default=level + 1)
+    if isinstance(value, list):
+        return max((_depth(v, level + 1) for v in value), default=level + 1)
+    return level
+
+
+def _short(value) -> str:
+    """A value for a one-line message: long texts and huge numbers cut short."""
+    if isinstance(value, int) and not isinstance(value, bool) and abs(value) > 10 ** 15:
+        return f"a {len(str(abs(value)))}-digit number"
+    text = repr(value)
+    return text if len(text) <= 60 else text[:57] + "..."
 
 
 def _type_name(value) -> str:
@@ -115,7 +185,7 @@ class Table:
         self.known = tuple(known)
         for key in data:
             if key not in self.known:
-                close = difflib.get_close_matches(key, self.known, n=1)
+                close = difflib.get_close_matches(key[:100], self.known, n=1)
                 hint = f" (did you mean {close[0]!r}?)" if close else ""
                 raise InputError(self.where(key), f"unknown key{hint}; known keys here: "
                                                   f"{', '.join(self.known)}")
@@ -124,6 +194,7 @@ class Table:
         return f"{self.source}: {self.path}" if self.path else self.source
 
     def where(self, key: str) -> str:
+        key = key if len(key) <= 60 else key[:57] + "..."
         return f"{self.source}: {self.path}.{key}" if self.path else f"{self.source}: {key}"
 
     def __contains__(self, key) -> bool:
@@ -144,7 +215,7 @@ class Table:
             return default
         value = self.data[key]
         if not isinstance(value, str):
-            raise InputError(self.where(key), f"expected text in quotes, got {_type_name(value)} {value!r}")
+            raise InputError(self.where(key), f"expected text in quotes, got {_type_name(value)} {_short(value)}")
         return value
 
     def choice(self, key: str, choices, default: str | None = None, required: bool = False):
@@ -154,14 +225,14 @@ class Table:
             return default
         value = self.data[key]
         if not isinstance(value, str) or value not in choices:
-            close = difflib.get_close_matches(str(value), choices, n=1)
+            close = difflib.get_close_matches(str(value)[:100], choices, n=1)
             hint = f" (did you mean {close[0]!r}?)" if close else ""
-            raise InputError(self.where(key), f"unknown {key} {value!r}{hint}; expected one of "
+            raise InputError(self.where(key), f"unknown {key} {_short(value)}{hint}; expected one of "
                                               f"{', '.join(choices)}")
         return value
 
     def integer(self, key: str, default=None, required: bool = False, minimum=None,
-                what: str = "a whole number"):
+                what: str = "a whole number", limits: str | None = None):
         if key not in self.data:
             if required:
                 raise self.missing(key, what)
@@ -170,9 +241,11 @@ class Table:
         if isinstance(value, float) and value.is_integer():
             value = int(value)
         if isinstance(value, bool) or not isinstance(value, int):
-            raise InputError(self.where(key), f"expected {what}, got {value!r}")
+            raise InputError(self.where(key), f"expected {what}, got {_short(value)}")
         if minimum is not None and value < minimum:
-            raise InputError(self.where(key), f"expected {what} >= {minimum}, got {value}")
+            raise InputError(self.where(key), f"expected {what} >= {minimum}, got {_short(value)}")
+        if limits is not None:
+            ranges.check(limits, value, self.where(key), self.data[key])
         return value
 
     def boolean(self, key: str, default: bool = False) -> bool:
@@ -180,12 +253,13 @@ class Table:
             return default
         value = self.data[key]
         if not isinstance(value, bool):
-            raise InputError(self.where(key), f"expected true or false, got {value!r}")
+            raise InputError(self.where(key), f"expected true or false, got {_short(value)}")
         return value
 
     def quantity(self, key: str, kind: str, default=None, required: bool = False,
                  allow_unrated: bool = False, positive: bool = False,
-                 nonnegative: bool = False, index: int | None = None, value=None):
+                 nonnegative: bool = False, index: int | None = None, value=None,
+                 limits: str | None = None):
         """A quantity in SI [unit of ``kind``], ``default`` when absent.
 
         ``allow_unrated``: the text ``"unrated"`` gives nan.  ``positive`` /
@@ -204,18 +278,25 @@ class Table:
         unit = units.default_units(self.system)[kind] or None
         result = units.parse(value, kind, unit, where)
         if positive and not result > 0.0:
-            raise InputError(where, f"expected {units.describe(kind)} greater than zero, got {value!r}")
+            raise InputError(where, f"expected {units.describe(kind)} greater than zero, got {_short(value)}")
         if nonnegative and result < 0.0:
-            raise InputError(where, f"expected {units.describe(kind)} not below zero, got {value!r}")
+            raise InputError(where, f"expected {units.describe(kind)} not below zero, got {_short(value)}")
+        if limits is not None:
+            ranges.check(limits, result, where, value, self.system)
         return result
 
-    def number(self, key: str, default=None, required: bool = False, what: str = "a number"):
-        """A plain number [-] (percent text such as ``"85 %"`` allowed)."""
+    def number(self, key: str, default=None, required: bool = False, what: str = "a number",
+               limits: str | None = None):
+        """A plain number [-] (percent text such as ``"85 %"`` allowed),
+        checked against range ``limits`` of :mod:`rigplan.files.ranges`."""
         if key not in self.data:
             if required:
-                raise self.missing(key, what)
+                raise self.missing(key, what if limits is None else ranges.get(limits).expected())
             return default
-        return units.parse(self.data[key], "dimensionless", None, self.where(key))
+        value = units.parse(self.data[key], "dimensionless", None, self.where(key))
+        if limits is not None:
+            ranges.check(limits, value, self.where(key), self.data[key])
+        return value
 
     def tables(self, key: str, known, required: bool = False) -> list:
         """An array of tables ``[[key]]`` as a list of :class:`Table` (1-based paths)."""
@@ -252,7 +333,7 @@ def file_system(data: dict, source: str) -> str:
     value = data.get("units", "si")
     if value not in units.SYSTEMS:
         raise InputError(f"{source}: units", f"expected \"si\" or \"us\" (the units of bare numbers), "
-                                             f"got {value!r}")
+                                             f"got {_short(value)}")
     return value
 
 
@@ -261,7 +342,7 @@ def check_version(data: dict, source: str) -> None:
         v = data["version"]
         if isinstance(v, bool) or v != SCHEMA_VERSION:
             raise InputError(f"{source}: version",
-                             f"this rigplan reads version {SCHEMA_VERSION} files, got {v!r}")
+                             f"this rigplan reads version {SCHEMA_VERSION} files, got {_short(v)}")
 
 
 # ---------------------------------------------------------------------------

@@ -29,6 +29,9 @@ Schema (version 1; bare numbers in the file's ``units`` system, default
     yield_strength = "..."
 
 ``"unknown"`` stores nan: a rating that needs the value is then unrated.
+Every number is checked against its range in :mod:`rigplan.files.ranges`
+(density 500 to 25,000 kg/m3, yield strength 1 MPa to 5 GPa, Young's modulus
+0.1 to 1000 GPa, Poisson ratio 0 to 0.5, under-tolerance 0 to 1).
 """
 
 from __future__ import annotations
@@ -47,6 +50,11 @@ _SOURCE_FIELDS = ("density", "yield_strength", "youngs_modulus", "poisson",
 UNKNOWN = "unknown"
 
 
+_LIMITS = {"density": "material_density", "yield_strength": "yield_strength",
+           "design_stress": "yield_strength",
+           "youngs_modulus": "youngs_modulus", "poisson": "poisson"}
+
+
 def _maybe_unknown(t: Table, key: str, kind: str):
     value = t.raw(key)
     if value is None:
@@ -54,23 +62,32 @@ def _maybe_unknown(t: Table, key: str, kind: str):
     if isinstance(value, str) and value.strip().lower() == UNKNOWN:
         return math.nan
     if kind == "dimensionless":
-        return t.number(key)
-    return t.quantity(key, kind, positive=True)
+        return t.number(key, limits=_LIMITS[key])
+    return t.quantity(key, kind, positive=True, limits=_LIMITS[key])
 
 
 def materials_from_data(data: dict, source: str) -> list:
     """Materials defined in a parsed file (not registered)."""
     from rigplan.engine.materials import COLLAPSE_METHODS, FAMILIES, TEMPERATURE_DERATING, Material
 
+    if not data:
+        raise InputError(source, "the file is empty: expected [[material]] tables (key, name, "
+                                 "family, density, yield_strength, ...)")
     check_version(data, source)
     system = file_system(data, source)
     top = Table(data, source, "", system, TOP_KEYS)
     out = []
     keys = {}
-    for t in top.tables("material", MATERIAL_KEYS, required=True):
+    tables = top.tables("material", MATERIAL_KEYS, required=True)
+    if not tables:
+        raise InputError(top.where("material"), "expected at least one [[material]] table, got none")
+    for t in tables:
         key = t.text("key", required=True).strip().lower()
         if not key:
             raise InputError(t.where("key"), "expected a material key, got an empty text")
+        if len(key) > 40 or not key.isprintable():
+            raise InputError(t.where("key"), f"expected a short material key (at most 40 printable "
+                                             f"characters, e.g. \"ss316l_wire\"), got {len(key)} characters")
         if key in keys:
             raise InputError(t.where("key"), f"key {key!r} already defined in {keys[key]}")
         keys[key] = t.path
@@ -87,18 +104,10 @@ def materials_from_data(data: dict, source: str) -> list:
             values["design_stress"] = _maybe_unknown(t, "design_stress", "stress")
         values["temperature_derating"] = t.choice("temperature_derating",
                                                   tuple(TEMPERATURE_DERATING), default="")
-        nu = values["poisson"]
-        if not math.isnan(nu) and not 0.0 <= nu < 0.5:
-            raise InputError(t.where("poisson"), f"expected a Poisson ratio 0 <= nu < 0.5, got "
-                                                 f"{t.raw('poisson')!r}")
         if "wall_under_tolerance" not in t:
             raise t.missing("wall_under_tolerance", "the fraction the wall may be under the "
                                                     "specified wall (e.g. \"12.5 %\" or 0.125; 0 if none)")
-        u = t.number("wall_under_tolerance")
-        if not 0.0 <= u < 1.0:
-            raise InputError(t.where("wall_under_tolerance"),
-                             f"expected 0 <= under-tolerance < 1 (e.g. \"12.5 %\"), got "
-                             f"{t.raw('wall_under_tolerance')!r}")
+        u = t.number("wall_under_tolerance", limits="wall_under_tolerance")
         general = t.text("source", default="").strip()
         st = t.table("sources", _SOURCE_FIELDS)
         sources = {}
@@ -136,7 +145,17 @@ def register_materials(data: dict, source: str) -> list:
                                     "or add replace = true")
     for m, replace, _ in entries:
         materials.register_material(m, replace=replace)
+        _FILE_OF[m.key] = source
     return [m for m, _, _ in entries]
+
+
+#: material key -> the user file it was registered from
+_FILE_OF: dict = {}
+
+
+def material_file(key: str) -> str | None:
+    """The materials file a registered material came from (None: built in)."""
+    return _FILE_OF.get(key)
 
 
 def read_materials(path) -> list:

@@ -67,7 +67,7 @@ weight (w)::
                                  # from its planned depth before a warning,
                                  # 0 to 30 m (100 ft), default 2 ft
 
-    [design_factors]             # optional, plain numbers
+    [design_factors]             # optional, plain numbers, 1 to 10
     tension = 1.6                # defaults from rigplan.engine.stringmodel.DesignFactors
     collapse = 1.125
     burst = 1.1
@@ -86,8 +86,13 @@ Joints are labelled J1..Jn in running order (J1 is the bottom joint, first in
 the hole).  A tally's measured lengths, rejections, measured walls and rack ODs are
 applied by label.  Warnings (not errors) are returned with the plan: grout
 lighter than the hole fluid, a string longer than the hole, an OD larger than
-the hole, float-equipment joints without a
-``[float_equipment]`` table.
+the hole, float-equipment joints without a ``[float_equipment]`` table.
+
+Every number is checked against its range in :mod:`rigplan.files.ranges`
+(joints per string at most :data:`rigplan.files.ranges.MAX_JOINTS`, design
+factors 1 to 10, fluid densities 600 to 3000 kg/m3, ...); a value outside is
+refused with one line naming the key, the range in SI and US units, and the
+value given.
 """
 
 from __future__ import annotations
@@ -98,8 +103,9 @@ from dataclasses import dataclass, fields
 from pathlib import Path
 
 from rigplan.errors import InputError
-from rigplan.files.formats import (SCHEMA_VERSION, Table, check_version, dump_toml, file_system,
-                             parse_toml_text, quantity_text, read_toml)
+from rigplan.files import ranges
+from rigplan.files.formats import (SCHEMA_VERSION, Table, _short, check_version, dump_toml,
+                                   file_system, parse_toml_text, quantity_text, read_toml)
 from rigplan.engine.stringmodel import (CONNECTION_KINDS, JOINT_KINDS, Closure, DesignFactors, GroutSpec,
                                  Hole, JointSpec, Settings, StringPlan)
 
@@ -123,7 +129,8 @@ GROUT_KEYS = ("density", "height", "inside_density", "inside_level", "temperatur
 #: The printed job packet's facts: text, kept as written (a TOML date is read as YYYY-MM-DD).
 REPORT_KEYS = ("revision", "date", "prepared_by", "reviewed_by")
 
-# file key -> (JointSpec field, quantity kind) for the optional quantities
+# file key -> (JointSpec field, quantity kind, may be "unrated") for the
+# optional quantities; their ranges are in _OPTIONAL_LIMITS
 _OPTIONAL_QUANTITIES = (
     ("connection_rating", "connection_rating", "force", True),
     ("tensile_rating", "tensile_rating", "force", True),
@@ -136,14 +143,26 @@ _OPTIONAL_QUANTITIES = (
     ("dmax", "dmax", "diameter", False),
     ("dmin", "dmin", "diameter", False),
 )
+_OPTIONAL_LIMITS = {
+    "connection_rating": "force_rating", "tensile_rating": "force_rating",
+    "collapse_rating": "pressure_rating", "burst_rating": "pressure_rating",
+    "joint_weight": "force_rating", "weight_per_length": "weight_per_length",
+    "measured_wall": "wall", "bore": "diameter", "dmax": "diameter", "dmin": "diameter",
+}
 
 #: Screen depth tolerances accepted [m]: 0 to 30 m (about 100 ft, five
 #: joints); more is no longer a check on where a screen lands.
-SCREEN_TOLERANCE_RANGE = (0.0, 30.0)
+SCREEN_TOLERANCE_RANGE = (ranges.RANGES["screen_depth_tolerance"].lo,
+                          ranges.RANGES["screen_depth_tolerance"].hi)
 
 #: Densities accepted for a drilling fluid, fill fluid or grout [kg/m^3]
 #: (about 5 to 25 ppg): a value outside is almost surely a unit slip.
-FLUID_DENSITY_RANGE = (600.0, 3000.0)
+FLUID_DENSITY_RANGE = (ranges.RANGES["fluid_density"].lo, ranges.RANGES["fluid_density"].hi)
+
+#: Most other fill fluids and float collar positions compared in one plan
+#: (each pair is a full float plan; the bundled jobs use 2 and 3).
+MAX_FILL_ALTERNATIVES = 8
+MAX_COLLAR_CANDIDATES = 24
 
 #: How far a tally's rack OD reading may lie from the joint's od [-]: further
 #: is a unit slip, not an oval joint.
@@ -158,12 +177,12 @@ _TEMPERATURE = re.compile(r"^\s*(?P<value>[-+]?(?:\d+\.?\d*|\.\d+))\s*"
 
 #: Least design factor accepted, in files and in the app's prompts [-]: a
 #: factor below 1 would let a load pass above the maker's rating.
-DESIGN_FACTOR_MIN = 1.0
+DESIGN_FACTOR_MIN = ranges.RANGES["design_factor"].lo
 
 
 def design_factor_expected(got) -> str:
-    """The one message for a design factor out of range."""
-    return f"expected a design factor >= {DESIGN_FACTOR_MIN:g} [-], got {got!r}"
+    """The one message for a design factor out of range (rigplan.files.ranges)."""
+    return f"expected {ranges.RANGES['design_factor'].expected()}, got {_short(got)}"
 
 _DEFAULT_SETTINGS = Settings()
 _DEFAULT_DESIGN = DesignFactors()
@@ -241,15 +260,15 @@ def _temperature(t: Table, key: str, default: float, difference: bool) -> float:
 def _fluid_density(t: Table, key: str, default=None, required: bool = False, index=None, value=None):
     """A fluid or grout density [kg/m^3], checked for plausibility."""
     if value is None and key not in t:
-        return t.quantity(key, "density", default=default, required=required)
+        return t.quantity(key, "density", default=default, required=required,
+                          limits="fluid_density")
     rho = t.quantity(key, "density", positive=True, index=index, value=value)
-    lo, hi = FLUID_DENSITY_RANGE
-    if not lo <= rho <= hi:
+    if not ranges.RANGES["fluid_density"].contains(rho):
         where = t.where(key) if index is None else f"{t.where(key)}[{index}]"
         shown = t.raw(key) if value is None else value
-        raise InputError(where, f"{shown!r} is {rho:.0f} kg/m3: expected a fluid density between "
-                                f"{lo:.0f} and {hi:.0f} kg/m3 (about 5 to 25 ppg); check the unit "
-                                "(bare numbers are in the file's units)")
+        raise InputError(where, f"{_short(shown)} is {rho:.4g} kg/m3: expected "
+                                f"{ranges.RANGES['fluid_density'].expected(t.system)}; check the "
+                                "unit (bare numbers are in the file's units)")
     return rho
 
 
@@ -286,14 +305,16 @@ def _joint_fields(t: Table) -> dict:
         "material": _material_key(t),
         "connection": t.choice("connection", CONNECTION_KINDS, default="butt_weld"),
     }
-    od = t.quantity("od", "diameter", required=True, positive=True)
-    wall = t.quantity("wall", "diameter", required=True, positive=True)
+    od = t.quantity("od", "diameter", required=True, positive=True, limits="diameter")
+    wall = t.quantity("wall", "diameter", required=True, positive=True, limits="wall")
     if wall >= od / 2.0:
         raise InputError(t.where("wall"), f"wall {t.raw('wall')!r} is not less than half the od "
                                           f"{t.raw('od')!r}: expected a wall thickness < od/2")
     out["od"], out["wall"] = od, wall
     for key, attr, kind, may_be_unrated in _OPTIONAL_QUANTITIES:
         value = t.quantity(key, kind, default=None, allow_unrated=may_be_unrated, positive=True)
+        if value is not None and not math.isnan(value):
+            ranges.check(_OPTIONAL_LIMITS[key], value, t.where(key), t.raw(key), t.system)
         if value is not None and math.isnan(value):
             value = None          # "unrated" is what an absent rating means
         out[attr] = value
@@ -309,17 +330,8 @@ def _joint_fields(t: Table) -> dict:
         raise InputError(t.where(other), f"required with {given}: a diameter (e.g. 16.05 in or 407.7 mm)")
     if out["dmax"] is not None and out["dmin"] > out["dmax"]:
         raise InputError(t.where("dmin"), f"dmin {t.raw('dmin')!r} is larger than dmax {t.raw('dmax')!r}")
-    eff = t.number("weld_efficiency", default=None)
-    if eff is not None and not 0.0 < eff <= 1.0:
-        raise InputError(t.where("weld_efficiency"),
-                         f"expected a weld efficiency in (0, 1], e.g. 0.85, got {t.raw('weld_efficiency')!r}")
-    out["weld_efficiency"] = eff
-    e = t.number("ellipticity", default=None)
-    if e is not None and not 0.0 <= e < 1.0:
-        raise InputError(t.where("ellipticity"),
-                         f"expected an ellipticity (Dmax-Dmin)/(Dmax+Dmin) with 0 <= e < 1, "
-                         f"e.g. 0.01, got {t.raw('ellipticity')!r}")
-    out["ellipticity"] = e
+    out["weld_efficiency"] = t.number("weld_efficiency", default=None, limits="weld_efficiency")
+    out["ellipticity"] = t.number("ellipticity", default=None, limits="ellipticity")
     return out
 
 
@@ -327,16 +339,27 @@ def _joints_from_sections(sections) -> list:
     joints = []
     for t in sections:
         common = _joint_fields(t)
-        length = t.quantity("joint_length", "length", required=True, positive=True)
-        count = t.integer("count", required=True, minimum=1, what="a whole number of joints")
-        for _ in range(count):
-            joints.append(JointSpec(label=f"J{len(joints) + 1}", length=length, **common))
+        length = t.quantity("joint_length", "length", required=True, positive=True,
+                            limits="joint_length")
+        count = t.integer("count", required=True, minimum=1, what="a whole number of joints",
+                          limits="joint_count")
+        if len(joints) + count > ranges.MAX_JOINTS:
+            raise InputError(t.where("count"), f"{len(joints) + count:,} joints in the string: "
+                                               f"expected at most {ranges.MAX_JOINTS:,} joints "
+                                               "in one string")
+        base = len(joints)
+        joints.extend(JointSpec(label=f"J{base + k + 1}", length=length, **common)
+                      for k in range(count))
     return joints
 
 
 def _joints_one_by_one(tables) -> list:
     joints = []
     seen = {}
+    if len(tables) > ranges.MAX_JOINTS:
+        t = tables[ranges.MAX_JOINTS]
+        raise InputError(f"{t.source}: {t.path}", f"{len(tables):,} [[joint]] tables: expected at "
+                                                  f"most {ranges.MAX_JOINTS:,} joints in one string")
     for i, t in enumerate(tables, start=1):
         common = _joint_fields(t)
         label = t.text("label", default=f"J{i}").strip()
@@ -347,8 +370,10 @@ def _joints_one_by_one(tables) -> list:
         seen[label] = t.path
         joints.append(JointSpec(
             label=label,
-            length=t.quantity("length", "length", required=True, positive=True),
-            measured_length=t.quantity("measured_length", "length", default=None, positive=True),
+            length=t.quantity("length", "length", required=True, positive=True,
+                              limits="joint_length"),
+            measured_length=t.quantity("measured_length", "length", default=None, positive=True,
+                                       limits="joint_length"),
             rejected=t.boolean("rejected"),
             note=t.text("note", default=""),
             **common,
@@ -480,9 +505,11 @@ def plan_from_data(data: dict, source: str, base_dir=Path("."), default_name: st
                                             "(e.g. fluid_density = \"9.2 ppg\")")
     hole = Hole(
         fluid_density=_fluid_density(ht, "fluid_density", required=True),
-        fluid_level=ht.quantity("fluid_level", "length", default=0.0, nonnegative=True),
-        depth=ht.quantity("depth", "length", default=math.nan, positive=True),
-        diameter=ht.quantity("diameter", "diameter", default=math.nan, positive=True),
+        fluid_level=ht.quantity("fluid_level", "length", default=0.0, nonnegative=True,
+                                limits="depth"),
+        depth=ht.quantity("depth", "length", default=math.nan, positive=True, limits="depth"),
+        diameter=ht.quantity("diameter", "diameter", default=math.nan, positive=True,
+                             limits="diameter"),
         temperature=_temperature(ht, "temperature", Hole.temperature, difference=False),
     )
     if not math.isnan(hole.depth) and hole.fluid_level > hole.depth:
@@ -501,6 +528,10 @@ def plan_from_data(data: dict, source: str, base_dir=Path("."), default_name: st
         raise InputError(f"{source}: section", "required: the string, as [[section]] tables "
                                                "(kind, material, od, wall, joint_length, count) "
                                                "or [[joint]] tables")
+    if not joints:
+        key = "section" if "section" in top else "joint"
+        raise InputError(top.where(key), f"expected at least one [[{key}]] table (kind, material, "
+                                         "od, wall and length of the joints), got none")
 
     # tally
     tally_path = None
@@ -511,14 +542,22 @@ def plan_from_data(data: dict, source: str, base_dir=Path("."), default_name: st
         if not tally_name.strip():
             raise InputError(top.where("tally"), "expected the path of a tally CSV, got an empty text")
         tally_path = Path(base_dir) / tally_name
-        if not tally_path.is_file():
+        try:
+            found = tally_path.is_file()
+        except (OSError, ValueError) as exc:
+            raise InputError(top.where("tally"), f"not a usable tally file name "
+                                                 f"({getattr(exc, 'strerror', None) or exc})") from None
+        if not found:
             raise InputError(top.where("tally"), f"tally file {str(tally_path)!r} not found "
                                                  "(the path is relative to the plan file)")
         joints = apply_tally(joints, read_tally(tally_path), str(tally_path))
 
     running = [j for j in joints if not j.rejected]
     if not running:
-        raise InputError(f"{source}: section", "every joint is rejected: nothing to run")
+        if tally_path is not None:
+            raise InputError(str(tally_path), "every joint of the plan is set aside (status "
+                                              "rejected) in this tally: nothing to run")
+        raise InputError(top.where("joint"), "every joint is marked rejected: nothing to run")
     n_run = len(running)
     shoe_depth = sum(j.run_length for j in running)
     position_of_label = {j.label: i for i, j in enumerate(joints, start=1)}
@@ -530,6 +569,9 @@ def plan_from_data(data: dict, source: str, base_dir=Path("."), default_name: st
         kind = ft.choice("type", FLOAT_TYPES, required=True)
         rating = ft.quantity("valve_rating", "pressure", default=math.nan, allow_unrated=True,
                              positive=True)
+        if not math.isnan(rating):
+            ranges.check("pressure_rating", rating, ft.where("valve_rating"),
+                         ft.raw("valve_rating"), ft.system)
         if kind != "float_collar" and "collar_joint" in ft:
             raise InputError(ft.where("collar_joint"), f"collar_joint is only for type = \"float_collar\" "
                                                        f"(type is {kind!r})")
@@ -558,8 +600,9 @@ def plan_from_data(data: dict, source: str, base_dir=Path("."), default_name: st
                                      f"a joint 1..{len(joints)}, got {position}")
             collar = joints[position - 1]
             if collar.rejected:
+                by = f"the tally {str(tally_path)!r}" if tally_path is not None else "the plan"
                 raise InputError(ft.where("collar_joint"), f"the float collar joint {collar.label} is "
-                                                           "rejected in the tally: move the collar")
+                                                           f"rejected in {by}: move the collar")
             valve_joint = sum(1 for j in joints[:position] if not j.rejected)
             closure = Closure(valve_joint=valve_joint, valve_rating=rating)
     elif any(j.kind in ("float_shoe", "float_collar") for j in running):
@@ -573,30 +616,34 @@ def plan_from_data(data: dict, source: str, base_dir=Path("."), default_name: st
         settings_kw["fill_density"] = _fluid_density(rt, "fill_density",
                                                      default=_DEFAULT_SETTINGS.fill_density)
         alts = rt.list_of("fill_alternatives")
+        if alts is not None and len(alts) > MAX_FILL_ALTERNATIVES:
+            raise InputError(rt.where("fill_alternatives"),
+                             f"{len(alts)} fill fluids: expected at most {MAX_FILL_ALTERNATIVES} "
+                             "other fill fluids to compare")
         if alts is not None:
             settings_kw["fill_density_alternatives"] = tuple(
                 _fluid_density(rt, "fill_alternatives", index=i, value=v)
                 for i, v in enumerate(alts, start=1))
         settings_kw["min_running_weight"] = rt.quantity("min_running_weight", "force",
-                                                        default=0.0, nonnegative=True)
+                                                        default=0.0, nonnegative=True,
+                                                        limits="force")
         settings_kw["set_down_weight"] = rt.quantity("set_down_weight", "force", default=0.0,
-                                                     nonnegative=True)
-        tol = rt.quantity("screen_depth_tolerance", "length",
-                          default=_DEFAULT_SETTINGS.screen_depth_tolerance)
-        lo, hi = SCREEN_TOLERANCE_RANGE
-        if not lo <= tol <= hi:
-            raise InputError(rt.where("screen_depth_tolerance"),
-                             f"expected a length from {lo:g} to {hi:g} m (0 to 100 ft), got "
-                             f"{rt.raw('screen_depth_tolerance')!r}")
-        settings_kw["screen_depth_tolerance"] = tol
+                                                     nonnegative=True, limits="force")
+        settings_kw["screen_depth_tolerance"] = rt.quantity(
+            "screen_depth_tolerance", "length", default=_DEFAULT_SETTINGS.screen_depth_tolerance,
+            nonnegative=True, limits="screen_depth_tolerance")
         cands = rt.list_of("collar_candidates")
+        if cands is not None and len(cands) > MAX_COLLAR_CANDIDATES:
+            raise InputError(rt.where("collar_candidates"),
+                             f"{len(cands)} float collar positions: expected at most "
+                             f"{MAX_COLLAR_CANDIDATES} positions to compare")
         if cands is not None:
             checked = []
             for i, c in enumerate(cands, start=1):
                 if isinstance(c, bool) or not isinstance(c, int) or not 1 <= c <= n_run:
                     raise InputError(f"{rt.where('collar_candidates')}[{i}]",
                                      f"float collar placed below the shoe or above the top: expected "
-                                     f"a joint 1..{n_run}, got {c!r}")
+                                     f"a joint 1..{n_run}, got {_short(c)}")
                 checked.append(c)
             settings_kw["float_collar_positions"] = tuple(checked)
     if "float_collar_positions" not in settings_kw:
@@ -607,10 +654,8 @@ def plan_from_data(data: dict, source: str, base_dir=Path("."), default_name: st
     if dt is not None:
         df = {}
         for key in DESIGN_KEYS:
-            v = dt.number(key, default=getattr(_DEFAULT_DESIGN, key))
-            if not v >= DESIGN_FACTOR_MIN:
-                raise InputError(dt.where(key), design_factor_expected(dt.raw(key)))
-            df[key] = v
+            df[key] = dt.number(key, default=getattr(_DEFAULT_DESIGN, key),
+                                limits="design_factor")
         settings_kw["design"] = DesignFactors(**df)
     settings = Settings(**settings_kw)
 
@@ -620,11 +665,12 @@ def plan_from_data(data: dict, source: str, base_dir=Path("."), default_name: st
     if gt is not None:
         grout = GroutSpec(
             density=_fluid_density(gt, "density", required=True),
-            height=gt.quantity("height", "length", required=True, positive=True),
+            height=gt.quantity("height", "length", required=True, positive=True, limits="depth"),
             inside_density=_fluid_density(
                 gt, "inside_density",
                 default=GroutSpec.__dataclass_fields__["inside_density"].default),
-            inside_level=gt.quantity("inside_level", "length", default=0.0, nonnegative=True),
+            inside_level=gt.quantity("inside_level", "length", default=0.0, nonnegative=True,
+                                     limits="depth"),
             temperature_rise=_temperature(gt, "temperature_rise", 0.0, difference=True),
         )
         if grout.height > shoe_depth * (1 + 1e-12):

@@ -2,7 +2,8 @@
 
 Schema (version 1; bare numbers in the file's ``units`` system, default
 ``"si"``; a rating may be the text ``"unrated"``, and a rating left out is
-unrated too -- never assumed)::
+unrated too -- never assumed; every number is checked against its range in
+:mod:`rigplan.files.ranges`, forces up to about 5,100 tonne-force)::
 
     version = 1                 # optional
     units = "us"                # "si" (default) or "us": unit of bare numbers
@@ -59,6 +60,7 @@ import math
 from pathlib import Path
 
 from rigplan.errors import InputError
+from rigplan.files import ranges
 from rigplan.files.formats import Table, check_version, file_system, read_toml, parse_toml_text
 
 TOP_KEYS = ("version", "units", "name", "notes", "path", "landing_string")
@@ -72,8 +74,9 @@ TOOL_KEYS = ("name", "kind", "rating", "basis", "net_of")
 #: factor from the engine's hoisting formulas).  A rope design factor under
 #: 1 would let the line work above its breaking force, and over 20 is taken
 #: as a typing error; a dynamic factor over 3 likewise.
-ROPE_DESIGN_FACTOR_RANGE = (1.0, 20.0)
-DYNAMIC_FACTOR_RANGE = (1.0, 3.0)
+ROPE_DESIGN_FACTOR_RANGE = (ranges.RANGES["rope_design_factor"].lo,
+                            ranges.RANGES["rope_design_factor"].hi)
+DYNAMIC_FACTOR_RANGE = (ranges.RANGES["dynamic_factor"].lo, ranges.RANGES["dynamic_factor"].hi)
 LANDING_KEYS = ("name", "weight_per_length", "tensile_rating", "density", "od", "bore",
                 "joint_length")
 
@@ -97,6 +100,19 @@ def parse_rig(text: str, source: str = "<rig>"):
 def _rewhere(exc: InputError, where: str) -> InputError:
     """An engine-side InputError re-issued with the file's name in front."""
     return InputError(where, str(exc))
+
+
+#: Most hoisting paths in one rig profile, and tools on one path.
+MAX_PATHS = 32
+MAX_TOOLS = 32
+
+
+def _rating(t: Table, key: str) -> float:
+    """A force rating [N], nan when left out or "unrated"; range checked."""
+    value = t.quantity(key, "force", default=math.nan, allow_unrated=True, positive=True)
+    if not math.isnan(value):
+        ranges.check("force_rating", value, t.where(key), t.raw(key), t.system)
+    return value
 
 
 def _number_in(t: Table, key: str, default: float, bounds: tuple, what: str) -> float:
@@ -142,39 +158,46 @@ def rig_from_data(data: dict, source: str):
 
     paths = []
     seen = {}
-    for t in top.tables("path", PATH_KEYS, required=True):
+    path_tables = top.tables("path", PATH_KEYS, required=True)
+    if not path_tables:
+        raise InputError(top.where("path"), "expected at least one [[path]] table (a way of "
+                                            "holding the string: name, lines, ratings, dead_load), "
+                                            "got none")
+    if len(path_tables) > MAX_PATHS:
+        raise InputError(top.where("path"), f"{len(path_tables)} [[path]] tables: expected at "
+                                            f"most {MAX_PATHS}")
+    for t in path_tables:
         pname = t.text("name", required=True).strip()
         if not pname:
             raise InputError(t.where("name"), "expected a path name, got an empty text")
         if pname in seen:
             raise InputError(t.where("name"), f"path name {pname!r} already used by {seen[pname]}")
         seen[pname] = t.path
-        lo, hi = LINES_RANGE
-        lines = t.integer("lines", default=1, minimum=lo, what="a whole number of lines strung")
-        if lines > hi:
-            raise InputError(t.where("lines"), f"expected a whole number of lines strung from {lo} "
-                                               f"to {hi}, got {t.raw('lines')!r}")
-        k = _number_in(t, "sheave_factor", 1.04, SHEAVE_FACTOR_RANGE,
-                       "a sheave factor (1.04 for roller bearings)")
+        lines = t.integer("lines", default=1, minimum=1, what="a whole number of lines strung",
+                          limits="lines")
+        k = t.number("sheave_factor", default=1.04, limits="sheave_factor")
         ratings = {}
         for key in ("winch_line_pull", "rope_breaking_force", "mast_rating", "top_head_pullup"):
-            ratings[key] = t.quantity(key, "force", default=math.nan, allow_unrated=True,
-                                      positive=True)
-        df = _number_in(t, "rope_design_factor", 3.0, ROPE_DESIGN_FACTOR_RANGE,
-                        "a rope design factor (3 is usual)")
+            ratings[key] = _rating(t, key)
+        df = t.number("rope_design_factor", default=3.0, limits="rope_design_factor")
         if "dead_load" not in t:
             raise InputError(t.where("dead_load"),
                              "required: a force (e.g. 1800 lbf or 8 kN): block, hook, elevator or "
                              "clamp, and the top head where it rides on the line; write 0 if none")
-        dead = t.quantity("dead_load", "force", nonnegative=True)
-        reserve = t.quantity("overpull_reserve", "force", default=0.0, nonnegative=True)
-        dyn = _number_in(t, "dynamic_factor", 1.0, DYNAMIC_FACTOR_RANGE, "a dynamic factor")
+        dead = t.quantity("dead_load", "force", nonnegative=True, limits="force")
+        reserve = t.quantity("overpull_reserve", "force", default=0.0, nonnegative=True,
+                             limits="force")
+        dyn = t.number("dynamic_factor", default=1.0, limits="dynamic_factor")
         bases = {}
         for key in ("mast_rating", "top_head_pullup"):
             bases[key] = _basis(t, f"{key}_basis", f"{key}_net_of", "gross", dead)
         tools = []
         tool_names = {}
-        for tt in t.tables("tool", TOOL_KEYS):
+        tool_tables = t.tables("tool", TOOL_KEYS)
+        if len(tool_tables) > MAX_TOOLS:
+            raise InputError(t.where("tool"), f"{len(tool_tables)} [[path.tool]] tables: expected "
+                                              f"at most {MAX_TOOLS} on one path")
+        for tt in tool_tables:
             tname = tt.text("name", required=True).strip()
             if not tname:
                 raise InputError(tt.where("name"), "expected a tool name, got an empty text")
@@ -182,7 +205,7 @@ def rig_from_data(data: dict, source: str):
                 raise InputError(tt.where("name"), f"tool name {tname!r} already used by {tool_names[tname]}")
             tool_names[tname] = tt.path
             kind = tt.choice("kind", TOOL_KINDS, required=True)
-            rating = tt.quantity("rating", "force", default=math.nan, allow_unrated=True, positive=True)
+            rating = _rating(tt, "rating")
             basis, net_of = _basis(tt, "basis", "net_of",
                                    "net" if kind in HANDLING_TOOL_KINDS else "gross", dead)
             tools.append((tname, kind, rating, basis, net_of))
@@ -208,17 +231,18 @@ def rig_from_data(data: dict, source: str):
         lname = lt.text("name", required=True).strip()
         if not lname:
             raise InputError(lt.where("name"), "expected a name, got an empty text")
-        od = lt.quantity("od", "diameter", default=math.nan, positive=True)
-        bore = lt.quantity("bore", "diameter", default=math.nan, positive=True)
+        od = lt.quantity("od", "diameter", default=math.nan, positive=True, limits="diameter")
+        bore = lt.quantity("bore", "diameter", default=math.nan, positive=True, limits="diameter")
         if not math.isnan(od) and not math.isnan(bore) and bore >= od:
             raise InputError(lt.where("bore"), f"expected a bore smaller than the od, got "
                                                f"{lt.raw('bore')!r} with od {lt.raw('od')!r}")
-        weight = lt.quantity("weight_per_length", "linear_weight", required=True, positive=True)
-        tensile = lt.quantity("tensile_rating", "force", default=math.nan, allow_unrated=True,
-                              positive=True)
+        weight = lt.quantity("weight_per_length", "linear_weight", required=True, positive=True,
+                             limits="weight_per_length")
+        tensile = _rating(lt, "tensile_rating")
         density = lt.quantity("density", "density", default=DEFAULT_LANDING_STRING_DENSITY,
-                              positive=True)
-        joint_length = lt.quantity("joint_length", "length", default=9.144, positive=True)
+                              positive=True, limits="material_density")
+        joint_length = lt.quantity("joint_length", "length", default=9.144, positive=True,
+                                   limits="joint_length")
         try:
             landing = LandingString(name=lname, weight_per_length=weight, tensile_rating=tensile,
                                     density=density, od=od, bore=bore, joint_length=joint_length)

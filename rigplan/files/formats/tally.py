@@ -35,7 +35,10 @@ readings separated by ``;`` (several stations along the joint,
   has no measured length.
 
 Without a unit in the header every value of that column must carry its own
-unit.  Numbers never use a decimal comma or a thousands separator (the field
+unit.  A measured length is a joint length (0.1 to 30 m) and a wall 0.1 to
+150 mm (:mod:`rigplan.files.ranges`); a row whose whole-number length is
+followed by a column of digits only (``20,04``) is refused as a decimal
+comma.  Numbers never use a decimal comma or a thousands separator (the field
 separator is a comma).
 """
 
@@ -47,7 +50,7 @@ import re
 from dataclasses import dataclass, field
 from pathlib import Path
 
-from rigplan.files import units
+from rigplan.files import ranges, units
 from rigplan.errors import InputError
 from rigplan.engine.stringmodel import JOINT_KINDS
 
@@ -56,11 +59,14 @@ COLUMNS = ("label", "measured_length", "kind", "status", "note", "measured_wall"
 STATUSES = ("run", "rejected", "not run")
 LENGTH_SOURCES = ("measured", "planned")
 #: Largest running position a tally may give (the most joints in one string).
-MAX_RUN_ORDER = 100_000
+MAX_RUN_ORDER = ranges.MAX_JOINTS
 _QUANTITY_COLUMNS = {"measured_length": "length", "measured_wall": "diameter",
                      "planned_length": "length", "od_max": "diameter", "od_min": "diameter"}
 #: Columns whose cell may hold several readings, and which one counts.
 _READINGS = {"measured_wall": min, "od_max": max, "od_min": min}
+#: Range (rigplan.files.ranges) of each quantity column.
+_LIMITS = {"measured_length": "joint_length", "measured_wall": "wall",
+           "planned_length": "joint_length", "od_max": "diameter", "od_min": "diameter"}
 _HEADER_CELL = re.compile(r"^\s*(?P<name>[A-Za-z_]+)\s*(?:\[(?P<unit>[^\]]*)\])?\s*$")
 
 
@@ -101,6 +107,18 @@ class TallyRow:
     od_min: float | None = None
 
 
+def _short(value) -> str:
+    text = repr(value)
+    return text if len(text) <= 60 else text[:57] + "..."
+
+
+def _system_of(unit) -> str | None:
+    """The unit system a header unit belongs to, for messages (None: SI first)."""
+    if unit is None:
+        return None
+    return "us" if unit.strip().lower() in ("ft", "feet", "foot", "in", "inch", "'", '"') else "si"
+
+
 def _header(cells, source: str, line: int):
     columns = []
     unit_of = {}
@@ -108,7 +126,7 @@ def _header(cells, source: str, line: int):
         m = _HEADER_CELL.match(cell)
         name = m.group("name").lower() if m else cell.strip()
         if not m or name not in COLUMNS:
-            raise InputError(f"{source}: row {line}", f"unknown column {cell.strip()!r}; known "
+            raise InputError(f"{source}: row {line}", f"unknown column {_short(cell.strip())}; known "
                                                       f"columns: {', '.join(COLUMNS)} (a unit may "
                                                       "follow in brackets: measured_length [ft])")
         if name in columns:
@@ -130,6 +148,41 @@ def _header(cells, source: str, line: int):
     return columns, unit_of
 
 
+#: Longest joint label [characters].
+MAX_LABEL = 64
+
+_WHOLE = re.compile(r"^\d+$")
+_FRACTION_DIGITS = re.compile(r"^\d{1,4}$")
+
+
+def _rows(reader, source: str):
+    """The csv reader's rows; a csv error (a field over the size limit, a
+    NUL byte, an open quote) becomes an InputError naming the row."""
+    while True:
+        try:
+            cells = next(reader)
+        except StopIteration:
+            return
+        except csv.Error as exc:
+            raise InputError(f"{source}: row {reader.line_num}",
+                             f"not a readable CSV row ({exc}); expected the columns "
+                             f"{', '.join(COLUMNS)}, comma separated") from None
+        yield cells
+
+
+def _decimal_comma(cells, columns, line: int, source: str) -> None:
+    """Refuse a row whose quantity reads like a decimal comma split in two
+    (``20,04`` taken as 20 and a next column of ``04``)."""
+    for i, name in enumerate(columns[:-1]):
+        if name in _QUANTITY_COLUMNS and _WHOLE.match(cells[i].strip()) \
+                and _FRACTION_DIGITS.match(cells[i + 1].strip()):
+            a, b = cells[i].strip(), cells[i + 1].strip()
+            raise InputError(f"{source}: row {line}, {name}",
+                             f"{a!r} followed by {b!r} in the {columns[i + 1]} column looks like a "
+                             f"decimal comma ({a},{b}): write {a}.{b} (a point for decimals), or "
+                             f"quote a {columns[i + 1]} that is only digits")
+
+
 def parse_tally(text: str, source: str = "<tally>") -> list:
     """Rows of a tally CSV text (see the module docstring)."""
     reader = csv.reader(io.StringIO(text, newline=""))
@@ -138,7 +191,7 @@ def parse_tally(text: str, source: str = "<tally>") -> list:
     rows = []
     seen = {}
     line = 0
-    for cells in reader:
+    for cells in _rows(reader, source):
         line = reader.line_num
         if not cells or all(not c.strip() for c in cells):
             continue
@@ -151,11 +204,19 @@ def parse_tally(text: str, source: str = "<tally>") -> list:
             hint = " (a decimal comma? write 20.5, not 20,5)" if len(cells) > len(columns) else ""
             raise InputError(f"{source}: row {line}", f"{len(cells)} fields, the header has "
                                                       f"{len(columns)}{hint}")
+        _decimal_comma(cells, columns, line, source)
         values = dict(zip(columns, (c.strip() for c in cells)))
         where = f"{source}: row {line}"
         label = values["label"]
         if not label:
             raise InputError(f"{where}, label", "expected a joint label (e.g. J12), got an empty cell")
+        if len(label) > MAX_LABEL or not label.isprintable():
+            raise InputError(f"{where}, label", f"expected a joint label of at most {MAX_LABEL} "
+                                                f"printable characters (e.g. J12), got {len(label)} "
+                                                "characters")
+        if len(rows) >= ranges.MAX_JOINTS:
+            raise InputError(where, f"more than {ranges.MAX_JOINTS:,} joint rows: expected at most "
+                                    f"{ranges.MAX_JOINTS:,} joints in one string")
         if label in seen:
             raise InputError(f"{where}, label", f"joint {label!r} already listed in row {seen[label]}")
         seen[label] = line
@@ -170,12 +231,10 @@ def parse_tally(text: str, source: str = "<tally>") -> list:
             for reading in readings:
                 if not reading.strip():
                     raise InputError(f"{where}, {name}", f"expected readings separated by ';' "
-                                                         f"(e.g. 0.365; 0.371), got {text_value!r}")
+                                                         f"(e.g. 0.365; 0.371), got {_short(text_value)}")
                 v = units.parse(reading.strip(), kind, unit_of.get(name), f"{where}, {name}")
-                if not v > 0.0:
-                    raise InputError(f"{where}, {name}", f"expected {units.describe(kind)} greater "
-                                                         f"than zero, got {reading.strip()!r}")
-                got.append(v)
+                got.append(ranges.check(_LIMITS[name], v, f"{where}, {name}", reading.strip(),
+                                        _system_of(unit_of.get(name))))
             q[name] = _READINGS[name](got) if name in _READINGS else got[0]
         if (q["od_max"] is None) != (q["od_min"] is None):
             missing = "od_min" if q["od_min"] is None else "od_max"
@@ -186,23 +245,23 @@ def parse_tally(text: str, source: str = "<tally>") -> list:
                                                  "the largest: check the two columns")
         kind = values.get("kind", "") or None
         if kind is not None and kind not in JOINT_KINDS:
-            raise InputError(f"{where}, kind", f"unknown kind {kind!r}; expected one of "
+            raise InputError(f"{where}, kind", f"unknown kind {_short(kind)}; expected one of "
                                                f"{', '.join(JOINT_KINDS)} or empty")
         status = " ".join((values.get("status", "") or "run").lower().split())
         if status not in STATUSES:
             raise InputError(f"{where}, status", f"expected run or rejected (or not run), got "
-                                                 f"{values['status']!r}")
+                                                 f"{_short(values['status'])}")
         order_text = values.get("run_order", "")
         run_order = None
         if order_text:
-            if not order_text.isdigit() or not 1 <= int(order_text) <= MAX_RUN_ORDER:
+            if not (order_text.isascii() and order_text.isdigit()) or not 1 <= int(order_text) <= MAX_RUN_ORDER:
                 raise InputError(f"{where}, run_order", f"expected a whole number 1..{MAX_RUN_ORDER} "
-                                                        f"(1 = first in the hole), got {order_text!r}")
+                                                        f"(1 = first in the hole), got {_short(order_text)}")
             run_order = int(order_text)
         basis = (values.get("length_source", "") or "").lower() or None
         if basis is not None and basis not in LENGTH_SOURCES:
             raise InputError(f"{where}, length_source", f"expected measured, planned or empty, "
-                                                        f"got {values['length_source']!r}")
+                                                        f"got {_short(values['length_source'])}")
         if basis == "planned" and q["measured_length"] is not None:
             raise InputError(f"{where}, measured_length", "the row says the planned length was "
                                                           "accepted (length_source planned): "
@@ -216,9 +275,9 @@ def parse_tally(text: str, source: str = "<tally>") -> list:
         seq_text = values.get("seq", "")
         seq = None
         if seq_text:
-            if not seq_text.isdigit() or int(seq_text) < 1:
+            if not (seq_text.isascii() and seq_text.isdigit()) or int(seq_text) < 1:
                 raise InputError(f"{where}, seq", f"expected the running order as a whole "
-                                                  f"number >= 1 or empty, got {seq_text!r}")
+                                                  f"number >= 1 or empty, got {_short(seq_text)}")
             seq = int(seq_text)
         rows.append(TallyRow(label=label, measured_length=q["measured_length"], kind=kind,
                              status=status, note=values.get("note", ""),
@@ -234,15 +293,9 @@ def parse_tally(text: str, source: str = "<tally>") -> list:
 
 def read_tally(path) -> list:
     """Rows of a tally CSV file as :class:`TallyRow` (SI units)."""
-    try:
-        text = Path(path).read_text(encoding="utf-8-sig")
-    except FileNotFoundError:
-        raise InputError(str(path), "file not found") from None
-    except UnicodeDecodeError:
-        raise InputError(str(path), "not UTF-8 text: save the tally as CSV (UTF-8)") from None
-    except OSError as exc:
-        raise InputError(str(path), f"cannot read the file ({exc.strerror})") from None
-    return parse_tally(text, str(path))
+    from rigplan.files.formats import decode_text, read_input_bytes
+    raw = read_input_bytes(path, "tally CSV")
+    return parse_tally(decode_text(raw, str(path), "tally CSV"), str(path))
 
 
 def _number(value: float, kind: str, system: str) -> str:

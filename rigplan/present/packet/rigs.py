@@ -24,7 +24,11 @@ def expand_rigs(names, plan_path=None) -> list:
     out = []
     for name in names:
         p = Path(name)
-        if p.is_dir():
+        try:
+            is_dir = p.is_dir()
+        except (OSError, ValueError):     # a name too long: refused below as a file
+            is_dir = False
+        if is_dir:
             found = sorted(p.glob("*.toml"))
             if not found:
                 raise InputError(str(p), "no rig profiles (*.toml) in this folder: expected "
