@@ -1,6 +1,7 @@
 """Two-stage setting (rigplan.engine.staging)."""
 
 import numpy as np
+import pytest
 from numpy.testing import assert_allclose
 
 from rigplan.engine.axial import running_loads
@@ -346,3 +347,45 @@ def test_staged_split_stays_at_its_joint_when_one_is_set_aside(tmp_path, capsys)
     assert doc["stages"]["split"] == p - 1
     release = [s for s in doc["steps"] if s["phase"] == "lowering"][-1]
     assert release["label"] == labels[p - 1]
+
+
+# ---------------------------------------------------------------------------
+# Stage 1 released on bottom, or held until its grout has set
+
+def test_stage1_held_until_grout_hangs_and_on_bottom_stands(tmp_path):
+    # On bottom, stage 1 carries its whole buoyed weight (and stage 2's
+    # set-down) at its shoe: effective tension there is minus that load
+    # (Archimedes: buoyed weight = sum W_i (1 - rho_f / rho_i), open-ended).
+    # Held on the landing string until its grout sets, it lands as it hung at
+    # release: in tension, zero effective tension at the open shoe (common
+    # practice, no source: the set grout carries it from then on).
+    from rigplan.files.job import load_job, rated_joints
+    from rigplan.engine.staging import staged_plan_at
+    plan, rig = _staged_job(tmp_path)
+    job = load_job(plan, rig)
+    joints = rated_joints(job.plan)
+    hole, ls = job.plan.hole, job.rig.landing_string
+    split = 40
+    args = (joints, hole, split, 1e7, ls.weight_per_length, ls.tensile_rating, ls.density)
+    on_bottom = staged_plan_at(*args, set_down_weight=0.0)
+    held = staged_plan_at(*args, set_down_weight=0.0, held_until_grout=True)
+    rho = job.plan.hole.fluid_density
+    from rigplan.engine.materials import LIBRARY
+    steel = LIBRARY["a53b"].density
+    buoyed = float(np.sum(joints.weight[:split])) * (1 - rho / steel)
+    assert on_bottom.stage1_landed.effective_bottom[0] == pytest.approx(-buoyed, rel=1e-6)
+    assert held.stage1_landed.effective_bottom[0] == pytest.approx(0.0, abs=1e-6 * buoyed)
+    assert np.all(held.stage1_landed.effective_top >= -1e-6 * buoyed)
+    assert np.isnan(held.stage1_neutral_point)
+
+
+def test_after_grout_needs_a_grout_table(tmp_path):
+    from rigplan.errors import InputError
+    from rigplan.files.formats.planfile import read_plan
+    plan, _ = _staged_job(tmp_path)
+    text = plan.read_text()
+    a = text.index("[grout]")
+    b = text.index("[design_factors]")
+    plan.write_text(text[:a] + text[b:])
+    with pytest.raises(InputError, match="stage1_release"):
+        read_plan(plan)

@@ -622,19 +622,22 @@ def try_stages(inp: PlanInputs, trial: Trial) -> Trial:
     ls = inp.rig.landing_string
     if ls is None:
         return trial.add(Finding(PlanCode.NO_LANDING_STRING, Severity.REASON))
+    held = inp.settings.stage1_release == "after_grout"
     if inp.staged_split is not None and 1 <= inp.staged_split < inp.joints.n:
         # as run: the split is the one the crew has been running to
         stages = staged_plan_at(inp.joints, inp.hole, inp.staged_split, inp.limit,
                                 ls.weight_per_length, ls.tensile_rating, ls.density,
                                 inp.settings.design.tension, dead_load=inp.dead_load,
                                 joint_length=ls.joint_length,
-                                set_down_weight=inp.settings.set_down_weight)
+                                set_down_weight=inp.settings.set_down_weight,
+                                held_until_grout=held)
     else:
         stages = plan_two_stages(inp.joints, inp.hole, inp.limit, ls.weight_per_length,
                                  ls.tensile_rating, ls.density, inp.settings.design.tension,
                                  inp.open_loads, dead_load=inp.dead_load,
                                  joint_length=ls.joint_length,
-                                 set_down_weight=inp.settings.set_down_weight)
+                                 set_down_weight=inp.settings.set_down_weight,
+                                 held_until_grout=held)
     if not stages.feasible:
         return trial.add(Finding(PlanCode.STAGED_FAILS, Severity.REASON, cause=stages.reason),
                          stages=stages)

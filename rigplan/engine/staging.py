@@ -301,7 +301,7 @@ def plan_two_stages(joints: JointArrays, hole: Hole, string_limit: float,
                     density: float = 7850.0, tension_factor: float = 1.0,
                     open_loads=None, dead_load: float = 0.0,
                     joint_length: float = DEFAULT_JOINT_LENGTH,
-                    set_down_weight: float = 0.0) -> StagedPlan:
+                    set_down_weight: float = 0.0, held_until_grout: bool = False) -> StagedPlan:
     """Search the split that maximizes the least margin of a two-stage set.
 
     Parameters
@@ -317,6 +317,10 @@ def plan_two_stages(joints: JointArrays, hole: Hole, string_limit: float,
     dead_load : dead load of the hoisting gear [N]
     joint_length : landing-string joint length, the lowering step [m]
     set_down_weight : weight stage 2 sets down on stage 1 when landed [N]
+    held_until_grout : stage 1 is held on the landing string until the grout
+        placed at its shoe has set, then released: it never stands on bottom
+        on its own weight (the grout carries it), so it lands hanging as it
+        was at release and stage 2's set-down is carried at its top
 
     Margins: ``(hook limit - hook load) / hook limit`` for each hoisting
     case, ``(rating - DF T) / rating`` for the landing string.  Stage 2's
@@ -389,14 +393,16 @@ def plan_two_stages(joints: JointArrays, hole: Hole, string_limit: float,
     cands = sorted({int(first_best[q_best - 1]) + 1, q_best})
     best = max(cands, key=margin)
     return staged_plan_at(joints, hole, best, string_limit, weight_per_length, tensile_rating,
-                          density, tension_factor, dead_load, joint_length, set_down_weight)
+                          density, tension_factor, dead_load, joint_length, set_down_weight,
+                          held_until_grout)
 
 
 def staged_plan_at(joints: JointArrays, hole: Hole, split: int, string_limit: float,
                    weight_per_length: float, tensile_rating: float,
                    density: float = 7850.0, tension_factor: float = 1.0,
                    dead_load: float = 0.0, joint_length: float = DEFAULT_JOINT_LENGTH,
-                   set_down_weight: float = 0.0) -> StagedPlan:
+                   set_down_weight: float = 0.0,
+                   held_until_grout: bool = False) -> StagedPlan:
     """The two-stage setting with stage 1 = joints 1..``split``: every step
     (stage 1 from the floor, each landing-string joint, stage 2 from the
     floor), the checks, and each stage's landed state.  Parameters as in
@@ -445,7 +451,10 @@ def staged_plan_at(joints: JointArrays, hole: Hole, split: int, string_limit: fl
     # from the floor and sets its set-down weight onto stage 1.
     t_top = float(stage_top_tension(lower, hole, [release])[0])
     shifted = Hole(hole.fluid_density, hole.fluid_level - release, hole.depth, hole.diameter)
-    prof1 = step_profile(lower, shifted, Closure(), p, slack_off=t_top + set_down_weight)
+    # Held until the shoe grout sets: stage 1 stays as it hung at release
+    # (the set grout takes its weight and stage 2's set-down from there on).
+    slack1 = 0.0 if held_until_grout else t_top + set_down_weight
+    prof1 = step_profile(lower, shifted, Closure(), p, slack_off=slack1)
     prof1 = StepProfile(step=p, top_depth=prof1.top_depth + release,
                         bottom_depth=prof1.bottom_depth + release,
                         true_force_top=prof1.true_force_top,
@@ -467,5 +476,5 @@ def staged_plan_at(joints: JointArrays, hole: Hole, split: int, string_limit: fl
                                              context={"limit": str(gov.name)}),
         steps=steps, stage1_loads=loads1, stage2_loads=loads2,
         stage1_landed=prof1, stage2_landed=prof2,
-        stage1_neutral_point=float(release), stage2_neutral_point=float(np2),
+        stage1_neutral_point=float("nan") if held_until_grout else float(release), stage2_neutral_point=float(np2),
     )

@@ -260,6 +260,10 @@ class DesignFactors:
     burst: float = 1.1
 
 
+#: When stage 1 of a staged setting is released (see :class:`Settings`).
+STAGE1_RELEASES = ("on_bottom", "after_grout")
+
+
 @dataclass(frozen=True)
 class Settings:
     """What the driller sets for the run, SI units.
@@ -274,6 +278,10 @@ class Settings:
     screen_depth_tolerance : how far a screen interval may land from its
         planned depth before the crew is warned [m]; default 2 ft (0.6096 m,
         common practice, no source)
+    stage1_release : when a staged setting releases stage 1: ``"on_bottom"``
+        (released once on bottom: it stands on its own weight) or
+        ``"after_grout"`` (held on the landing string until the grout placed
+        at its shoe has set, then released: the grout carries it)
     """
 
     fill_density: float = 998.2
@@ -283,6 +291,7 @@ class Settings:
     fill_density_alternatives: tuple = ()
     float_collar_positions: tuple = (1, 2, 3)
     screen_depth_tolerance: float = 0.6096
+    stage1_release: str = "on_bottom"
 
 
 @dataclass(frozen=True)

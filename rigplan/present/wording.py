@@ -514,8 +514,11 @@ def next_action(lp, system: str = "si") -> str:
         return "run open-ended: the hole fluid fills the pipe through the shoe"
     if lp.verdict == Verdict.LANDS_STAGED and lp.stages is not None:
         s = lp.stages
-        return (f"run joints 1-{s.split} on the landing string, release with its top at "
-                f"{fmt(s.release_depth, Kind.DEPTH, system, 1)}, then run the rest")
+        hold = (", hold it there until its grout has set" if
+                lp.settings.stage1_release == "after_grout" else "")
+        return (f"run joints 1-{s.split} on the landing string to its top at "
+                f"{fmt(s.release_depth, Kind.DEPTH, system, 1)}{hold}, release it, then run "
+                "the rest")
     if lp.verdict == Verdict.CANNOT_CONFIRM:
         return f"enter the maker's ratings ({unrated_text(lp, system)}), then check again"
     opt = lp.best_float

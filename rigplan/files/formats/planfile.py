@@ -63,6 +63,10 @@ weight (w)::
     min_running_weight = "..."   # F, default 0
     set_down_weight = "..."      # F, default 0
     collar_candidates = [1, 2, 3]  # float collar positions to compare
+    stage1_release = "on_bottom"  # staged setting: release stage 1 once on
+                                 # bottom, or "after_grout": hold it on the
+                                 # landing string until its shoe grout has set
+                                 # (needs a [grout] table)
     screen_depth_tolerance = "2 ft"  # L, how far a screen interval may land
                                  # from its planned depth before a warning,
                                  # 0 to 30 m (100 ft), default 2 ft
@@ -106,7 +110,8 @@ from rigplan.errors import InputError
 from rigplan.files import ranges
 from rigplan.files.formats import (SCHEMA_VERSION, Table, _short, check_version, dump_toml,
                                    file_system, parse_toml_text, quantity_text, read_toml)
-from rigplan.engine.stringmodel import (CONNECTION_KINDS, JOINT_KINDS, Closure, DesignFactors, GroutSpec,
+from rigplan.engine.stringmodel import (STAGE1_RELEASES, CONNECTION_KINDS, JOINT_KINDS, Closure,
+                                        DesignFactors, GroutSpec,
                                  Hole, JointSpec, Settings, StringPlan)
 
 TOP_KEYS = ("version", "units", "name", "well", "site", "notes", "tally", "hole", "section",
@@ -122,7 +127,7 @@ JOINT_KEYS = ("label",) + COMMON_JOINT_KEYS + ("length", "measured_length", "rej
 FLOAT_KEYS = ("type", "collar_joint", "valve_rating")
 FLOAT_TYPES = ("none", "float_shoe", "float_collar")
 RUNNING_KEYS = ("fill_density", "fill_alternatives", "min_running_weight", "set_down_weight",
-                "screen_depth_tolerance",
+                "screen_depth_tolerance", "stage1_release",
                 "collar_candidates")
 DESIGN_KEYS = ("tension", "collapse", "burst")
 GROUT_KEYS = ("density", "height", "inside_density", "inside_level", "temperature_rise")
@@ -632,6 +637,8 @@ def plan_from_data(data: dict, source: str, base_dir=Path("."), default_name: st
         settings_kw["screen_depth_tolerance"] = rt.quantity(
             "screen_depth_tolerance", "length", default=_DEFAULT_SETTINGS.screen_depth_tolerance,
             nonnegative=True, limits="screen_depth_tolerance")
+        if "stage1_release" in rt:
+            settings_kw["stage1_release"] = rt.choice("stage1_release", STAGE1_RELEASES)
         cands = rt.list_of("collar_candidates")
         if cands is not None and len(cands) > MAX_COLLAR_CANDIDATES:
             raise InputError(rt.where("collar_candidates"),
@@ -662,6 +669,10 @@ def plan_from_data(data: dict, source: str, base_dir=Path("."), default_name: st
     # grout
     grout = None
     gt = top.table("grout", GROUT_KEYS)
+    if settings.stage1_release == "after_grout" and gt is None:
+        raise InputError(f"{source}: running.stage1_release",
+                         "\"after_grout\" holds stage 1 until the grout at its shoe has set: "
+                         "add a [grout] table (density, height)")
     if gt is not None:
         grout = GroutSpec(
             density=_fluid_density(gt, "density", required=True),
@@ -810,6 +821,8 @@ def plan_text(plan: StringPlan, system: str = "si", header: str = "") -> str:
     run["collar_candidates"] = [int(v) for v in s.float_collar_positions]
     if s.screen_depth_tolerance != _DEFAULT_SETTINGS.screen_depth_tolerance:
         run["screen_depth_tolerance"] = quantity_text(s.screen_depth_tolerance, "length", system)
+    if s.stage1_release != _DEFAULT_SETTINGS.stage1_release:
+        run["stage1_release"] = s.stage1_release
     doc["running"] = run
     doc["design_factors"] = {"tension": float(s.design.tension),
                              "collapse": float(s.design.collapse),
