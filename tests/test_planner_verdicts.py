@@ -23,10 +23,9 @@ from rigplan.engine.planner import (PlanCode, PlanInputs, Trial, best_tried, can
                                     unrated_parts)
 from rigplan.engine.rating import rate_joints
 from rigplan.engine.stringmodel import Closure, Hole, JointSpec, Settings
-
 from _units import inch
 
-HOLE = Hole(1150.0)                 # mud to the floor [kg/m^3]
+HOLE = Hole(1150.0, diameter=22 * inch)    # mud to the floor [kg/m^3], a 22 in bit
 
 
 def string(n=24, screens=(), unrated_screens=False):

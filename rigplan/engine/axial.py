@@ -73,7 +73,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from rigplan.engine.hydrostatics import collapse_load
+from rigplan.engine.hydrostatics import collapse_load, hydrostatic_pressure
 from rigplan.engine.stringmodel import G, Closure, Hole, JointArrays
 
 _BLOCK_ELEMENTS = 1 << 20
@@ -384,8 +384,8 @@ def running_loads(joints: JointArrays, hole: Hole, closure: Closure,
 
     shoe = geo.top
     top_depth = 0.0
-    p_out_top = hole.fluid_density * G * max(0.0, top_depth - hole.fluid_level)
-    p_in_top = np.where(geo.fill_side, fill_density * G * np.maximum(0.0, top_depth - level),
+    p_out_top = float(hydrostatic_pressure(top_depth, hole.fluid_density, hole.fluid_level))
+    p_in_top = np.where(geo.fill_side, hydrostatic_pressure(top_depth, fill_density, level),
                         p_out_top)
     effective_top = string_load + p_out_top * geo.outside_area - p_in_top * geo.bore_area
 
@@ -719,17 +719,18 @@ def step_profile(joints: JointArrays, hole: Hole, closure: Closure, step: int,
     fill = geo.fill_side[sub]
 
     def p_out(z):
-        return hole.fluid_density * G * np.maximum(0.0, z - hole.fluid_level)
+        return hydrostatic_pressure(z, hole.fluid_density, hole.fluid_level)
 
     def p_in(z):
-        pf = fill_density * G * np.maximum(0.0, z - fill_level)
+        pf = hydrostatic_pressure(z, fill_density, fill_level)
         return np.where(fill, pf, p_out(z))
 
     ao_low = np.concatenate(([0.0], ao[:-1]))
     ab_low = np.concatenate(([0.0], ab[:-1]))
     pin_b = p_in(z_bottom)
     pin_low = np.concatenate(([0.0], np.where(fill[:-1],
-                                              fill_density * G * np.maximum(0.0, z_bottom[1:] - fill_level),
+                                              hydrostatic_pressure(z_bottom[1:], fill_density,
+                                                                   fill_level),
                                               p_out(z_bottom[1:]))))
     face = p_out(z_bottom) * (ao_low - ao) + pin_b * ab - pin_low * ab_low
     below_faces = np.cumsum(face)

@@ -74,6 +74,7 @@ import numpy as np
 
 from rigplan.errors import InputError
 from rigplan.engine.findings import Finding, Kind, Severity
+from rigplan.engine.hydrostatics import hydrostatic_pressure
 from rigplan.engine.stringmodel import G, GroutSpec, Hole, JointArrays
 
 __all__ = [
@@ -282,23 +283,23 @@ def annulus_pressure_with_grout(depth, grout_top_depth, grout_density, fluid_den
     """
     z = np.asarray(depth, dtype=float)
     t_depth = np.asarray(grout_top_depth, dtype=float)
-    p_top = fluid_density * G * np.maximum(0.0, np.minimum(z, t_depth) - fluid_level)
-    p = p_top + grout_density * G * np.maximum(0.0, z - t_depth)
+    p_top = hydrostatic_pressure(np.minimum(z, t_depth), fluid_density, fluid_level)
+    p = p_top + hydrostatic_pressure(z, grout_density, t_depth)
     return float(p) if p.ndim == 0 else p
 
 
 def _inside_pressure(x, z_shoe, rho_i, h_i):
-    return rho_i * G * np.maximum(0.0, z_shoe - x - h_i)
+    return hydrostatic_pressure(z_shoe - x, rho_i, h_i)
 
 
 def _mud_load(x, z_shoe, rho_o, h_o, rho_i, h_i):
     """dP at heights x above the grout top [Pa]."""
-    return rho_o * G * np.maximum(0.0, z_shoe - x - h_o) - _inside_pressure(x, z_shoe, rho_i, h_i)
+    return hydrostatic_pressure(z_shoe - x, rho_o, h_o) - _inside_pressure(x, z_shoe, rho_i, h_i)
 
 
 def _grout_head(t, z_shoe, rho_o, h_o, rho_g):
     """h(t) = rho_o g max(0, Z - t - h_o) + rho_g g t [Pa]."""
-    return rho_o * G * np.maximum(0.0, z_shoe - t - h_o) + rho_g * G * t
+    return hydrostatic_pressure(z_shoe - t, rho_o, h_o) + rho_g * G * t
 
 
 def _point_load(x, t, z_shoe, rho_o, h_o, rho_g, rho_i, h_i):
@@ -361,7 +362,7 @@ def grout_differential_pressure(height, string_length, hole: Hole, grout_density
     z = string_length - x
     p = annulus_pressure_with_grout(z, string_length - top_height, grout_density,
                                     hole.fluid_density, hole.fluid_level) \
-        - inside_density * G * np.maximum(0.0, z - inside_level)
+        - hydrostatic_pressure(z, inside_density, inside_level)
     return float(p) if np.ndim(p) == 0 else p
 
 

@@ -482,8 +482,7 @@ def text_renderables(landing, plan=None, system: str = "us", warnings=(), rig_na
     head.append(f"\nRig: {rig_name}. " + W.path_text(landing, system))
     head.append(f"\nNext action: {W.next_action(landing, system)}")
     if landing.switch_joint:
-        head.append(f"\nOpen-ended the string load passes the limit at joint "
-                    f"{landing.switch_joint}: floating must begin before it")
+        head.append("\n" + W.switch_text(landing))
     if np.isfinite(landing.neutral_point):
         head.append(f"\nNeutral point when landed with the set-down weight: "
                     f"{_q(landing.neutral_point, 'length', system, 1)}")
