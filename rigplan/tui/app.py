@@ -21,6 +21,7 @@ from textual.widgets import Footer, Header, Static, TabbedContent, TabPane
 
 from rigplan.files import units as U
 from rigplan.errors import InputError
+from rigplan.files import ranges
 from rigplan.files.job import LENGTH_WARNING
 from rigplan.files.runlog import RunLogWriteError
 from rigplan.present import wording as P
@@ -286,11 +287,26 @@ class RigplanApp(App):
                                  f"Planning with rig {name}"))
             return
 
+        def apply(plan) -> None:
+            s.apply_plan(plan)
+            self._committed(f"{title} changed (not saved yet: s on the String tab saves)")
+
         def done(plan) -> None:
             if plan is None:
                 return
-            s.apply_plan(plan)
-            self._committed(f"{title} changed (not saved yet: s on the String tab saves)")
+            if not s.step:
+                apply(plan)
+                return
+            # Mid-run: say what changes before it takes effect.
+            try:
+                after = s.preview(plan)
+            except InputError as exc:
+                self._error(exc)
+                return
+            lines = P.change_lines(s.landing, after, s.step, s.units)
+            self.push_screen(ConfirmScreen(f"Change {title.lower()}?\n" + "\n".join(lines),
+                                           yes="Change", no="Keep as it is"),
+                             lambda yes: yes and apply(plan))
 
         self.push_screen(PromptScreen(title, value=s.setting_text(key), hint=hint,
                                       parse=lambda t: s.edited_setting(key, t),
@@ -371,9 +387,7 @@ class RigplanApp(App):
                 force = t.endswith("!")
                 v = U.parse(t.rstrip("!").strip(), "length", unit,
                             f"{nxt.label} measured length")
-                if not v > 0:
-                    raise InputError(f"{nxt.label} measured length",
-                                     f"expected a length > 0, got {t!r}")
+                ranges.check("joint_length", v, f"{nxt.label} measured length", t, s.units)
                 if not force and not LENGTH_WARNING[0] * nxt.length <= v <= LENGTH_WARNING[1] * nxt.length:
                     raise InputError(f"{nxt.label} measured length",
                                      f"{P.fmt(v, 'length', s.units, 2)} is far from the planned "

@@ -404,6 +404,7 @@ class JobSession:
             raise InputError(where, f"{P.fmt(value, 'force', self.units)} is above the rig's "
                                     f"hook rating ({P.fmt(top, 'force', self.units)}): "
                                     "check the indicator and the units")
+        ranges.check("force", value, where, t, self.units)    # a rig rated nowhere
         return value
 
     def observe(self, hook_load_n: float, note: str = "") -> tuple:
@@ -626,6 +627,17 @@ class JobSession:
         self.recompute()
         return rig.name
 
+    def preview(self, plan: StringPlan):
+        """The landing plan a changed base plan would give now, with the run
+        so far kept as it is (the fill already in the pipe stays); nothing
+        is changed here.  Raises InputError when the planner refuses it."""
+        from rigplan.files.job import fill_record_of, plan_as_run
+        record = self.fill_record
+        k = self.step
+        if k and self.landing is not None:
+            record = fill_record_of(self.landing, k) or record
+        return plan_as_run(plan, self.rig, self.state, self.path_name, fill_record=record)
+
     def apply_plan(self, plan: StringPlan) -> None:
         """Use an edited base plan (from :meth:`edited_plan` or the joint edits)."""
         self.keep_fill_run()
@@ -747,7 +759,14 @@ class JobSession:
                    + f"\nfrom the run log {self.log.path.name}; length_source planned = "
                    "the planned length was accepted, nothing was measured\n" + CAUTION)
         path = self.export_path()
-        atomic_write_text(path, run_tally_text(entries, self.file_units, comment))
+        text = run_tally_text(entries, self.file_units, comment)
+        try:
+            same = path.read_text(encoding="utf-8") == text
+        except (OSError, UnicodeDecodeError):
+            same = False
+        if not same:
+            # an earlier export (perhaps annotated by hand) is kept beside it
+            atomic_write_text(path, text, backup=True)
         return path
 
     # -- lookups for the screens -----------------------------------------------
