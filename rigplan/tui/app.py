@@ -85,6 +85,7 @@ class RigplanApp(App):
     def compose(self) -> ComposeResult:
         yield Header()
         yield Static("", id="read-only-banner", markup=False)
+        yield Static("", id="weight-alarm", markup=False)
         with TabbedContent(initial="overview", id="tabs"):
             with TabPane("1 Overview", id="overview"):
                 yield OverviewWithSchematic(id="overview-pane")
@@ -104,6 +105,8 @@ class RigplanApp(App):
         self._caution = self.query_one("#caution", Static)
         self._panes = {tab: self.query_one(f"#{tab}-pane") for tab in TABS}
         self._banner = self.query_one("#read-only-banner", Static)
+        self._alarm = self.query_one("#weight-alarm", Static)
+        self._alarm_acked = None
         self._fit(self.size.width, self.size.height)
         self.refresh_views()
         self._calm_collector()
@@ -186,8 +189,35 @@ class RigplanApp(App):
         banner = s.read_only_text()
         self._banner.update(banner)
         self._banner.display = bool(banner)
+        self._show_alarm()
         self._stale = set(TABS)
         self._show(self.active_tab)
+
+    def _alarm_id(self):
+        """The run-log id of the latest reading when it is outside its band."""
+        s = self.session
+        check = s.last_check
+        if check is None or not check.outside or not s.state.observations:
+            return None
+        return s.state.observations[-1].id
+
+    def _show_alarm(self) -> None:
+        """A reading outside its band stays in a bar at the top of every tab
+        until acknowledged (a) or replaced by the next reading."""
+        alarm = self._alarm_id()
+        shown = alarm is not None and alarm != self._alarm_acked
+        if shown:
+            head, _ = P.weight_text(self.session.last_check, self.session.units)
+            self._alarm.update(head + "  (a acknowledges)")
+        self._alarm.display = shown
+
+    def action_acknowledge(self) -> None:
+        alarm = self._alarm_id()
+        if alarm is None or alarm == self._alarm_acked:
+            self.notify("No weight alarm to acknowledge.", timeout=3)
+            return
+        self._alarm_acked = alarm
+        self._show_alarm()
 
     def _show(self, tab: str) -> None:
         self._pane(tab).show(self.session)

@@ -76,6 +76,10 @@ ACTIONS = (
     ActionSpec("observe", "w", "w", "Weight reading",
                "Enter the weight indicator's hook load and compare it with the plan", RUNNING, short="Weight",
                words=('weight', 'reading', 'weight indicator', 'hook load')),
+    ActionSpec("acknowledge", "a", "a", "Acknowledge weight alarm",
+               "Clear the alarm bar of a reading outside the band (the reading stays in the "
+               "run log)", short="Acknowledge", show=False,
+               words=('alarm', 'acknowledge', 'weight', 'warning')),
     ActionSpec("band", "b", "b", "Weight band",
                "Set the agreement band for weight readings (10 % or a force)", RUNNING, short="Band",
                words=('band', 'tolerance', 'reading', 'weight')),
