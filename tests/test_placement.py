@@ -192,3 +192,16 @@ def test_one_weak_joint_swaps_with_one_other():
     order = pl.fewest_moves(sc, st, rc, rt, threshold=0.5)
     assert int(np.count_nonzero(order != np.arange(4))) == 2
     assert pl.fewest_moves(sc, st, np.full(4, 1000.0), rt, threshold=0.5).tolist() == [0, 1, 2, 3]
+
+
+def test_place_never_replaces_an_existing_file_unasked(tmp_path, capsys):
+    # Nothing the user wrote is overwritten without being asked (rule of the project).
+    plan, tally = _rack_plan(tmp_path)
+    out = tmp_path / "mine.tally.csv"
+    out.write_text("my notes, keep me\n")
+    code = main(["place", str(plan), "--rig", "th30", "--tally", str(tally), "-o", str(out)])
+    assert code == 2 and "--force" in capsys.readouterr().err
+    assert out.read_text() == "my notes, keep me\n"
+    assert main(["place", str(plan), "--rig", "th30", "--tally", str(tally), "-o", str(out),
+                 "--force"]) == 0
+    assert "run_order" in out.read_text()
