@@ -837,6 +837,13 @@ def weight_text(check, system: str) -> tuple:
             tuple("likely: " + c for c in check.causes))
 
 
+def alarm_line(check, system: str) -> str:
+    """One line for a reading outside its band (the app's alarm bar)."""
+    side = "LIGHTER" if check.difference < 0 else "HEAVIER"
+    return (f"ALARM {side}: read {fmt(check.observed, 'force', system)}, planned "
+            f"{fmt(check.predicted, 'force', system)}, step {check.step} (a: acknowledge)")
+
+
 def rig_chains(session) -> list:
     """Per hoisting path: ``(chain, in use)``, the chain from
     :func:`rigplan.engine.hoisting.rig_capacity` (shown with

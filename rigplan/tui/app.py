@@ -207,8 +207,7 @@ class RigplanApp(App):
         alarm = self._alarm_id()
         shown = alarm is not None and alarm != self._alarm_acked
         if shown:
-            head, _ = P.weight_text(self.session.last_check, self.session.units)
-            self._alarm.update(head + "  (a acknowledges)")
+            self._alarm.update(P.alarm_line(self.session.last_check, self.session.units))
         self._alarm.display = shown
 
     def action_acknowledge(self) -> None:

@@ -21,9 +21,12 @@ class OverviewPane(VerticalScroll):
     def compose(self) -> ComposeResult:
         yield Static("", id="verdict", markup=False)
         yield Static("", id="next-action", classes="line next", markup=False)
-        yield Static("", id="reasons", classes="line dim", markup=False)
+        # the governing limit and the hook limit (the figure the driller
+        # compares with the weight indicator) before the longer notes, so
+        # they stay in view on a small terminal
         yield Static("", id="governing", classes="line", markup=False)
         yield Static("", id="path-line", classes="line", markup=False)
+        yield Static("", id="reasons", classes="line dim", markup=False)
         yield Static("", id="fill-plan", classes="line", markup=False)
         yield Static("", id="float-line", classes="line", markup=False)
         yield Static("", id="switch-line", classes="line", markup=False)
@@ -206,6 +209,13 @@ class TallyPane(Vertical):
         t.move_cursor(row=row, animate=False)
 
 
+def _short_status(text: str) -> str:
+    """A status without its reason ("set aside: bent" -> "set aside"), for
+    the running table on a narrow screen (80 columns)."""
+    head = text.split(":")[0]
+    return "rejected" if head.startswith("rejected") else head
+
+
 class RunningPane(Horizontal):
     """Joint by joint while running: next joint, hook load, fill, weight checks."""
 
@@ -230,6 +240,13 @@ class RunningPane(Horizontal):
         width = self.app.size.width - 2
         if not self.screen.has_class("compact"):
             width = width * 3 // 5
+        if width < 90:
+            # a narrow table: the status without a set-aside reason, so that
+            # it never pushes out the shoe depth (the whole reason is in the
+            # run log, the tally export and a wider window)
+            status = [k for k, _, _ in P.RUN_COLUMNS].index("status")
+            rows = [(label, [_short_status(c) if i == status else c
+                             for i, c in enumerate(cells)]) for label, cells in rows]
         columns, rows, _ = fit_columns(columns, rows, P.RUN_PRIORITY, width)
         nxt = session.next_joint()
         self.table.load(columns, rows, highlight=nxt.label if nxt is not None else None)
