@@ -240,14 +240,16 @@ class RunningPane(Horizontal):
         width = self.app.size.width - 2
         if not self.screen.has_class("compact"):
             width = width * 3 // 5
-        if width < 90:
+        fitted = fit_columns(columns, rows, P.RUN_PRIORITY, width)
+        if len(fitted[0]) < len(columns):
             # a narrow table: the status without a set-aside reason, so that
-            # it never pushes out the shoe depth (the whole reason is in the
+            # it does not push out the shoe depth (the whole reason is in the
             # run log, the tally export and a wider window)
             status = [k for k, _, _ in P.RUN_COLUMNS].index("status")
-            rows = [(label, [_short_status(c) if i == status else c
-                             for i, c in enumerate(cells)]) for label, cells in rows]
-        columns, rows, _ = fit_columns(columns, rows, P.RUN_PRIORITY, width)
+            short = [(label, [_short_status(c) if i == status else c
+                              for i, c in enumerate(cells)]) for label, cells in rows]
+            fitted = fit_columns(columns, short, P.RUN_PRIORITY, width)
+        columns, rows, _ = fitted
         nxt = session.next_joint()
         self.table.load(columns, rows, highlight=nxt.label if nxt is not None else None)
         if nxt is not None:
