@@ -47,8 +47,9 @@ def _parser() -> argparse.ArgumentParser:
                             help="rig capacity profile (rigs/*.toml, or a bundled rig's name)")
         sp.add_argument("--path", default=None,
                         help="hoisting path to use (default: the one with most capacity)")
-        sp.add_argument("--units", choices=("us", "si"), default="us",
-                        help="display units: US field or SI (default us)")
+        sp.add_argument("--units", choices=("us", "si"), default=None,
+                        help="display units: US field or SI (default: the plan file's "
+                             "units, and with them the paper: Letter for us, A4 for si)")
         sp.add_argument("--both-units", action="store_true",
                         help="show every quantity in the other unit system too, in parentheses")
         sp.add_argument("--materials", default=None,
@@ -122,6 +123,25 @@ def _load(args):
     # the plan as run: the kind of run and the fill already in the pipe are facts
     landing = plan_as_run(base, job.rig, state, job.path_name)
     return job, landing
+
+
+def _default_units(args) -> None:
+    """``--units`` not given: the plan file's own unit system (``units``,
+    ``"si"`` when the file leaves it out); a plan that cannot be read is
+    refused later by the command itself, in one line."""
+    if not hasattr(args, "units") or args.units is not None:
+        return
+    args.units = "us"
+    plan = getattr(args, "plan", None)
+    if not plan:
+        return
+    try:
+        from rigplan.files.formats import read_toml
+        found = read_toml(plan).get("units", "si")
+    except (InputError, OSError, ValueError):
+        return
+    if found in ("us", "si"):
+        args.units = found
 
 
 def _system(args) -> str:
@@ -458,6 +478,7 @@ def main(argv=None) -> int:
 
 def _run(args) -> int:
     try:
+        _default_units(args)
         if args.command is None:
             from rigplan.files.job import demo_paths
             plan, rig = demo_paths()

@@ -1,0 +1,67 @@
+"""Command-line edges: display units by default, one-line usage errors,
+cautions in every output, error lines with units.
+
+Rules checked are the project's own (the rule is named beside each test):
+every bad input is one line naming the file and key with units and range,
+exit 2; every output carries the caution; an SI job is shown in SI.
+Plans here are invented; no number from them is a check value.
+"""
+
+import json
+
+import pytest
+
+from rigplan.cli import main
+
+SI_PLAN = '''version = 1
+units = "si"
+name = "SI edge"
+[hole]
+fluid_density = 1100
+depth = 190
+[[section]]
+kind = "blank"
+material = "a53b"
+od = 273.1
+wall = 9.27
+joint_length = 6
+count = 30
+weld_efficiency = 0.85
+'''
+
+
+@pytest.fixture
+def si_plan(tmp_path):
+    p = tmp_path / "si.toml"
+    p.write_text(SI_PLAN)
+    return p
+
+
+def test_si_plan_is_shown_in_si_by_default(si_plan, capsys):
+    """Rule of the project: the display units default to the plan file's units."""
+    main(["check", str(si_plan), "--rig", "mw80", "--brief"])
+    out = capsys.readouterr().out
+    assert " kN" in out and " lbf" not in out
+    main(["check", str(si_plan), "--rig", "mw80", "--brief", "--units", "us"])
+    out = capsys.readouterr().out
+    assert " lbf" in out
+
+
+def test_si_plan_report_is_on_a4_by_default(si_plan, tmp_path, capsys):
+    """Rule of the project (README, --paper): A4 for SI, Letter for US units."""
+    out = tmp_path / "si.json"
+    main(["report", str(si_plan), "--rig", "mw80", "-o", str(out)])
+    assert json.loads(out.read_text())["report"]["paper"] == "a4"
+    main(["report", str(si_plan), "--rig", "mw80", "-o", str(out), "--units", "us"])
+    assert json.loads(out.read_text())["report"]["paper"] == "letter"
+    capsys.readouterr()
+
+
+@pytest.mark.parametrize("cmd", ["check", "report", "place", "liner", "risk", "open"])
+def test_bad_choice_is_one_line_naming_option_and_choices(cmd, si_plan, capsys):
+    """Rule of the project: a bad input is one line, exit 2."""
+    code = main([cmd, str(si_plan), "--rig", "mw80", "--units", "metric", "-o", "x.pdf"])
+    err = capsys.readouterr().err.strip()
+    assert code == 2
+    assert len(err.splitlines()) == 1
+    assert "--units" in err and "'us'" in err and "'si'" in err and "usage" not in err
