@@ -65,3 +65,40 @@ def test_bad_choice_is_one_line_naming_option_and_choices(cmd, si_plan, capsys):
     assert code == 2
     assert len(err.splitlines()) == 1
     assert "--units" in err and "'us'" in err and "'si'" in err and "usage" not in err
+
+
+API_PLAN = '''units = "us"
+name = "API coupled"
+[hole]
+fluid_density = "8.8 ppg"
+depth = "900 ft"
+diameter = "12-1/4 in"
+[[section]]
+kind = "blank"
+material = "k55"
+od = "9-5/8 in"
+wall = "0.352 in"
+joint_length = "40 ft"
+count = 20
+connection = "threaded_coupled"
+connection_rating = "423000 lbf"
+weight_per_length = "36 lb/ft"
+'''
+
+
+def test_packet_states_the_engines_rating_basis_and_the_buckling_check(tmp_path, capsys):
+    """API TR 5C3 rates API grades on the specified wall (its collapse constants
+    and the 0.875 of internal yield carry the wall tolerance); the packet must
+    say so, and say that buckling below the neutral point is checked (Lubinski
+    1950), as the engine does."""
+    plan = tmp_path / "api.toml"
+    plan.write_text(API_PLAN)
+    out = tmp_path / "api.md"
+    main(["report", str(plan), "--rig", "mw80", "-o", str(out)])
+    capsys.readouterr()
+    text = out.read_text()
+    assert "Buckling is not checked" not in text
+    assert "Buckling below the neutral point is checked" in text and "Lubinski (1950)" in text
+    assert "API-grade figures therefore sit below the API tables" not in text
+    makeup = [ln for ln in text.splitlines() if ln.startswith("| 1-20 |")]
+    assert makeup and "all three: specified wall" in makeup[0]
