@@ -102,3 +102,29 @@ def test_packet_states_the_engines_rating_basis_and_the_buckling_check(tmp_path,
     assert "API-grade figures therefore sit below the API tables" not in text
     makeup = [ln for ln in text.splitlines() if ln.startswith("| 1-20 |")]
     assert makeup and "all three: specified wall" in makeup[0]
+
+
+@pytest.mark.parametrize("suffix", ["csv", "md", "html", "json", "pdf"])
+def test_every_report_format_carries_the_caution(suffix, tmp_path, capsys):
+    """Rule of the project: every output carries the caution (a planning aid;
+    verify against the rig maker's load chart and the pipe maker's ratings)."""
+    from rigplan.present.wording import CAUTION
+    plan = tmp_path / "api.toml"
+    plan.write_text(API_PLAN)
+    out = tmp_path / f"api.{suffix}"
+    main(["report", str(plan), "--rig", "mw80", "-o", str(out)])
+    capsys.readouterr()
+    if suffix == "pdf":
+        from pypdf import PdfReader
+        text = " ".join(p.extract_text() for p in PdfReader(out).pages)
+        assert "Planning aid only" in " ".join(text.split())
+        return
+    text = out.read_text()
+    if suffix == "html":
+        import html
+        text = html.unescape(text)
+    assert CAUTION in text
+    if suffix == "csv":
+        import csv
+        rows = list(csv.reader(text.splitlines()))
+        assert rows[-1] == [f"# CAUTION: {CAUTION}"]
