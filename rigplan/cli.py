@@ -118,7 +118,12 @@ def _load(args):
     base = plan
     plan = apply_run_state(base, state, str(log_path_for(job.plan_path))
                            if state is not None else "")
-    extra = [w for w in length_warnings(plan) if w not in job.warnings]
+    from rigplan.files.job import tally_row_sources
+    sources = {}
+    for tally in (job.tally_path, getattr(args, "tally", None)):
+        if tally:
+            sources.update(tally_row_sources(tally))
+    extra = [w for w in length_warnings(plan, sources) if w not in job.warnings]
     job = dataclasses.replace(job, plan=plan, warnings=tuple(job.warnings) + tuple(extra))
     # the plan as run: the kind of run and the fill already in the pipe are facts
     landing = plan_as_run(base, job.rig, state, job.path_name)

@@ -128,3 +128,36 @@ def test_every_report_format_carries_the_caution(suffix, tmp_path, capsys):
         import csv
         rows = list(csv.reader(text.splitlines()))
         assert rows[-1] == [f"# CAUTION: {CAUTION}"]
+
+
+@pytest.mark.parametrize("old, new, key, words", [
+    # the wall of half the od or more, od plausible: the wall is named, with units
+    ("wall = 9.27", "wall = 140", "section[1].wall", ["140 mm", "273.1 mm", "less than"]),
+    # an od in inches in an SI file (10.75 for 10.75 in): the od is named, with its range
+    ("od = 273.1", "od = 10.75", "section[1].od", ["10.75 mm", "implausibly small",
+                                                   "25.4 mm"]),
+    ("depth = 190", "depth = 190\nfluid_level = 400", "hole.fluid_level",
+     ["400 m", "190 m", "expected"]),
+    # a bare number out of range: the unit it was read in is said
+    ("wall = 9.27", "wall = 200", "section[1].wall", ["got 200 mm", "file's units"]),
+])
+def test_error_lines_name_the_right_key_with_units(old, new, key, words, tmp_path, capsys):
+    """Rule of the project: one line naming the file and key, with what was
+    expected in units and range (exit 2)."""
+    p = tmp_path / "bad.toml"
+    p.write_text(SI_PLAN.replace(old, new))
+    assert main(["check", str(p), "--rig", "mw80"]) == 2
+    err = capsys.readouterr().err.strip()
+    assert len(err.splitlines()) == 1 and f"bad.toml: {key}:" in err
+    for w in words:
+        assert w in err, (w, err)
+
+
+def test_tally_length_warning_names_the_tally_file_and_row(si_plan, tmp_path, capsys):
+    """Rule of the project: a message names the file and row it comes from."""
+    tally = tmp_path / "rack.tally.csv"
+    tally.write_text("label,measured_length [ft],status\nJ1,20.1,run\nJ2,90,run\n")
+    main(["check", str(si_plan), "--rig", "mw80", "--tally", str(tally), "--brief"])
+    out = capsys.readouterr().out
+    line = next(ln for ln in out.splitlines() if "J2: measured" in ln)
+    assert f"{tally}: row 3: J2" in line and "si.toml" not in line

@@ -252,18 +252,29 @@ def _changed(spec: JointSpec, measured_length=None, rejected=None) -> JointSpec:
 LENGTH_WARNING = (0.75, 1.25)
 
 
-def length_warnings(plan: StringPlan) -> list[Finding]:
+def tally_row_sources(path) -> dict:
+    """``{label: "tally.csv: row N"}`` for the joints a tally CSV gives a
+    measured length: where a length warning points the reader."""
+    from rigplan.files.formats.tally import read_tally
+    return {r.label: f"{path}: row {r.row}" for r in read_tally(path)
+            if r.measured_length is not None}
+
+
+def length_warnings(plan: StringPlan, sources: dict | None = None) -> list[Finding]:
     """Warnings on measured lengths far from the planned ones (a typing slip
-    such as 2006 for 20.06) and on a string longer than the hole."""
+    such as 2006 for 20.06) and on a string longer than the hole.
+    ``sources``: where each joint's measured length was read (label -> file
+    and row, :func:`tally_row_sources`); the plan file otherwise."""
     out = []
     src = plan.source or plan.name
+    sources = sources or {}
     for j in plan.running_joints():
         if j.measured_length is not None and not (
                 LENGTH_WARNING[0] * j.length <= j.measured_length <= LENGTH_WARNING[1] * j.length):
             out.append(Finding(JobCode.MEASURED_FAR_FROM_PLAN, Severity.WARNING, label=j.label,
                                quantities={"measured": (j.measured_length, Kind.LENGTH),
                                            "planned": (j.length, Kind.LENGTH)},
-                               context={"source": src}))
+                               context={"source": sources.get(j.label, src)}))
     total = sum(j.run_length for j in plan.running_joints())
     depth = plan.hole.depth
     if depth == depth and total > depth:
