@@ -124,6 +124,12 @@ def _load(args):
         if tally:
             sources.update(tally_row_sources(tally))
     extra = [w for w in length_warnings(plan, sources) if w not in job.warnings]
+    if plan is not job.plan:
+        # a tally or the run log moved joints: where the screens land now
+        from rigplan.files.job import screen_depth_warnings
+        moved_by = (log_path_for(job.plan_path) if state is not None
+                    else getattr(args, "tally", None) or "")
+        extra += screen_depth_warnings(job.plan, plan, str(moved_by))
     job = dataclasses.replace(job, plan=plan, warnings=tuple(job.warnings) + tuple(extra))
     # the plan as run: the kind of run and the fill already in the pipe are facts
     landing = plan_as_run(base, job.rig, state, job.path_name)
@@ -257,13 +263,16 @@ def cmd_check_rigs(args) -> int:
         json.dump(doc, sys.stdout, indent=1, allow_nan=False)
         sys.stdout.write("\n")
     else:
+        from rich.markup import escape
         from rich.table import Table
         t = rig_choice_table(choices, _system(args), mark="* lands with the largest margin")
-        rt = Table(title=f"{job.plan.name}: {t.title.lower()}", caption=t.note or None)
+        rt = Table(title=escape(f"{job.plan.name}: {t.title.lower()}"),
+                   caption=escape(t.note) if t.note else None)
+        # escaped: a unit in brackets ("string limit [lbf]") is not rich markup
         for col, a in zip(t.columns, t.align):
-            rt.add_column(col, justify="right" if a == "r" else "left")
+            rt.add_column(escape(col), justify="right" if a == "r" else "left")
         for row in t.rows:
-            rt.add_row(*row)
+            rt.add_row(*(escape(str(c)) for c in row))
         console = _console()
         console.print(rt)
         from rigplan import CAUTION

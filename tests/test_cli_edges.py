@@ -161,3 +161,44 @@ def test_tally_length_warning_names_the_tally_file_and_row(si_plan, tmp_path, ca
     out = capsys.readouterr().out
     line = next(ln for ln in out.splitlines() if "J2: measured" in ln)
     assert f"{tally}: row 3: J2" in line and "si.toml" not in line
+
+
+def test_brief_is_the_summary_the_edges_and_the_governing_joint(capsys):
+    """Rule of the project (README, check --brief): the summary, the first and
+    last 10 steps with the most loaded one, and one joint; no hoisting chain."""
+    from pathlib import Path
+    plan = Path(__file__).resolve().parents[1] / "strings" / "cv7-16in-floated.toml"
+    main(["check", str(plan), "--rig", "mw80", "--brief", "--units", "us"])
+    out = capsys.readouterr().out
+    assert "Hoisting chain" not in out
+    assert "utilization (design factors applied)" in out
+    joint_rows = [ln for ln in out.split("utilization (design factors applied)")[-1]
+                  .splitlines() if ln.startswith("│")]
+    assert len(joint_rows) == 1
+    steps = out.split("Running steps")[1].split("Least tension")[0]
+    assert "│ 59 J59 │" in steps and "│ 30 J30 │" not in steps
+
+
+def test_several_rigs_table_gives_the_string_limit_unit(capsys):
+    """Rule of the project: every quantity shown with its unit."""
+    from pathlib import Path
+    plan = Path(__file__).resolve().parents[1] / "strings" / "cv7-16in-floated.toml"
+    main(["check", str(plan), "--rig", "mw80", "--rig", "th30", "--units", "us"])
+    assert "string limit [lbf]" in capsys.readouterr().out
+
+
+def test_screen_depth_off_plan_is_warned_by_check_tally(tmp_path, capsys):
+    """Rule of the project (the plan's screen_depth_tolerance, 2 ft by
+    default): a joint set aside above the screens lifts them one joint
+    (20 ft: the plan's joint length), so check --tally warns, naming the tally."""
+    from pathlib import Path
+    plan = Path(__file__).resolve().parents[1] / "strings" / "cv7-16in-floated.toml"
+    tally = tmp_path / "aside.tally.csv"
+    tally.write_text("label,status,note\nJ8,rejected,dented pin\n")
+    main(["check", str(plan), "--rig", "mw80", "--tally", str(tally), "--brief",
+          "--units", "us"])
+    out = " ".join(capsys.readouterr().out.split())
+    assert f"{tally}: screen J2-J5 lands -20.00 ft from its planned depth" in out
+    tally.write_text("label,status,note\nJ8,run,\n")
+    main(["check", str(plan), "--rig", "mw80", "--tally", str(tally), "--brief"])
+    assert "from its planned depth" not in capsys.readouterr().out

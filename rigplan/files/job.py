@@ -111,6 +111,11 @@ class JobCode(enum.StrEnum):
     #: the string as measured is longer than the hole: quantities
     #: ``string_length`` and ``hole_depth``; context ``source``
     LONGER_THAN_HOLE = "job.longer_than_hole"
+    #: a screen interval lands farther from its planned depth than the plan's
+    #: tolerance (measured lengths, joints set aside): context ``labels``
+    #: (its joints), ``source``; quantities ``shift`` (+ deeper, nan: every
+    #: joint of it set aside) and ``tolerance``
+    SCREEN_OFF_PLAN = "job.screen_off_plan"
 
 
 @dataclass
@@ -282,6 +287,30 @@ def length_warnings(plan: StringPlan, sources: dict | None = None) -> list[Findi
                            quantities={"string_length": (total, Kind.LENGTH),
                                        "hole_depth": (depth, Kind.DEPTH)},
                            context={"source": src}))
+    return out
+
+
+def screen_depth_warnings(planned: StringPlan, run: StringPlan, source: str = "") -> list:
+    """Warnings for each screen interval of ``planned`` that lands, in
+    ``run`` (measured lengths, joints set aside), farther from its planned
+    depth than the plan's ``screen_depth_tolerance``
+    (:func:`rigplan.engine.landing.landing_picture`, the app's landing pane)."""
+    from rigplan.engine.landing import landing_picture
+    p, r = planned.running_joints(), run.running_joints()
+    picture = landing_picture(
+        [j.label for j in p], [j.length for j in p], [j.kind == "screen" for j in p],
+        planned.closure.valve_joint, [j.label for j in r], [j.run_length for j in r],
+        run.closure.valve_joint, planned.hole.depth, planned.settings.screen_depth_tolerance)
+    out = []
+    for row in picture.moved:
+        shift = row.shift
+        if shift == shift and abs(shift) <= picture.tolerance:
+            shift = row.top - row.planned_top         # the top moved
+        out.append(Finding(JobCode.SCREEN_OFF_PLAN, Severity.WARNING,
+                           quantities={"shift": (shift, Kind.LENGTH),
+                                       "tolerance": (picture.tolerance, Kind.LENGTH)},
+                           context={"labels": tuple(row.labels),
+                                    "source": source or run.source or run.name}))
     return out
 
 
