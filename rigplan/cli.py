@@ -259,6 +259,8 @@ def cmd_check_rigs(args) -> int:
              "hook_limit": c.hook_limit if c.hook_limit == c.hook_limit else None,
              "chosen": c.chosen} for c in choices],
             "units": "SI base units: N; margins are fractions"}
+        from rigplan.present.wording import CAUTION
+        doc["cautions"] = [CAUTION]
         doc["exit_code"] = EXIT_LANDS if any(c.lands for c in choices) else EXIT_LIMIT
         json.dump(doc, sys.stdout, indent=1, allow_nan=False)
         sys.stdout.write("\n")

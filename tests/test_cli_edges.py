@@ -202,3 +202,23 @@ def test_screen_depth_off_plan_is_warned_by_check_tally(tmp_path, capsys):
     tally.write_text("label,status,note\nJ8,run,\n")
     main(["check", str(plan), "--rig", "mw80", "--tally", str(tally), "--brief"])
     assert "from its planned depth" not in capsys.readouterr().out
+
+
+@pytest.mark.parametrize("args", [
+    ["check", "{plan}", "--rig", "mw80", "--rig", "th30", "--format", "json"],
+    ["place", "{plan}", "--rig", "mw80", "--tally", "{rack}", "--format", "json"],
+    ["place", "{plan}", "--rig", "mw80", "--tally", "{rack}", "-o", "{out}"],
+])
+def test_other_outputs_carry_the_caution(args, tmp_path, capsys):
+    """Rule of the project: every output carries the caution."""
+    from pathlib import Path
+    from rigplan.present.wording import CAUTION
+    strings = Path(__file__).resolve().parents[1] / "strings"
+    out = tmp_path / "placed.tally.csv"
+    fill = {"{plan}": str(strings / "cv7-16in-floated.toml"),
+            "{rack}": str(strings / "cv7-16in-floated.rack.tally.csv"), "{out}": str(out)}
+    main([fill.get(a, a) for a in args])
+    text = capsys.readouterr().out
+    assert CAUTION in text
+    if out.exists():
+        assert f"# CAUTION: {CAUTION}" in out.read_text()
