@@ -334,7 +334,8 @@ _WORDS = {
         f"{f.get('source')}: {f.label}: measured {_q(f, 'measured', s)} against "
         f"{_q(f, 'planned', s)} planned: check the tally"),
     JobCode.SCREEN_OFF_PLAN: lambda f, s: (
-        f"{f.get('source')}: screen {_span(f.get('labels'))} "
+        f"{f.get('source')}: screen "
+        f"{f.get('labels') if isinstance(f.get('labels'), str) else _span(f.get('labels'))} "
         + (f"lands {_signed(f.value('shift'), s)} from its planned depth, more than the "
            f"{_q(f, 'tolerance', s)} the plan allows"
            if f.value('shift') == f.value('shift') else "is set aside entirely")
