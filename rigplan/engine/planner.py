@@ -102,6 +102,13 @@ class PlanCode(enum.StrEnum):
     #: top joint of stage 1; quantity ``load`` (the compression at the
     #: joint that fails) -- no set-down weight relieves it
     STAGE1_BUCKLES_ON_BOTTOM = "plan.stage1_buckles_on_bottom"
+    #: crew action: the chosen plan runs open-ended (open, or every stage of a
+    #: staged setting) but the plan names float equipment -- leave the check
+    #: valve out (or fit its auto-fill insert) so the pipe fills from the hole.
+    #: Context ``valve_joint`` (the [float_equipment] valve: 0 float shoe, m a
+    #: collar on the top of joint m, None: none), ``valve_label``, ``staged``
+    #: (bool) and ``float_joints`` (labels of float_shoe/float_collar joints)
+    LEAVE_VALVE_OUT = "plan.leave_valve_out"
 
 
 #: Limit margins below this count as over the limit [-].  A fill schedule
@@ -703,6 +710,27 @@ def crew_notes(joints: JointArrays, trial: Trial) -> tuple[Finding, ...]:
     return tuple(notes)
 
 
+def valve_left_out(joints: JointArrays, planned: Closure, trial: Trial) -> tuple[Finding, ...]:
+    """The crew action when the plan shown runs open-ended although the plan
+    names float equipment (the planned closure or float_shoe/float_collar
+    joints): the loads shown are those of an open pipe, so the valve must be
+    left out or held open, or every figure is wrong (a closed, empty stage
+    sees the full hole-fluid head outside; common practice, no source)."""
+    kinds = tuple(str(joints.label[j]) for j, k in enumerate(joints.kind)
+                  if k in ("float_shoe", "float_collar"))
+    if planned.is_open and not kinds:
+        return ()
+    if trial.verdict not in (LANDS_OPEN, LANDS_STAGED, CANNOT_CONFIRM):
+        return ()
+    if not trial.chosen.closure.is_open:
+        return ()
+    m = planned.valve_joint
+    label = str(joints.label[m - 1]) if m and 1 <= m <= joints.n else None
+    return (Finding(PlanCode.LEAVE_VALVE_OUT, Severity.ACTION, joint=m or None, label=label,
+                    context={"valve_joint": m, "valve_label": label,
+                             "staged": _staged_chosen(trial), "float_joints": kinds}),)
+
+
 def _staged_chosen(trial: Trial) -> bool:
     """The run shown is the staged setting."""
     return trial.staged and trial.stages is not None
@@ -860,7 +888,8 @@ def plan_landing(joints: JointArrays, hole: Hole, rig: Rig, settings: Settings,
         switch_joint=switch_point(inp.open_loads.string_load, inp.limit),
         neutral_point=_neutral_point(trial, landed, settings),
         grouting=plan_grouting(inp, grout), landed=landed,
-        unrated=unrated, reasons=trial.reasons, notes=crew_notes(joints, trial),
+        unrated=unrated, reasons=trial.reasons,
+        notes=valve_left_out(joints, closure, trial) + crew_notes(joints, trial),
         buckling=buckling, staged=_staged_chosen(trial),
     )
 

@@ -12,6 +12,7 @@ import math
 import numpy as np
 
 from rigplan.engine.findings import Kind, Verdict
+from rigplan.engine.planner import PlanCode
 from rigplan.present import wording as W
 from rigplan.present.wording import CAUTION, closure_name, percent
 
@@ -493,8 +494,11 @@ def text_renderables(landing, plan=None, system: str = "us", warnings=(), rig_na
     out.append(chain_table(cap, system))
     for _, r in W.finding_lines(landing.reasons, system, landing.unrated):
         out.append(Text(f"  - {r}"))
-    for _, r in W.finding_lines(landing.notes, system):
-        out.append(Text(f"  note: {r}", "cyan"))
+    for code, r in W.finding_lines(landing.notes, system):
+        if code == PlanCode.LEAVE_VALVE_OUT:
+            out.append(Text(f"  crew action: {r}", "bold yellow"))
+        else:
+            out.append(Text(f"  note: {r}", "cyan"))
     for _, w in W.finding_lines(warnings, system):
         out.append(Text(f"  warning: {w}", "yellow"))
 

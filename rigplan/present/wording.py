@@ -245,6 +245,26 @@ def _valve(f: Finding) -> str:
     return closure_name(m, None if not label else [""] * (m - 1) + [label])
 
 
+def _leave_valve_out(f: Finding) -> str:
+    """Crew action: the plan runs open-ended though float equipment is named."""
+    m = f.get("valve_joint")
+    named = []
+    if m is not None:
+        named.append(f"the {_valve(f)}")
+    joints = [x for x in (f.get("float_joints") or ()) if x != f.get("valve_label")]
+    if joints:
+        named.append(("float equipment joint " if len(joints) == 1 else
+                      "float equipment joints ") + ", ".join(joints))
+    how = "in stages" if f.get("staged") else "open-ended"
+    stage = (" Both stages run open-ended: stage 1 fills from the hole as it is lowered on "
+             "the landing string." if f.get("staged") else "")
+    return (f"RUN WITHOUT THE CHECK VALVE: this plan runs {how}, but the plan names "
+            f"{' and '.join(named)}. Leave the valve out (or fit the auto-fill / orifice "
+            "insert so the pipe fills from the hole through the shoe) and check that the "
+            "pipe fills at every joint; with the valve in, the pipe runs empty and the "
+            f"loads, collapse checks and weights in this plan do not apply.{stage}")
+
+
 def _float_name(f: Finding, system: str) -> str:
     return (f"{_valve(f)} with fill "
             f"{fmt(f.value('fill_density'), Kind.DENSITY, system)}")
@@ -270,6 +290,7 @@ _WORDS = {
     PlanCode.RUN_WITHOUT_VALVE: lambda f, s: (
         "the planned float equipment does not keep every limit, but the string lands "
         "open-ended: run it without the check valve"),
+    PlanCode.LEAVE_VALVE_OUT: lambda f, s: _leave_valve_out(f),
     PlanCode.NO_LANDING_STRING: lambda f, s: "staged setting: the rig profile has no landing string",
     PlanCode.STAGED_FAILS: lambda f, s: f"staged setting: {finding_text(f.cause, s)}",
     PlanCode.LONGER_THAN_HOLE: lambda f, s: (

@@ -16,6 +16,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from rigplan.engine.findings import Kind, Verdict
+from rigplan.engine.planner import PlanCode
 from rigplan.present import wording as W
 from rigplan.present.wording import CAUTION, closure_name, next_action, step_actions
 from rigplan.present.packet.document import (CrewSheet, Facts, Figure, Packet, Paragraph,
@@ -224,6 +225,9 @@ def _cover(ctx: Context) -> Section:
                                            f"{ctx.as_run.landing.joints.n} joints in the hole, "
                                            f"{len(st.rejected)} set aside"))
     sec.blocks.append(Facts("", tuple(items)))
+    for code, text in W.finding_lines(lp.notes, ctx.system):
+        if code == PlanCode.LEAVE_VALVE_OUT:
+            sec.blocks.append(Paragraph(text, "caution"))
     if lp.reasons or lp.unrated:
         head = "Options set aside: " if lp.lands else "Why it cannot be confirmed: " \
             if lp.verdict == Verdict.CANNOT_CONFIRM else "Why it cannot land: "
@@ -638,6 +642,9 @@ def _crew(ctx: Context) -> Section:
               f"if a reading leaves its band (+/- {100 * ctx.info.band:g} % of the predicted "
               f"hook load).",
               f"Plan: {next_action(lp, ctx.system)}."]
+    for code, text in W.finding_lines(lp.notes, ctx.system):
+        if code == PlanCode.LEAVE_VALVE_OUT:
+            legend.insert(0, text)
     opt = lp.best_float
     if opt is not None and (opt.closure.valve_joint or 0) > 0 and not lp.chosen.closure.is_open:
         legend.append("Shoe track: the joints below the float collar; they fill from the hole.")
