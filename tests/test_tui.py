@@ -688,3 +688,61 @@ async def test_each_joint_is_named_by_its_label_after_a_set_aside(job):
 
 def P_lines(app) -> list:
     return [str(app.query_one("#run-summary").content)]
+
+
+async def test_80x24_keeps_the_essential_columns_and_one_chart(tmp_path):
+    # The smallest terminal planned for (80x24, the VT100 size): each
+    # screen keeps its essential columns and shows one chart at a time.
+    plan, rig = demo_job(tmp_path, "cv7-16in-floated.toml", "mw80.toml")
+    app = make_app(plan, rig)
+    async with app.run_test(size=(80, 24)) as pilot:
+        assert app.screen.has_class("compact")
+        await pilot.press("3")
+        await pilot.pause()
+        run_cols = list(app.query_one("#run-table").columns)
+        for key in ("label", "status", "length", "hook", "fill"):
+            assert key in run_cols, run_cols
+        await pilot.press("2")
+        await pilot.pause()
+        tally_cols = list(app.query_one("#tally-table").columns)
+        for key in ("label", "status", "measured_length", "length", "tension_util"):
+            assert key in tally_cols, tally_cols
+        widths = sum(c.width + 2 for c in app.query_one("#tally-table").columns.values())
+        assert widths <= 80
+        await pilot.press("4")
+        await pilot.pause()
+        shown = [b.id for b in app.query(".chart-box") if b.display]
+        assert shown == ["box-hook"]
+        await pilot.press("c")
+        await pilot.pause()
+        assert [b.id for b in app.query(".chart-box") if b.display] == ["box-fill"]
+    app = make_app(plan, rig)
+    async with app.run_test(size=(140, 45)) as pilot:
+        assert not app.screen.has_class("compact")
+        await pilot.press("4")
+        await pilot.pause()
+        assert len([b for b in app.query(".chart-box") if b.display]) == 3
+
+
+async def test_settings_change_mid_run_says_what_changes_first(job):
+    from rigplan.tui.dialogs import ConfirmScreen
+    plan, rig = job
+    app = make_app(plan, rig)
+    async with app.run_test(size=SIZE) as pilot:
+        await pilot.press("3")
+        for _ in range(3):
+            await pilot.press("r", "enter")
+            await pilot.pause()
+        before = app.session.base_plan
+        await pilot.press("g")
+        await pilot.pause()
+        app.action_edit_setting("hole_fluid_density")
+        await pilot.pause()
+        await answer(pilot, "10.5 ppg")
+        assert isinstance(app.screen, ConfirmScreen)
+        question = str(app.screen.query_one(".dialog-title").content)
+        assert "3 joints are in the hole" in question and "Hook load now" in question
+        assert app.session.base_plan is before          # nothing changed yet
+        await pilot.press("n")
+        await pilot.pause()
+        assert app.session.base_plan is before

@@ -915,3 +915,33 @@ def landing_lines(picture, system: str) -> list:
                      f"{fmt(picture.tolerance, Kind.DEPTH, system, 2)} the plan allows: "
                      "check the tally and the screen placement before going on")
     return lines
+
+
+# ---------------------------------------------------------------------------
+# a settings change mid-run
+
+
+def change_lines(before, after, step: int, system: str) -> list:
+    """What a settings change mid-run changes for the crew, before it takes
+    effect: the verdict, the next instruction and the planned hook load now
+    and after the next joint.  ``before`` / ``after``: landing plans (before
+    may be None); ``step``: joints in the hole (they keep what they hold)."""
+    lines = [f"{step} joints are in the hole: they keep the fluid they hold; the change "
+             f"applies to the joints not yet run."]
+    if after is None:
+        return lines + ["No plan with this change."]
+    old_v = before.verdict.value if before is not None else "no plan"
+    new_v = after.verdict.value
+    lines.append(f"Verdict: {old_v}" + (f" -> {new_v}" if new_v != old_v else " (unchanged)"))
+    new_next = fill_instruction(after, step, system)
+    old_next = fill_instruction(before, step, system) if before is not None else ""
+    lines.append(f"Next: {new_next}" + ("" if new_next != old_next else " (unchanged)"))
+    n = after.joints.n
+    for label, k in (("Hook load now", step), ("after the next joint", step + 1)):
+        if 1 <= k <= n:
+            new = float(after.hook_load[k - 1])
+            old = (float(before.hook_load[k - 1])
+                   if before is not None and k <= before.joints.n else None)
+            lines.append(f"{label}: {fmt(old, Kind.FORCE, system)} -> "
+                         f"{fmt(new, Kind.FORCE, system)}")
+    return lines

@@ -286,11 +286,26 @@ class RigplanApp(App):
                                  f"Planning with rig {name}"))
             return
 
+        def apply(plan) -> None:
+            s.apply_plan(plan)
+            self._committed(f"{title} changed (not saved yet: s on the String tab saves)")
+
         def done(plan) -> None:
             if plan is None:
                 return
-            s.apply_plan(plan)
-            self._committed(f"{title} changed (not saved yet: s on the String tab saves)")
+            if not s.step:
+                apply(plan)
+                return
+            # Mid-run: say what changes before it takes effect.
+            try:
+                after = s.preview(plan)
+            except InputError as exc:
+                self._error(exc)
+                return
+            lines = P.change_lines(s.landing, after, s.step, s.units)
+            self.push_screen(ConfirmScreen(f"Change {title.lower()}?\n" + "\n".join(lines),
+                                           yes="Change", no="Keep as it is"),
+                             lambda yes: yes and apply(plan))
 
         self.push_screen(PromptScreen(title, value=s.setting_text(key), hint=hint,
                                       parse=lambda t: s.edited_setting(key, t),

@@ -626,6 +626,17 @@ class JobSession:
         self.recompute()
         return rig.name
 
+    def preview(self, plan: StringPlan):
+        """The landing plan a changed base plan would give now, with the run
+        so far kept as it is (the fill already in the pipe stays); nothing
+        is changed here.  Raises InputError when the planner refuses it."""
+        from rigplan.files.job import fill_record_of, plan_as_run
+        record = self.fill_record
+        k = self.step
+        if k and self.landing is not None:
+            record = fill_record_of(self.landing, k) or record
+        return plan_as_run(plan, self.rig, self.state, self.path_name, fill_record=record)
+
     def apply_plan(self, plan: StringPlan) -> None:
         """Use an edited base plan (from :meth:`edited_plan` or the joint edits)."""
         self.keep_fill_run()
