@@ -746,3 +746,22 @@ async def test_settings_change_mid_run_says_what_changes_first(job):
         await pilot.press("n")
         await pilot.pause()
         assert app.session.base_plan is before
+
+
+def test_as_run_report_says_which_lengths_were_planned(job, tmp_path):
+    from rigplan.cli import main
+    from rigplan.tui.session import JobSession
+    plan, rig = job
+    s = JobSession(plan, rig)
+    try:
+        s.record_run(20.5 * ft)                 # taped
+        s.record_run(None, basis="planned")     # Enter on the planned length
+    finally:
+        s.close()
+    out = tmp_path / "as-run.md"
+    main(["report", str(plan), "--rig", str(rig), "--as-run", "-o", str(out)])
+    text = out.read_text()
+    j2 = next(line for line in text.splitlines() if line.startswith("| J2 "))
+    assert "planned length, not measured" in j2
+    j1 = next(line for line in text.splitlines() if line.startswith("| J1 "))
+    assert "planned length" not in j1

@@ -758,7 +758,14 @@ class JobSession:
                    + f"\nfrom the run log {self.log.path.name}; length_source planned = "
                    "the planned length was accepted, nothing was measured\n" + CAUTION)
         path = self.export_path()
-        atomic_write_text(path, run_tally_text(entries, self.file_units, comment))
+        text = run_tally_text(entries, self.file_units, comment)
+        try:
+            same = path.read_text(encoding="utf-8") == text
+        except (OSError, UnicodeDecodeError):
+            same = False
+        if not same:
+            # an earlier export (perhaps annotated by hand) is kept beside it
+            atomic_write_text(path, text, backup=True)
         return path
 
     # -- lookups for the screens -----------------------------------------------

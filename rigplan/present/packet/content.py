@@ -10,6 +10,8 @@ gives the same packet.
 
 from __future__ import annotations
 
+import dataclasses
+
 import math
 from dataclasses import dataclass, field
 
@@ -716,6 +718,8 @@ def _as_run(ctx: Context) -> Section:
             status, why = "not run", ""
         m = measured.get(label)
         diff = "" if m is None else ctx.n(m - spec.length, "length", 2)
+        if m is None and state.basis.get(label) == "planned":
+            why = why or "run on the planned length, not measured"
         rows.append((label, spec.kind.replace("_", " "), ctx.n(spec.length, "length", 2),
                      "" if m is None else ctx.n(m, "length", 2), diff, status, why))
     sec.blocks.append(Table("Tally as run", ("joint", "kind", ctx.head("planned", "length"),
@@ -728,9 +732,13 @@ def _as_run(ctx: Context) -> Section:
     rrows = []
     alarms = []
     for ob in state.observations:
-        pred = ob.predicted_n
-        if pred is None and 1 <= ob.step <= len(hook_asrun):
-            pred = float(hook_asrun[ob.step - 1])
+        # judged against the plan as run now; the prediction made when the
+        # reading was entered is kept in the note
+        pred = (float(hook_asrun[ob.step - 1]) if 1 <= ob.step <= len(hook_asrun)
+                else ob.predicted_n)
+        if ob.predicted_n is not None and pred is not None and abs(ob.predicted_n - pred) > 0.5:
+            ob = dataclasses.replace(ob, note=(ob.note + "; " if ob.note else "")
+                                     + f"predicted at entry {ctx.q(ob.predicted_n, 'force', fd)}")
         if pred is None:
             diff, out = "", ""
         else:

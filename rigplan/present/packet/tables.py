@@ -54,7 +54,8 @@ def render_csv(job, landing, system: str, info: ReportInfo, state=None) -> str:
         elif spec.rejected:
             status, reason = "set aside", spec.note
         elif spec.label in run_index:
-            status, reason = "run", ""
+            status, reason = "run", ("planned length, not measured"
+                                     if state.basis.get(spec.label) == "planned" else "")
         else:
             status, reason = "planned", ""
         row = ["" if k is None else str(k + 1), spec.label, spec.kind, spec.material,
