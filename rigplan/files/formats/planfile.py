@@ -56,6 +56,10 @@ weight (w)::
     type = "float_collar"        # none | float_shoe | float_collar
     collar_joint = 2             # float_collar only: position 1..n or a label
     valve_rating = "..."         # P, differential the valve holds, optional
+                                 # joints of kind float_shoe / float_collar must
+                                 # agree with this table: one float shoe (the
+                                 # bottom joint, type float_shoe), one float
+                                 # collar (on collar_joint); else refused
 
     [running]                    # optional
     fill_density = "8.34 ppg"    # rho, fluid added inside, default 998.2 kg/m3
