@@ -130,8 +130,9 @@ def cmd_liner(args, load) -> int:
         t.add_row(*row)
     console = Console(highlight=False, width=None if sys.stdout.isatty() else 110)
     console.print(t)
-    print(f"Liner running plan: {landing.verdict}"
-          + (f"; governing {landing.governing.name}, margin {100 * landing.governing.margin:.1f} %"
+    from rigplan.present.wording import percent
+    print(f"Liner running plan: {landing.verdict.value}"
+          + (f"; governing {landing.governing.name}, margin {percent(landing.governing.margin)}"
              if landing.governing is not None else ""))
     print("(rigplan check on the same plan gives the running plan in full)")
     print(f"Caution: {CAUTION_OLD_CASING}")

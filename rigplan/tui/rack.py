@@ -15,7 +15,7 @@ from textual.screen import Screen
 from textual.widgets import DataTable, Footer, Static
 
 from rigplan.errors import InputError
-from rigplan.files import units as U
+from rigplan.present import wording as P
 from rigplan.present import rack as R
 
 
@@ -90,12 +90,12 @@ class RackScreen(Screen):
         from textual_plot import HiResMode, PlotWidget
         from rigplan.tui.charts import DepthFormatter
         a = self.liner.assessment
-        depth = -np.asarray(U.to_display(a.shape.depth, "length", system), dtype=float)
-        l_unit = U.unit_label("length", system)
+        depth = -np.asarray(P.to_display(a.shape.depth, "length", system), dtype=float)
+        l_unit = P.unit("length", system)
         for box, x, label, colour in (
                 ("#rack-chart-e", 100.0 * a.shape.ellipticity, "ellipticity [%]", "bright_cyan"),
-                ("#rack-chart-c", np.asarray(U.to_display(a.rating, "pressure", system), float),
-                 f"collapse rating [{U.unit_label('pressure', system)}]", "bright_yellow")):
+                ("#rack-chart-c", np.asarray(P.to_display(a.rating, "pressure", system), float),
+                 f"collapse rating [{P.unit('pressure', system)}]", "bright_yellow")):
             plot = self.query_one(box, PlotWidget)
             plot.clear()
             plot.plot(x, depth, line_style=colour, hires_mode=HiResMode.BRAILLE)
