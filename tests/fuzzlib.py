@@ -553,9 +553,12 @@ def scratch_dir(prefix: str) -> Path:
     return Path(tempfile.mkdtemp(prefix=prefix, dir=base))
 
 
+CALIPERS = sorted((ROOT / "strings").glob("*.las"))
+
+
 def copy_demo(dest: Path) -> None:
-    """The bundled rigs and strings copied into ``dest``."""
-    for p in RIGS + PLANS + TALLIES:
+    """The bundled rigs and strings (plans, tallies, caliper logs) copied into ``dest``."""
+    for p in RIGS + PLANS + TALLIES + CALIPERS:
         shutil.copy(p, dest / p.name)
 
 
@@ -784,6 +787,14 @@ def fuzz_prompts(n: int, seed: int) -> Stats:
                 attempt(stats, f"setting {key} = {text!r}",
                         lambda: session.edited_setting(key, text),
                         names=("job setting", key, str(plan)), oracle=plan_problems)
+            elif r < 0.80:
+                text = quantity_text(rng) if rng.random() < 0.8 else rng.choice(
+                    ("", "1e300 lbf", "-5", "nan", "50000", "5e7 N", "1e7"))
+
+                def reading_oracle(v):
+                    return [] if ranges.RANGES["force"].contains(v) else [f"reading {v!r}"]
+                attempt(stats, f"reading {text!r}", lambda: session.reading_value(text),
+                        names=("weight reading",), oracle=reading_oracle)
             elif r < 0.85:
                 text = rng.choice((quantity_text(rng), f"{rng.uniform(-5, 120):.3g} %",
                                    f"{rng.uniform(-1, 2):.3g}", "nan %", "inf", "1e400 %"))
@@ -845,11 +856,18 @@ def _digest_folder(folder: Path) -> dict:
 
 
 @contextlib.contextmanager
-def app_stubbed():
+def app_stubbed(demo_folder: Path | None = None):
     """``open`` and the bare command build the app (files read, run log
-    opened) but do not run it: no terminal is taken over in a test."""
+    opened) but do not run it: no terminal is taken over in a test.  The
+    bare command's demo job is the copy in ``demo_folder`` (no run log is
+    started beside the bundled files)."""
+    import rigplan.files.job as job_module
     import rigplan.tui.app as app_module
     real = app_module.run_app
+    real_demo = job_module.demo_paths
+    if demo_folder is not None:
+        job_module.demo_paths = lambda: (demo_folder / job_module.DEMO_PLAN,
+                                         demo_folder / job_module.DEMO_RIG)
 
     def stub(plan_path, rig_path, path_name=None, units="us", tally=None):
         app = app_module.build_app(plan_path, rig_path, path_name=path_name, units=units,
@@ -861,6 +879,7 @@ def app_stubbed():
         yield
     finally:
         app_module.run_app = real
+        job_module.demo_paths = real_demo
 
 
 def _cli_oracle(code, out, err, argv) -> list:
@@ -957,15 +976,30 @@ class CliPool:
             log.write_bytes(data if k % 3 == 0 else mutate_log_bytes(data, rng))
         self.bad_names = ["missing.toml", "", " ", str(work), "/dev/null", "x" * 300 + ".toml",
                           str(work / ("y" * 300)), "-", "--", "strings/../../../etc/passwd"]
-        self.outputs = [str(work / "out.html"), str(work / "out.txt"), str(work / "no" / "dir.txt"),
-                        str(work), str(work / ("z" * 300 + ".html")), ""]
+        self.outputs = [str(work / "out.html"), str(work / "out.md"), str(work / "out.json"),
+                        str(work / "out.csv"), str(work / "out.txt"), str(work / "no" / "dir.md"),
+                        str(work), str(work / ("z" * 300 + ".html")), "",
+                        str(work / "placed.csv")]
 
     def argv(self, rng: random.Random) -> list:
         r = rng.random()
-        cmd = ("check" if r < 0.78 else "report" if r < 0.88 else "open" if r < 0.94 else
+        cmd = ("check" if r < 0.74 else "report" if r < 0.84 else "open" if r < 0.90 else
+               rng.choice(("place", "liner")) if r < 0.94 else
                rng.choice(("rigs", "demo" if rng.random() < 0.2 else "rigs", "bogus", None)))
         if cmd is None:
             return []
+        if cmd in ("place", "liner"):
+            plan = rng.choice(self.good_plans + self.plans[:5] + self.bad_names[:3])
+            argv = [cmd, plan, "--rig", rng.choice(("th30", "mw80", rng.choice(self.rigs)))]
+            if cmd == "place":
+                argv += ["--tally", rng.choice(self.tallies + [str(self.work / "missing.csv")])]
+                if rng.random() < 0.5:
+                    argv += ["-o", rng.choice([str(self.work / "placed.csv"), plan,
+                                               argv[-1], str(self.work / ("p" * 300))])]
+            else:
+                cals = [str(self.work / p.name) for p in CALIPERS]
+                argv += ["--caliper", rng.choice(cals + self.tallies[:2] + self.bad_names[:3])]
+            return argv + (["--format", "json"] if rng.random() < 0.8 else [])
         if cmd in ("rigs", "demo", "bogus"):
             return [cmd] + ([rng.choice(("--units", "si", "--bogus", "us"))] if rng.random() < 0.3
                             else [])
@@ -1021,8 +1055,9 @@ def fuzz_cli(n: int, seed: int) -> Stats:
     work = scratch_dir("fuzz-cli-")
     pool = CliPool(rng, work)
     stats = Stats("command line")
+    exits = {}
     try:
-        with app_stubbed():
+        with app_stubbed(work):
             for _ in range(n):
                 argv = pool.argv(rng)
                 outputs = {Path(a).absolute() for a in pool.outputs if a}
@@ -1030,6 +1065,7 @@ def fuzz_cli(n: int, seed: int) -> Stats:
 
                 def run():
                     code, out, err = run_cli(argv)
+                    exits[code] = exits.get(code, 0) + 1
                     return code, out, err
 
                 def oracle(res):
@@ -1039,7 +1075,7 @@ def fuzz_cli(n: int, seed: int) -> Stats:
                     for name, digest in before.items():
                         if (work / name).absolute() in outputs:
                             continue
-                        if name.endswith((".sqlite", "-wal", "-shm", ".lock")) and argv[:1] == ["open"]:
+                        if name.endswith((".sqlite", "-wal", "-shm", ".lock")) and argv[:1] in (["open"], []):
                             continue        # the app's own log, opened to record
                         if name.endswith(("-wal", "-shm")):
                             continue        # SQLite's index beside a log read as it is
@@ -1052,6 +1088,9 @@ def fuzz_cli(n: int, seed: int) -> Stats:
                         o.unlink()
     finally:
         shutil.rmtree(work, ignore_errors=True)
+    # exit 2 is a refusal (its one line is judged by the oracle)
+    stats.refused += exits.get(2, 0)
+    stats.accepted -= exits.get(2, 0)
     return stats
 
 

@@ -51,7 +51,7 @@ _quantity_text = st.one_of(
 )
 
 
-@settings(max_examples=800, deadline=None, database=None,
+@settings(max_examples=800, deadline=None, database=None, derandomize=True,
           suppress_health_check=[HealthCheck.too_slow])
 @given(_quantity_text, st.sampled_from(F.KINDS), st.sampled_from(units.SYSTEMS),
        st.booleans())
@@ -69,7 +69,7 @@ _cell = st.one_of(st.text(max_size=12), st.sampled_from(F.CSV_CELLS[:36]),
                   st.floats().map(lambda x: f"{x:g}"))
 
 
-@settings(max_examples=400, deadline=None, database=None,
+@settings(max_examples=400, deadline=None, database=None, derandomize=True,
           suppress_health_check=[HealthCheck.too_slow])
 @given(st.lists(st.tuples(st.sampled_from(["J1", "J2", "J3", "J4", "J5", "", "J1 "]), _cell,
                           _cell, _cell), max_size=6))

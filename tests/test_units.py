@@ -329,3 +329,34 @@ def test_hydrostatic_gradient_from_parsed_units():
     grad = rho * G_N * units.parse("1 ft", "length", None, "w") / units.parse("1 psi", "pressure", None, "w")
     assert_allclose(grad, 0.433, atol=5e-4)
     assert math.isclose(grad / 8.33, 0.051948, rel_tol=1e-4)
+
+
+# -- values that overflow, are not finite, or are too long to be a quantity ----
+
+
+@pytest.mark.parametrize("value, kind, unit", [
+    ("1e308 psi", "pressure", None),          # finite text, infinite once in Pa
+    ("1e400 ft", "length", None),
+    ("-1e308 lbf", "force", None),
+    (10 ** 400, "force", "lbf"),              # TOML integer too large for a float
+    ("1" + "0" * 400 + " ft", "length", None),
+    ("1" + "0" * 400 + "/3 in", "diameter", None),
+    ("nan ppg", "density", None),
+    (float("inf"), "length", "ft"),
+])
+def test_overflow_and_non_finite_are_one_line_input_errors(value, kind, unit):
+    # Common practice, no source: a number that is not finite in SI is no quantity.
+    with pytest.raises(InputError) as err:
+        units.parse(value, kind, unit, "f.toml: key")
+    text = str(err.value)
+    assert text.startswith("f.toml: key: ") and "\n" not in text and len(text) < 400
+
+
+def test_a_text_longer_than_any_quantity_is_refused_before_it_is_read():
+    from rigplan.files.units import MAX_TEXT
+    with pytest.raises(InputError) as err:
+        units.parse("1" + " " * 300 + "ft", "length", None, "where")
+    assert f"at most {MAX_TEXT}" in str(err.value)
+    with pytest.raises(InputError) as err:
+        units.parse("x" * 200_000, "length", "ft", "where")
+    assert len(str(err.value)) < 300

@@ -13,7 +13,8 @@ value that would turn into an overflow, a NaN or an endless loop in the
 engine.  Each range says why it is where it is.
 
 Values are SI (the unit of the quantity ``kind`` in :mod:`rigplan.files.units`:
-m, kg/m3, Pa, N, N/m; ``count`` and ``dimensionless`` are plain numbers).
+m, kg/m3, Pa, N, N/m; ``count`` and ``dimensionless`` are plain numbers;
+``temperature`` is in C and ``temperature_difference`` in K).
 
 >>> RANGES["sheave_factor"].contains(1.04), RANGES["sheave_factor"].contains(1e100)
 (True, False)
@@ -74,6 +75,11 @@ class Range:
     def _bounds(self, system: str | None):
         if self.kind == "count":
             return f"{int(self.lo):,}", f"{int(self.hi):,}", ""
+        if self.kind in ("temperature", "temperature_difference"):
+            if system == "us":      # F = C x 1.8 + 32; a difference x 1.8 (NIST SP 811 B.8)
+                off = 32.0 if self.kind == "temperature" else 0.0
+                return _number(self.lo * 1.8 + off), _number(self.hi * 1.8 + off), "F"
+            return _number(self.lo), _number(self.hi), "C" if self.kind == "temperature" else "K"
         if self.kind == "dimensionless":
             return f"{self.lo:g}", f"{self.hi:g}", "[-]"
         system = system or "si"
@@ -184,6 +190,13 @@ RANGES = _ranges(
     Range("weight_per_length", "a weight per length", "linear_weight", 0.0, 1e5,
           lo_inclusive=False,
           why="above zero and below about 6,850 lb/ft, far heavier than any casing"),
+    # -- temperatures [C] and temperature differences [K] ----------------------
+    Range("job_temperature", "a job temperature", "temperature", -10.0, 100.0,
+          why="groundwater and drilling fluid from near freezing to a hot geothermal well; "
+              "the thermoplastic derating tables stop well inside this"),
+    Range("temperature_rise", "a temperature rise", "temperature_difference", 0.0, 60.0,
+          why="the heat of hydration of a grout column warms the casing by some tens of "
+              "kelvin at most"),
     # -- plain numbers [-] --------------------------------------------------------
     Range("lines", "a whole number of lines strung", "count", _LINES[0], _LINES[1],
           why="the block formula's range in rigplan.engine.hoisting: drilling blocks reeve "

@@ -21,6 +21,7 @@ from textual.widgets import Footer, Header, Static, TabbedContent, TabPane
 
 from rigplan.files import units as U
 from rigplan.errors import InputError
+from rigplan.files import ranges
 from rigplan.files.job import LENGTH_WARNING
 from rigplan.files.runlog import RunLogWriteError
 from rigplan.present import wording as P
@@ -386,9 +387,7 @@ class RigplanApp(App):
                 force = t.endswith("!")
                 v = U.parse(t.rstrip("!").strip(), "length", unit,
                             f"{nxt.label} measured length")
-                if not v > 0:
-                    raise InputError(f"{nxt.label} measured length",
-                                     f"expected a length > 0, got {t!r}")
+                ranges.check("joint_length", v, f"{nxt.label} measured length", t, s.units)
                 if not force and not LENGTH_WARNING[0] * nxt.length <= v <= LENGTH_WARNING[1] * nxt.length:
                     raise InputError(f"{nxt.label} measured length",
                                      f"{P.fmt(v, 'length', s.units, 2)} is far from the planned "

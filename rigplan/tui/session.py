@@ -404,6 +404,7 @@ class JobSession:
             raise InputError(where, f"{P.fmt(value, 'force', self.units)} is above the rig's "
                                     f"hook rating ({P.fmt(top, 'force', self.units)}): "
                                     "check the indicator and the units")
+        ranges.check("force", value, where, t, self.units)    # a rig rated nowhere
         return value
 
     def observe(self, hook_load_n: float, note: str = "") -> tuple:

@@ -178,8 +178,9 @@ MAX_COLLAR_CANDIDATES = 24
 RACK_OD_SPREAD = 0.25
 
 #: Job temperatures a plan may state [C], and grout temperature rises [K].
-JOB_TEMPERATURE_RANGE = (-10.0, 100.0)
-TEMPERATURE_RISE_RANGE = (0.0, 60.0)
+JOB_TEMPERATURE_RANGE = (ranges.RANGES["job_temperature"].lo, ranges.RANGES["job_temperature"].hi)
+TEMPERATURE_RISE_RANGE = (ranges.RANGES["temperature_rise"].lo,
+                          ranges.RANGES["temperature_rise"].hi)
 
 _TEMPERATURE = re.compile(r"^\s*(?P<value>[-+]?(?:\d+\.?\d*|\.\d+))\s*"
                           r"(?P<unit>(?:°|deg\s*)?[CFK]|deg[CF])?\s*$", re.IGNORECASE)
