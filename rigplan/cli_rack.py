@@ -17,6 +17,8 @@ def add_commands(sub, job_args) -> None:
     pl.add_argument("-o", "--output", default=None,
                     help="write the proposed order as a tally CSV (run_order column)")
     pl.add_argument("--format", choices=("text", "json"), default="text")
+    pl.add_argument("--force", action="store_true",
+                    help="replace the -o file if it exists (never an input of the command)")
     ln = sub.add_parser("liner", help="check a liner against an old casing's caliper log "
                                       "(LAS 2.0) and plan its running")
     job_args(ln)
@@ -70,6 +72,10 @@ def cmd_place(args, load) -> int:
     if args.output:
         out = Path(args.output)
         _refuse_input(out, args, job)
+        if out.exists() and not args.force:
+            raise InputError(f"{out}", "exists: choose another name, or add --force to replace "
+                                       "it (a tally someone edited would be lost); nothing was "
+                                       "written")
         rows = placed_tally_rows(plan, result)
         try:
             write_tally(rows, out, args.units,

@@ -24,6 +24,17 @@ for _p in (str(TESTS), str(ROOT)):
 from _units import (ft, g_n, gal, inch, ksi, lb, lb_per_ft, lb_per_in3, lbf,  # noqa: E402,F401
                     mm, ppg, psi, psi_per_ft)
 
+# Property tests draw the same examples on every run (a failure is found
+# again by anyone who runs the suite, and CI never fails by chance).  Set
+# RIGPLAN_HYPOTHESIS_RANDOM=1 to explore new examples while developing.
+import os  # noqa: E402
+
+from hypothesis import settings as _hypothesis_settings  # noqa: E402
+
+_hypothesis_settings.register_profile(
+    "rigplan", derandomize=not os.environ.get("RIGPLAN_HYPOTHESIS_RANDOM"), database=None)
+_hypothesis_settings.load_profile("rigplan")
+
 
 @pytest.fixture(scope="session")
 def repo_root() -> Path:

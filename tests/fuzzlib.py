@@ -549,8 +549,12 @@ def run_cli(argv, stdin_text: str = "") -> tuple:
 
 def scratch_dir(prefix: str) -> Path:
     """A temporary folder, in memory where the machine has one (fast sqlite)."""
+    import atexit
+    import shutil
     base = "/dev/shm" if os.path.isdir("/dev/shm") and os.access("/dev/shm", os.W_OK) else None
-    return Path(tempfile.mkdtemp(prefix=prefix, dir=base))
+    path = Path(tempfile.mkdtemp(prefix=prefix, dir=base))
+    atexit.register(shutil.rmtree, path, True)      # removed when the test run ends
+    return path
 
 
 CALIPERS = sorted((ROOT / "strings").glob("*.las"))

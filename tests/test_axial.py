@@ -221,3 +221,22 @@ def test_true_force_at_chosen_steps_matches_the_step_profile():
     want = [step_profile(j, hole, Closure(2), int(k) + 1, 998.2, level).true_force_top[i]
             for i, k in zip(joints, steps)]
     assert_allclose(got, want, rtol=1e-12, atol=1e-9 * np.max(np.abs(want)))
+
+
+def test_fill_level_a_rounding_above_the_floor_is_the_floor():
+    # A fill level computed as a difference of depths can come out -1e-14 m;
+    # that is the floor, not an error (rounding of IEEE 754 doubles).
+    from rigplan.engine.axial import _fill_levels, string_geometry
+    import numpy as np
+    from rigplan.engine.stringmodel import Closure, JointArrays
+    n = 3
+    j = JointArrays(label=("J1", "J2", "J3"), kind=("blank",) * 3, length=np.full(n, 6.0),
+                    od=np.full(n, 0.2), bore=np.full(n, 0.18), weight=np.full(n, 2000.0),
+                    collapse_rating=np.full(n, 1e6), burst_rating=np.full(n, 1e6),
+                    body_rating=np.full(n, 1e6), connection_rating=np.full(n, 1e6))
+    geo = string_geometry(j, Closure(valve_joint=0))
+    lv = _fill_levels(geo, Closure(valve_joint=0), np.array([0.0, -1.4e-14, 3.0]))
+    assert lv.tolist() == [0.0, 0.0, 3.0]
+    import pytest
+    with pytest.raises(ValueError):
+        _fill_levels(geo, Closure(valve_joint=0), np.array([0.0, -0.01, 3.0]))

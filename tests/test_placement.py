@@ -91,7 +91,7 @@ def _rack_plan(tmp_path):
     walls = {"J1": 0.25, "J2": 0.25, "J3": 0.25}
     for i in range(4, 23):
         walls[f"J{i}"] = 0.25 - 0.002 * ((i * 7) % 11)
-    walls["J22"] = 0.08                     # a badly corroded joint tallied at the top
+    walls["J22"] = 0.035                    # a badly corroded joint tallied at the top
     for label, w in walls.items():
         rows.append(f"{label},20.0,,run,,{w}")
     t = tmp_path / "rack.tally.csv"
@@ -163,3 +163,45 @@ def test_demo_rack_tally_is_reproducible_and_placement_never_worse(tmp_path, cap
                  "--tally", str(committed), "--format", "json"])
     doc = json.loads(capsys.readouterr().out)
     assert code == 0 and doc["least_margin_proposed"] >= doc["least_margin_tallied"]
+
+
+@pytest.mark.parametrize("seed", range(20))
+def test_fewest_moves_keeps_the_threshold(seed):
+    # Whatever it keeps, the order it returns never exceeds the threshold
+    # (checked against the pair utilizations by definition), and it is a
+    # permutation.
+    rng = np.random.default_rng(200 + seed)
+    n = int(rng.integers(2, 9))
+    args = [rng.uniform(0, 100, n), rng.uniform(0, 100, n),
+            rng.uniform(40, 300, n), rng.uniform(40, 300, n)]
+    best = pl.bottleneck_assignment(*args).max_utilization
+    order = pl.fewest_moves(*args, best * 1.05)
+    u = pl.pair_utilization(*args)
+    assert sorted(order.tolist()) == list(range(n))
+    assert max(u[s, order[s]] for s in range(n)) <= best * 1.05 * (1 + 1e-12)
+
+
+def test_one_weak_joint_swaps_with_one_other():
+    # Four slots, the tallied order fine but for one joint too weak in the
+    # deepest slot: a single swap fixes it, and nothing else moves
+    # (common practice, no source: a crew re-racks as few joints as it can).
+    sc = np.array([400.0, 300.0, 200.0, 100.0])
+    st = np.ones(4)
+    rc = np.array([350.0, 1000.0, 1000.0, 1000.0])
+    rt = np.full(4, 1e9)
+    order = pl.fewest_moves(sc, st, rc, rt, threshold=0.5)
+    assert int(np.count_nonzero(order != np.arange(4))) == 2
+    assert pl.fewest_moves(sc, st, np.full(4, 1000.0), rt, threshold=0.5).tolist() == [0, 1, 2, 3]
+
+
+def test_place_never_replaces_an_existing_file_unasked(tmp_path, capsys):
+    # Nothing the user wrote is overwritten without being asked (rule of the project).
+    plan, tally = _rack_plan(tmp_path)
+    out = tmp_path / "mine.tally.csv"
+    out.write_text("my notes, keep me\n")
+    code = main(["place", str(plan), "--rig", "th30", "--tally", str(tally), "-o", str(out)])
+    assert code == 2 and "--force" in capsys.readouterr().err
+    assert out.read_text() == "my notes, keep me\n"
+    assert main(["place", str(plan), "--rig", "th30", "--tally", str(tally), "-o", str(out),
+                 "--force"]) == 0
+    assert "run_order" in out.read_text()

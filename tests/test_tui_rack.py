@@ -42,3 +42,18 @@ async def test_rack_screen_shows_the_old_casing_and_the_order(tmp_path):
         await pilot.press("escape")
         await pilot.pause()
         assert app.screen.id != "rack-screen"
+
+
+async def test_rack_screen_on_a_job_without_old_casing_shows_no_empty_charts(tmp_path):
+    from rigplan.present.wording import CAUTION
+    for name in ("cv3-8in-a53b.toml", "cv3-8in-a53b.tally.csv"):
+        shutil.copy(ROOT / "strings" / name, tmp_path / name)
+    session = JobSession(tmp_path / "cv3-8in-a53b.toml", ROOT / "rigs" / "th30.toml")
+    app = RigplanApp(session)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await pilot.press("k")
+        await pilot.pause()
+        screen = app.screen
+        assert "not a liner job" in str(screen.query_one("#rack-liner").render())
+        assert not screen.query_one("#rack-charts").display
+        assert str(screen.query_one("#rack-caution").render()).startswith(CAUTION[:20])

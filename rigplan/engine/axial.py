@@ -246,11 +246,18 @@ def true_force_at(joints: JointArrays, hole: Hole, closure: Closure, fill_densit
     return _force(geo, _surfaces(geo, hole, fill_density, level), j, k)
 
 
+#: Rounding allowed on a fill level at the floor [m].
+FLOOR_TOLERANCE = 1e-9
+
+
 def _fill_levels(geo: StringGeometry, closure: Closure, fill_level) -> np.ndarray:
     n = len(geo.top)
     if closure.is_open or fill_level is None:
         return np.zeros(n)
     level = np.broadcast_to(np.asarray(fill_level, dtype=float), (n,)).copy()
+    # A level worked out as a difference of depths can come out a few units
+    # in the last place above the floor: that is the floor (1 nm tolerance).
+    level[(level < 0) & (level >= -FLOOR_TOLERANCE)] = 0.0
     if np.any(~np.isfinite(level)) or np.any(level < 0):
         raise ValueError("fill levels must be depths >= 0 below the floor [m]")
     return level

@@ -242,7 +242,43 @@ def interchangeable_groups(keys, movable) -> list[np.ndarray]:
     return [np.asarray(v, dtype=int) for v in groups.values() if len(v) > 1]
 
 
-def place_joints(groups, slot_collapse, slot_tension, joint_collapse, joint_tension) -> np.ndarray:
+def fewest_moves(slot_collapse, slot_tension, joint_collapse, joint_tension,
+                 threshold: float) -> np.ndarray | None:
+    """An order within ``threshold`` that leaves as many joints where they are as it can.
+
+    Joint ``i`` was tallied for slot ``i``; only joints whose own slot keeps
+    them within the threshold may stay.  Starting from every joint free,
+    each such joint in turn (the tightest fits first) is tried in its own
+    slot, and stays there when the joints still free can fill the slots
+    still open (:func:`feasible_order`, exact).  Every order returned keeps
+    the threshold; the set of joints left in place is maximal (no other one
+    could stay too), not proven maximum (that would be a weighted
+    assignment).  None when nothing meets the threshold.
+    """
+    n = len(slot_collapse)
+    sc, st = np.asarray(slot_collapse, float), np.asarray(slot_tension, float)
+    jc, jt = np.asarray(joint_collapse, float), np.asarray(joint_tension, float)
+    if feasible_order(sc, st, jc, jt, threshold) is None:
+        return None
+    u_own = _utilization_of(np.arange(n), sc, st, jc, jt)
+    widen = threshold * (1.0 + 8.0 * np.finfo(float).eps) if np.isfinite(threshold) else threshold
+    candidates = np.flatnonzero(u_own <= widen)
+    candidates = candidates[np.argsort(-u_own[candidates], kind="stable")]
+    free = np.ones(n, dtype=bool)
+    for i in candidates:
+        free[i] = False
+        rest = np.flatnonzero(free)
+        if rest.size and feasible_order(sc[rest], st[rest], jc[rest], jt[rest], threshold) is None:
+            free[i] = True
+    order = np.arange(n)
+    rest = np.flatnonzero(free)
+    if rest.size:
+        order[rest] = rest[feasible_order(sc[rest], st[rest], jc[rest], jt[rest], threshold)]
+    return order
+
+
+def place_joints(groups, slot_collapse, slot_tension, joint_collapse, joint_tension,
+                 enough: float = 0.0) -> np.ndarray:
     """The running order (a permutation of positions) that minimizes the largest utilization.
 
     Each group of interchangeable positions is solved on its own by
@@ -250,8 +286,12 @@ def place_joints(groups, slot_collapse, slot_tension, joint_collapse, joint_tens
     margin over the string is the least of the groups' optima and each is
     made as large as it can be.  ``slot_*`` are per position (the loads of
     the position, whichever joint runs there); ``joint_*`` are per joint as
-    tallied (index = tallied position).  Returns ``perm`` with ``perm[i]`` the
-    tallied index of the joint to run at position ``i``.
+    tallied (index = tallied position).  ``enough`` [-]: a utilization that
+    need not be bettered (another limit of the plan already governs at that
+    level), so no joint is moved to go below it.  Among the orders that
+    reach the target, :func:`fewest_moves` keeps as many joints where they
+    were tallied as it can.  Returns ``perm`` with ``perm[i]`` the tallied
+    index of the joint to run at position ``i``.
     """
     n = len(slot_collapse)
     perm = np.arange(n)
@@ -259,8 +299,14 @@ def place_joints(groups, slot_collapse, slot_tension, joint_collapse, joint_tens
     jc, jt = np.asarray(joint_collapse, float), np.asarray(joint_tension, float)
     for g in groups:
         a = bottleneck_assignment(sc[g], st[g], jc[g], jt[g])
-        if np.isfinite(a.max_utilization):
-            perm[g] = g[a.order]
+        if not np.isfinite(a.max_utilization):
+            continue
+        target = max(a.max_utilization, float(enough))
+        tallied = float(np.max(_utilization_of(np.arange(len(g)), sc[g], st[g], jc[g], jt[g])))
+        if tallied <= target:
+            continue                      # the tallied order already meets the target
+        order = fewest_moves(sc[g], st[g], jc[g], jt[g], target)
+        perm[g] = g[order if order is not None else a.order]
     return perm
 
 
@@ -299,6 +345,7 @@ class PlacementResult:
         governing margins (hoisting capacity included) [-]
     movable : how many positions could take another joint
     moved : how many positions get another joint than tallied
+    governing_tallied, governing_proposed : the governing ``Limit`` of each plan
     """
 
     perm: np.ndarray
@@ -309,6 +356,8 @@ class PlacementResult:
     governing_margin_proposed: float
     movable: int
     moved: int
+    governing_tallied: object = None
+    governing_proposed: object = None
 
 
 def _least_pipe_margin(plan) -> float:
@@ -319,6 +368,17 @@ def _least_pipe_margin(plan) -> float:
 
 def _governing_margin(plan) -> float:
     return float(plan.governing.margin) if plan.governing is not None else float("nan")
+
+
+#: The limits the order of the joints changes (each joint's own ratings).
+PIPE_LIMITS = ("connection tension", "collapse")
+
+
+def _other_limits_margin(plan) -> float:
+    """The least margin of the plan's limits that the order does not change [-]."""
+    other = [lim.margin for lim in plan.chosen.limits if str(lim.name) not in PIPE_LIMITS
+             and np.isfinite(lim.margin)]
+    return float(min(other)) if other else float("inf")
 
 
 def best_running_order(specs, plan_for, closure=None, iterations: int = 3) -> PlacementResult:
@@ -342,7 +402,10 @@ def best_running_order(specs, plan_for, closure=None, iterations: int = 3) -> Pl
     -----
     Each round solves :func:`place_joints` exactly for the slot loads of the
     current order (the bottleneck assignment); the margins reported are
-    those of the complete plan of each order.
+    those of the complete plan of each order.  Joints move only as far as
+    the whole run gains: once another limit (hoisting, screen buckling ...)
+    governs, a better pipe margin changes nothing, and the fewest joints are
+    moved that reach the best least margin of the run.
     """
     specs = list(specs)
     n = len(specs)
@@ -363,18 +426,22 @@ def best_running_order(specs, plan_for, closure=None, iterations: int = 3) -> Pl
             rt = np.fmin(joints.connection_rating, joints.body_rating)
             rt = np.where(np.isnan(joints.connection_rating) | np.isnan(joints.body_rating),
                           np.nan, rt)
+            enough = max(0.0, 1.0 - _other_limits_margin(plan))
             step = place_joints(groups, d.collapse * np.maximum(loads.collapse_max, 0.0),
-                                d.tension * np.maximum(loads.envelope_max, 0.0), rc, rt)
+                                d.tension * np.maximum(loads.envelope_max, 0.0), rc, rt,
+                                enough=enough)
             if np.array_equal(step, np.arange(n)):
                 break
             perm = perm[step]
             plan = plan_for([specs[i] for i in perm])
             val = (_least_pipe_margin(plan), _governing_margin(plan))
-            if val[0] > best_val[0] + 1e-12:
+            if (min(val[0], _other_limits_margin(plan)) >
+                    min(best_val[0], _other_limits_margin(best_plan)) + 1e-12):
                 best_perm, best_val, best_plan = perm.copy(), val, plan
     return PlacementResult(
         perm=best_perm, labels=tuple(specs[i].label for i in best_perm),
         least_margin_tallied=base[0], least_margin_proposed=best_val[0],
         governing_margin_tallied=base[1], governing_margin_proposed=best_val[1],
         movable=int(sum(len(g) for g in groups)),
-        moved=int(np.count_nonzero(best_perm != np.arange(n))))
+        moved=int(np.count_nonzero(best_perm != np.arange(n))),
+        governing_tallied=tallied.governing, governing_proposed=best_plan.governing)

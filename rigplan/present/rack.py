@@ -42,12 +42,24 @@ def placement_dict(result, tallied_labels) -> dict:
         "governing_margin_proposed": _f(result.governing_margin_proposed),
         "order": list(result.labels),
         "tallied_order": list(tallied_labels),
+        "governing_tallied": None if result.governing_tallied is None
+        else str(result.governing_tallied.name),
+        "governing_proposed": None if result.governing_proposed is None
+        else str(result.governing_proposed.name),
         "movable_positions": result.movable,
         "moved": result.moved,
         "margin_basis": "least of the tension and collapse margins 1 - DF x load / rating over "
                         "every joint and running step",
-        "method": "bottleneck assignment, exact threshold search with a greedy dominance test",
+        "method": "bottleneck assignment, exact threshold search with a greedy dominance test; "
+                  "joints moved only as far as the whole run gains, fewest moves kept",
     }
+
+
+def _limit_words(limit) -> str:
+    if limit is None:
+        return ""
+    where = limit.label or (f"step {limit.step}" if limit.step else "")
+    return f" ({limit.name}{' at ' + where if where else ''})"
 
 
 def placement_lines(result, tallied_labels, system: str) -> list:
@@ -56,10 +68,12 @@ def placement_lines(result, tallied_labels, system: str) -> list:
         f"Least pipe margin (tension and collapse, design factors applied): "
         f"tallied order {_pct(result.least_margin_tallied)}, "
         f"proposed order {_pct(result.least_margin_proposed)}",
-        f"Governing margin of the plan (hoisting included): tallied "
-        f"{_pct(result.governing_margin_tallied)}, proposed {_pct(result.governing_margin_proposed)}",
+        f"Least margin of the whole run: tallied {_pct(result.governing_margin_tallied)}"
+        f"{_limit_words(result.governing_tallied)}, proposed "
+        f"{_pct(result.governing_margin_proposed)}{_limit_words(result.governing_proposed)}",
         f"{result.movable} positions take interchangeable blank joints; {result.moved} "
-        "change. Shoe, float equipment, screens and other kinds stay where planned.",
+        "change. Shoe, float equipment, screens and other kinds stay where planned. Joints "
+        "move only as far as the whole run gains, and as few as can.",
     ]
     if result.moved == 0:
         lines.append("The tallied order is already the best order.")

@@ -44,6 +44,8 @@ class RackScreen(Screen):
                 yield PlotWidget(id="rack-chart-e")
                 yield PlotWidget(id="rack-chart-c")
             yield DataTable(id="rack-profile", zebra_stripes=True, cursor_type="row")
+        from rigplan.present.wording import CAUTION
+        yield Static(CAUTION, id="rack-caution", markup=False)
         yield Footer()
 
     def on_mount(self) -> None:
@@ -72,12 +74,15 @@ class RackScreen(Screen):
             spec = read_existing_casing(s.plan_path)
             if spec is None:
                 liner.update("This plan has no [existing_casing] table: not a liner job.")
+                self._show_liner(False)
                 return
             self.liner = liner_job(s.plan_path, s.plan, s.landing)
         except InputError as exc:
             liner.update(f"Old casing: {exc}")
+            self._show_liner(False)
             return
-        liner.update("\n".join(R.liner_lines(self.liner, system)))
+        self._show_liner(True)
+        liner.update("\n".join(R.liner_lines(self.liner, system) + [R.CAUTION_OLD_CASING]))
         self._charts(system)
         table = self.query_one("#rack-profile", DataTable)
         table.clear(columns=True)
@@ -85,6 +90,11 @@ class RackScreen(Screen):
                           "clearance")
         for row in R.liner_profile_rows(self.liner, system):
             table.add_row(*row)
+
+    def _show_liner(self, shown: bool) -> None:
+        """Charts and the profile table only for a liner job (no empty axes)."""
+        self.query_one("#rack-charts").display = shown
+        self.query_one("#rack-profile").display = shown
 
     def _charts(self, system: str) -> None:
         from textual_plot import HiResMode, PlotWidget
