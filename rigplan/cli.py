@@ -47,8 +47,9 @@ def _parser() -> argparse.ArgumentParser:
                             help="rig capacity profile (rigs/*.toml, or a bundled rig's name)")
         sp.add_argument("--path", default=None,
                         help="hoisting path to use (default: the one with most capacity)")
-        sp.add_argument("--units", choices=("us", "si"), default="us",
-                        help="display units: US field or SI (default us)")
+        sp.add_argument("--units", choices=("us", "si"), default=None,
+                        help="display units: US field or SI (default: the plan file's "
+                             "units, and with them the paper: Letter for us, A4 for si)")
         sp.add_argument("--both-units", action="store_true",
                         help="show every quantity in the other unit system too, in parentheses")
         sp.add_argument("--materials", default=None,
@@ -117,11 +118,41 @@ def _load(args):
     base = plan
     plan = apply_run_state(base, state, str(log_path_for(job.plan_path))
                            if state is not None else "")
-    extra = [w for w in length_warnings(plan) if w not in job.warnings]
+    from rigplan.files.job import tally_row_sources
+    sources = {}
+    for tally in (job.tally_path, getattr(args, "tally", None)):
+        if tally:
+            sources.update(tally_row_sources(tally))
+    extra = [w for w in length_warnings(plan, sources) if w not in job.warnings]
+    if plan is not job.plan:
+        # a tally or the run log moved joints: where the screens land now
+        from rigplan.files.job import screen_depth_warnings
+        moved_by = (log_path_for(job.plan_path) if state is not None
+                    else getattr(args, "tally", None) or "")
+        extra += screen_depth_warnings(job.plan, plan, str(moved_by))
     job = dataclasses.replace(job, plan=plan, warnings=tuple(job.warnings) + tuple(extra))
     # the plan as run: the kind of run and the fill already in the pipe are facts
     landing = plan_as_run(base, job.rig, state, job.path_name)
     return job, landing
+
+
+def _default_units(args) -> None:
+    """``--units`` not given: the plan file's own unit system (``units``,
+    ``"si"`` when the file leaves it out); a plan that cannot be read is
+    refused later by the command itself, in one line."""
+    if not hasattr(args, "units") or args.units is not None:
+        return
+    args.units = "us"
+    plan = getattr(args, "plan", None)
+    if not plan:
+        return
+    try:
+        from rigplan.files.formats import read_toml
+        found = read_toml(plan).get("units", "si")
+    except (InputError, OSError, ValueError):
+        return
+    if found in ("us", "si"):
+        args.units = found
 
 
 def _system(args) -> str:
@@ -228,17 +259,22 @@ def cmd_check_rigs(args) -> int:
              "hook_limit": c.hook_limit if c.hook_limit == c.hook_limit else None,
              "chosen": c.chosen} for c in choices],
             "units": "SI base units: N; margins are fractions"}
+        from rigplan.present.wording import CAUTION
+        doc["cautions"] = [CAUTION]
         doc["exit_code"] = EXIT_LANDS if any(c.lands for c in choices) else EXIT_LIMIT
         json.dump(doc, sys.stdout, indent=1, allow_nan=False)
         sys.stdout.write("\n")
     else:
+        from rich.markup import escape
         from rich.table import Table
         t = rig_choice_table(choices, _system(args), mark="* lands with the largest margin")
-        rt = Table(title=f"{job.plan.name}: {t.title.lower()}", caption=t.note or None)
+        rt = Table(title=escape(f"{job.plan.name}: {t.title.lower()}"),
+                   caption=escape(t.note) if t.note else None)
+        # escaped: a unit in brackets ("string limit [lbf]") is not rich markup
         for col, a in zip(t.columns, t.align):
-            rt.add_column(col, justify="right" if a == "r" else "left")
+            rt.add_column(escape(col), justify="right" if a == "r" else "left")
         for row in t.rows:
-            rt.add_row(*row)
+            rt.add_row(*(escape(str(c)) for c in row))
         console = _console()
         console.print(rt)
         from rigplan import CAUTION
@@ -458,6 +494,7 @@ def main(argv=None) -> int:
 
 def _run(args) -> int:
     try:
+        _default_units(args)
         if args.command is None:
             from rigplan.files.job import demo_paths
             plan, rig = demo_paths()

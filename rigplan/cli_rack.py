@@ -62,6 +62,7 @@ def cmd_place(args, load) -> int:
     from rigplan.files.formats.tally import write_tally
     from rigplan.files.linerjob import placed_tally_rows, running_order_for
     from rigplan.present.rack import placement_dict, placement_lines
+    from rigplan.present.wording import CAUTION
     if not args.tally and not _plan_names_tally(args.plan):
         raise InputError(f"{args.plan}: --tally", "placement needs the rack's tally (measured "
                                                   "walls and roundness): give --tally FILE")
@@ -80,11 +81,13 @@ def cmd_place(args, load) -> int:
         try:
             write_tally(rows, out, args.units,
                         comment=f"Running order proposed by rigplan place for {plan.name}: "
-                                "joint 1 (bottom) first.\nrun_order gives each joint's position.")
+                                "joint 1 (bottom) first.\nrun_order gives each joint's position."
+                                f"\nCAUTION: {CAUTION}")
         except OSError as err:
             raise InputError(f"{out}", f"cannot write the tally ({err.strerror or err})") from None
     if args.format == "json":
         doc = placement_dict(result, tallied)
+        doc["cautions"] = [CAUTION]
         if args.output:
             doc["tally_written"] = str(args.output)
         json.dump(doc, sys.stdout, allow_nan=False)
@@ -94,6 +97,7 @@ def cmd_place(args, load) -> int:
             print(line)
         if args.output:
             print(f"wrote {args.output} (use it with --tally, or t in the app)")
+        print(f"CAUTION: {CAUTION}")
     return 0 if result.least_margin_proposed >= 0 else 1
 
 

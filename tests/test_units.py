@@ -74,7 +74,14 @@ NOTATIONS = [
     ("18 tonne-force", "force", None, 18000 * KGF),
     ("40 kip", "force", None, 40000 * POUND_FORCE),
     # a mass for a force: its weight under standard gravity (common practice, no source)
-    ("20 t", "force", None, 20000 * G_N),
+    ("20 tonne", "force", None, 20000 * G_N),
+    # NIST SP 811 (2008) B.8: ton, metric = 1000 kg (exact); ton, short = 2000 lb
+    # (exact, 907.1847 kg); ton-force (2000 lbf) = 8.896443 kN
+    ("20 tonnes", "force", None, 20000 * G_N),
+    ("20 US ton", "force", None, 20 * 2000 * POUND_FORCE),
+    ("20 short ton", "force", None, 20 * 2000 * POUND_FORCE),
+    ("20 short tons", "force", None, 20 * 2000 * POUND_FORCE),
+    ("20 U.S. tons", "force", None, 20 * 2000 * POUND_FORCE),
     ("40000 lb", "force", None, 40000 * POUND_FORCE),
     # lb/ft is a mass per length: times g for a weight per length
     ("36 lb/ft", "linear_weight", None, 36 * POUND * G_N / FOOT),
@@ -98,6 +105,36 @@ NOTATIONS = [
     ("20\u2032 6\u2033", "length", None, 20 * FOOT + 6 * INCH),
     ("20\u2019 6\u00bd\u201d", "length", None, 20 * FOOT + 6.5 * INCH),
 ]
+
+
+def test_short_ton_and_tonne_force_against_nist_printed_factors():
+    """NIST SP 811 (2008) B.8: ton-force (2000 lbf) -> 8.896443 kN;
+    kilogram-force -> 9.80665 N, so the tonne-force is 9.80665 kN."""
+    assert_allclose(units.parse("1 short ton", "force"), 8.896443e3, rtol=PRINTED)
+    assert_allclose(units.parse("1 tf", "force"), 9.80665e3, rtol=EXACT)
+    assert_allclose(units.parse("1 tonne", "force"), 9.80665e3, rtol=EXACT)
+
+
+@pytest.mark.parametrize("text", ["150 t", "150 ton", "150 tons", "150t", "1 t/m"])
+def test_bare_ton_is_refused_as_ambiguous(text):
+    """A bare t/ton is the tonne to some and the 2000 lb short ton to others
+    (10 % apart, NIST SP 811 B.8): refused in one line asking which."""
+    with pytest.raises(InputError) as err:
+        units.parse(text, "force", None, "rig.toml: path[1].tool[1].rating")
+    msg = str(err.value)
+    assert "\n" not in msg and "rig.toml: path[1].tool[1].rating" in msg
+    assert "ambiguous" in msg and "tonne" in msg and "short ton" in msg
+
+
+@pytest.mark.parametrize("text", ["20 ft 13 in", "20' 12\"", "20 ft 12-1/2 in"])
+def test_feet_and_inches_refuse_twelve_inches_or_more(text):
+    """Feet-and-inches: the inches are below 12 (12 in = 1 ft, NIST SP 811
+    B.8); 13 in is a slip, refused in one line naming the field."""
+    with pytest.raises(InputError) as err:
+        units.parse(text, "length", "ft", "job.tally.csv: row 3, length")
+    assert "job.tally.csv: row 3, length" in str(err.value) and "under 12" in str(err.value)
+    assert_allclose(units.parse("20 ft 11-7/8 in", "length"), 20 * FOOT + 11.875 * INCH,
+                    rtol=EXACT)
 
 
 @pytest.mark.parametrize("text, kind, default, expected", NOTATIONS)

@@ -111,9 +111,17 @@ class JobCode(enum.StrEnum):
     #: the string as measured is longer than the hole: quantities
     #: ``string_length`` and ``hole_depth``; context ``source``
     LONGER_THAN_HOLE = "job.longer_than_hole"
+<<<<<<< HEAD
     #: the string as measured is as long as the hole (within the tolerance
     #: ``tolerance``): the shoe lands on bottom; same quantities
     AT_HOLE_BOTTOM = "job.at_hole_bottom"
+=======
+    #: a screen interval lands farther from its planned depth than the plan's
+    #: tolerance (measured lengths, joints set aside): context ``labels``
+    #: (its joints), ``source``; quantities ``shift`` (+ deeper, nan: every
+    #: joint of it set aside) and ``tolerance``
+    SCREEN_OFF_PLAN = "job.screen_off_plan"
+>>>>>>> main
 
 
 @dataclass
@@ -255,18 +263,29 @@ def _changed(spec: JointSpec, measured_length=None, rejected=None) -> JointSpec:
 LENGTH_WARNING = (0.75, 1.25)
 
 
-def length_warnings(plan: StringPlan) -> list[Finding]:
+def tally_row_sources(path) -> dict:
+    """``{label: "tally.csv: row N"}`` for the joints a tally CSV gives a
+    measured length: where a length warning points the reader."""
+    from rigplan.files.formats.tally import read_tally
+    return {r.label: f"{path}: row {r.row}" for r in read_tally(path)
+            if r.measured_length is not None}
+
+
+def length_warnings(plan: StringPlan, sources: dict | None = None) -> list[Finding]:
     """Warnings on measured lengths far from the planned ones (a typing slip
-    such as 2006 for 20.06) and on a string longer than the hole."""
+    such as 2006 for 20.06) and on a string longer than the hole.
+    ``sources``: where each joint's measured length was read (label -> file
+    and row, :func:`tally_row_sources`); the plan file otherwise."""
     out = []
     src = plan.source or plan.name
+    sources = sources or {}
     for j in plan.running_joints():
         if j.measured_length is not None and not (
                 LENGTH_WARNING[0] * j.length <= j.measured_length <= LENGTH_WARNING[1] * j.length):
             out.append(Finding(JobCode.MEASURED_FAR_FROM_PLAN, Severity.WARNING, label=j.label,
                                quantities={"measured": (j.measured_length, Kind.LENGTH),
                                            "planned": (j.length, Kind.LENGTH)},
-                               context={"source": src}))
+                               context={"source": sources.get(j.label, src)}))
     total = sum(j.run_length for j in plan.running_joints())
     depth = plan.hole.depth
     from rigplan.engine.planner import HOLE_DEPTH_TOLERANCE as tol
@@ -278,6 +297,30 @@ def length_warnings(plan: StringPlan) -> list[Finding]:
     elif depth == depth and total >= depth - tol:
         out.append(Finding(JobCode.AT_HOLE_BOTTOM, Severity.WARNING, quantities=lengths,
                            context={"source": src}))
+    return out
+
+
+def screen_depth_warnings(planned: StringPlan, run: StringPlan, source: str = "") -> list:
+    """Warnings for each screen interval of ``planned`` that lands, in
+    ``run`` (measured lengths, joints set aside), farther from its planned
+    depth than the plan's ``screen_depth_tolerance``
+    (:func:`rigplan.engine.landing.landing_picture`, the app's landing pane)."""
+    from rigplan.engine.landing import landing_picture
+    p, r = planned.running_joints(), run.running_joints()
+    picture = landing_picture(
+        [j.label for j in p], [j.length for j in p], [j.kind == "screen" for j in p],
+        planned.closure.valve_joint, [j.label for j in r], [j.run_length for j in r],
+        run.closure.valve_joint, planned.hole.depth, planned.settings.screen_depth_tolerance)
+    out = []
+    for row in picture.moved:
+        shift = row.shift
+        if shift == shift and abs(shift) <= picture.tolerance:
+            shift = row.top - row.planned_top         # the top moved
+        out.append(Finding(JobCode.SCREEN_OFF_PLAN, Severity.WARNING,
+                           quantities={"shift": (shift, Kind.LENGTH),
+                                       "tolerance": (picture.tolerance, Kind.LENGTH)},
+                           context={"labels": tuple(row.labels),
+                                    "source": source or run.source or run.name}))
     return out
 
 

@@ -127,6 +127,10 @@ class Range:
             got_text = f"a {len(str(abs(got)))}-digit number"
         else:
             got_text = repr(got)
+            if (system in units.SYSTEMS and self.kind not in ("count", "dimensionless")
+                    and isinstance(got, (int, float)) and not isinstance(got, bool)):
+                # a bare number in a file: read in the file's units, so say which
+                got_text += f" {units.unit_label(self.kind, system)} (a bare number is in the file's units)"
         raise InputError(where, f"expected {self.expected(system)}, got {got_text}")
 
 

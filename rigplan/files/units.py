@@ -14,6 +14,10 @@ the trade's units defined on top of pint's own:
 * ``SG`` (relative density) = 999.972 kg/m^3, the density of pure water at
   its maximum density (about 4 degC), so 1.20 SG = 1199.97 kg/m^3;
 * ``tf`` / ``tonne_force`` / ``tonne-force`` = 1000 kg x standard gravity;
+  ``tonne`` (a mass) weighs the same; ``US ton`` / ``short ton`` = 2000 lb
+  (its weight, 2000 lbf); a bare ``t``, ``ton`` or ``tons`` is refused as
+  ambiguous (the tonne and the short ton differ by 10 %);
+* feet and inches take inches below 12 (``20 ft 13 in`` is refused as a slip);
 * ``lbf``, ``psi``, ``ksi``, ``kip``, ``kN``, ``daN``, ``ft``, ``in`` are
   pint's.
 
@@ -21,7 +25,7 @@ Notations pint reads wrongly are handled here first: pipe fractions
 (``9-5/8 in``, ``13 3/8 in``, ``5/8 in``), feet and inches (``20 ft 6 in``,
 ``20' 6"``, ``20'6"``, ``6"``, ``20'``), and commas, which are always refused
 (``1,5`` is never read as 15, ``1,200`` never as 1.2 or 1200).  A bare number
-takes the field's default unit.  A mass where a force is expected (``20 t``,
+takes the field's default unit.  A mass where a force is expected (``20 tonne``,
 ``40000 lb``) and a mass per length where a weight per length is expected
 (``36 lb/ft``) are taken as their weight under standard gravity, as the trade
 writes them.
@@ -180,6 +184,7 @@ _UNIT_REWRITES = (
     (re.compile(r"\busgal\b"), "gallon"),
     (re.compile(r"\bgals\b"), "gallon"),
     (re.compile(r"\btonnes?[-_ ]force\b"), "tonne_force"),
+    (re.compile(r"(?i)(?:\bU\.S\.|\bUS|\bshort)[-_ ]?tons?\b"), "short_ton"),
     (re.compile(r"\bpcf\b"), "(lb/ft**3)"),
     (re.compile(r"\bkg/l\b"), "kg/L"),
     (re.compile(r"\u00b3"), "**3"),
@@ -336,9 +341,21 @@ def _convert(value: float, unit_text: str, kind: str, where: str, shown: str) ->
     return result
 
 
+#: A bare "t", "ton" or "tons": the tonne (1,000 kg) to some, the US short
+#: ton (2,000 lb) to others, 10 % apart; refused so that neither is guessed.
+_RE_AMBIGUOUS_TON = re.compile(r"(?<![\w.])(?:t|tons?)(?![\w.])")
+
+AMBIGUOUS_TON = ("write 'tonne' (or 'tf': metric, 1,000 kgf) or 'US ton' / 'short ton' "
+                 "(2,000 lbf)")
+
+
 def _convert_unchecked(value: float, unit_text: str, kind: str, where: str, shown: str) -> float:
     if unit_text == "" and kind == "dimensionless":
         return value
+    found = _RE_AMBIGUOUS_TON.search(_normalize_unit_text(unit_text))
+    if found:
+        raise InputError(where, f"{found.group(0)!r} in {_shorten(shown)!r} is ambiguous: "
+                                + AMBIGUOUS_TON)
     try:
         factor, dims = _unit_to_si(unit_text)
     except KeyError:
@@ -433,6 +450,16 @@ def parse(value, kind: str, default_unit: str | None = None, where: str = "") ->
     if m:
         raise InputError(where, f"mark the inches in {_shorten(text)!r}: write "
                                 f"'{m.group('ft')} ft {m.group('inch')} in'")
+    m = _RE_FEET_INCHES.match(text)
+    if m:
+        try:
+            inches = _inch_amount(m.group("inch"))
+        except (ZeroDivisionError, ValueError):
+            inches = 0.0
+        if inches >= 12:
+            raise InputError(where, f"{m.group('inch')} inches in {_shorten(text)!r}: expected "
+                                    "a feet-and-inches length with inches from 0 to under 12 "
+                                    "(e.g. '20 ft 1-3/8 in')")
     try:
         split = _split_number_unit(text)
     except ZeroDivisionError:

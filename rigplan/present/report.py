@@ -387,15 +387,15 @@ LONG_TABLE = 60
 
 def _table_rows(n: int, all_steps, most_loaded) -> list:
     """Row indices of a per-step or per-joint table, ``None`` where rows are
-    left out.  ``all_steps``: True every row; False the first and last 10;
-    None every row up to :data:`LONG_TABLE`, else the first and last 20 and
-    the 10 most loaded (``most_loaded``: indices, most loaded first)."""
+    left out.  ``all_steps``: True every row; False the first and last 10
+    and the most loaded; None every row up to :data:`LONG_TABLE`, else the
+    first and last 20 and the 10 most loaded (``most_loaded``: indices, most
+    loaded first)."""
     if all_steps or n <= (20 if all_steps is False else LONG_TABLE):
         return list(range(n))
     edge = 10 if all_steps is False else 20
     keep = set(range(edge)) | set(range(n - edge, n))
-    if all_steps is None:
-        keep |= {int(i) for i in most_loaded[:10]}
+    keep |= {int(i) for i in most_loaded[:10 if all_steps is None else 1]}
     rows, last = [], -1
     for i in sorted(keep):
         if i > last + 1:
@@ -408,7 +408,8 @@ def _table_rows(n: int, all_steps, most_loaded) -> list:
 def _gap_row(table, all_steps, columns: int) -> tuple:
     """The row that stands for rows left out; says so under the table."""
     note = ("long table: the first and last 20 rows and the 10 most loaded shown; "
-            "--full shows every row" if all_steps is None else "first and last 10 rows shown")
+            "--full shows every row" if all_steps is None
+            else "--brief: the first and last 10 rows and the most loaded shown")
     if note not in (table.caption or ""):
         table.caption = note if not table.caption else f"{table.caption}\n{note}"
     return ("...",) * columns
@@ -493,7 +494,9 @@ def text_renderables(landing, plan=None, system: str = "us", warnings=(), rig_na
         head.append("\n" + W.set_down_text(landing, system))
     out.append(Panel(head, title="rigplan", expand=False))
 
-    out.append(chain_table(cap, system))
+    brief = all_steps is False
+    if not brief:          # --brief: the panel's path line gives the limits
+        out.append(chain_table(cap, system))
     for _, r in W.finding_lines(landing.reasons, system, landing.unrated):
         out.append(Text(f"  - {r}"))
     for code, r in W.finding_lines(landing.notes, system):
@@ -619,8 +622,19 @@ def text_renderables(landing, plan=None, system: str = "us", warnings=(), rig_na
               "rated on", "collapse", "burst"):
         jt.add_column(c, justify="right")
     worst = np.fmax(np.fmax(tu, chk.collapse_utilization), chk.burst_utilization)
-    for i in _table_rows(n, all_steps, np.argsort(-np.nan_to_num(worst, nan=-np.inf),
-                                                   kind="stable")):
+    by_load = np.argsort(-np.nan_to_num(worst, nan=-np.inf), kind="stable")
+    if brief:
+        # --brief: the governing joint only (the most utilized one)
+        gov = landing.governing
+        on_joint = gov is not None and gov.joint and 0 < gov.joint <= n
+        joint_rows = [gov.joint - 1 if on_joint else int(by_load[0])]
+        jt.title = (("Governing joint" if on_joint else "Most utilized joint")
+                    + ": tension, collapse and burst utilization (design factors applied)")
+        jt.caption = (jt.caption + "\n--brief: the governing joint only; leave out "
+                      "--brief for every joint")
+    else:
+        joint_rows = _table_rows(n, all_steps, by_load)
+    for i in joint_rows:
         if i is None:
             jt.add_row(*_gap_row(jt, all_steps, 8))
             continue

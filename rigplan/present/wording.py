@@ -392,6 +392,13 @@ _WORDS = {
     JobCode.MEASURED_FAR_FROM_PLAN: lambda f, s: (
         f"{f.get('source')}: {f.label}: measured {_q(f, 'measured', s)} against "
         f"{_q(f, 'planned', s)} planned: check the tally"),
+    JobCode.SCREEN_OFF_PLAN: lambda f, s: (
+        f"{f.get('source')}: screen "
+        f"{f.get('labels') if isinstance(f.get('labels'), str) else _span(f.get('labels'))} "
+        + (f"lands {_signed(f.value('shift'), s)} from its planned depth, more than the "
+           f"{_q(f, 'tolerance', s)} the plan allows"
+           if f.value('shift') == f.value('shift') else "is set aside entirely")
+        + ": check the tally and the screen placement before going on"),
     JobCode.LONGER_THAN_HOLE: lambda f, s: (
         f"{f.get('source')}: the string as measured ({_q(f, 'string_length', s)}) is longer "
         f"than the hole ({_q(f, 'hole_depth', s)}) by more than {_q(f, 'tolerance', s, 3)}"),

@@ -308,6 +308,19 @@ def _material_key(t: Table, key: str = "material") -> str:
                                        "(add others with a materials file)") from None
 
 
+#: Smallest od of a casing or screen taken as plausible [m] (1 in): a 3/4 in
+#: pipe is 1.05 in OD (common practice, no source); a smaller od beside a wall
+#: of half of it or more is taken as the od's unit slip (10.75 for 10.75 in).
+SMALLEST_OD = 0.0254
+
+
+def _shown(value: float, kind: str, system: str) -> str:
+    """An SI value for a message, in the file's units, 4 significant digits."""
+    from rigplan.files import units
+    return (f"{units.to_display(value, kind, system):.4g} "
+            f"{units.unit_label(kind, system)}")
+
+
 def _joint_fields(t: Table) -> dict:
     """The keys a section and a joint share, checked, as JointSpec fields."""
     out = {
@@ -318,8 +331,16 @@ def _joint_fields(t: Table) -> dict:
     od = t.quantity("od", "diameter", required=True, positive=True, limits="diameter")
     wall = t.quantity("wall", "diameter", required=True, positive=True, limits="wall")
     if wall >= od / 2.0:
-        raise InputError(t.where("wall"), f"wall {t.raw('wall')!r} is not less than half the od "
-                                          f"{t.raw('od')!r}: expected a wall thickness < od/2")
+        od_text, wall_text = _shown(od, "diameter", t.system), _shown(wall, "diameter", t.system)
+        if od < SMALLEST_OD:
+            raise InputError(t.where("od"), f"od {od_text} is implausibly small (not twice the "
+                                            f"wall {wall_text}): expected an od between "
+                                            f"{_shown(SMALLEST_OD, 'diameter', t.system)} and "
+                                            f"{_shown(ranges.RANGES['diameter'].hi, 'diameter', t.system)}"
+                                            " (a bare number is in the file's units)")
+        raise InputError(t.where("wall"), f"wall {wall_text} is not less than half the od "
+                                          f"{od_text}: expected a wall thickness less than "
+                                          f"{_shown(od / 2.0, 'diameter', t.system)}")
     out["od"], out["wall"] = od, wall
     for key, attr, kind, may_be_unrated in _OPTIONAL_QUANTITIES:
         value = t.quantity(key, kind, default=None, allow_unrated=may_be_unrated, positive=True)
@@ -594,8 +615,10 @@ def plan_from_data(data: dict, source: str, base_dir=Path("."), default_name: st
         temperature=_temperature(ht, "temperature", Hole.temperature, difference=False),
     )
     if not math.isnan(hole.depth) and hole.fluid_level > hole.depth:
-        raise InputError(ht.where("fluid_level"), f"fluid level {ht.raw('fluid_level')!r} is below the "
-                                                  f"bottom of the hole {ht.raw('depth')!r}")
+        raise InputError(ht.where("fluid_level"),
+                         f"fluid level {_shown(hole.fluid_level, 'length', ht.system)} is below "
+                         f"the bottom of the hole ({_shown(hole.depth, 'length', ht.system)}): "
+                         "expected a depth to the fluid from 0 to the hole depth")
 
     # string
     if "section" in top and "joint" in top:

@@ -265,16 +265,21 @@ def rig_choice_table(choices, system: str, title: str = "Which rig can land the 
 
 
 def _basis(lp, i: int, spec) -> str:
+    """What joint ``i``'s ratings rest on, as the engine rated it (collapse
+    method; the wall or figure of collapse, burst and tension)."""
     j = lp.joints
     method = j.collapse_method[i] if j.collapse_method else ""
     words = {"api_5c3": "API TR 5C3", "timoshenko": "Timoshenko (ellipticity)",
              "thermoplastic": "elastic by SDR", "entered": "maker's figure",
              "unrated": "unrated"}.get(method, method.replace("_", " "))
-    if spec is not None and spec.measured_wall is not None:
-        wall = "measured wall"
-    else:
-        wall = "minimum wall"
-    return f"collapse: {words}; {wall}"
+
+    def pick(basis):
+        return str(basis[i]) if basis and i < len(basis) else "unrated"
+    cb, bb, tb = pick(j.collapse_basis), pick(j.burst_basis), pick(j.tension_basis)
+    if cb == bb == tb:
+        return f"collapse: {words}; all three: {cb}"
+    collapse = words if cb in ("maker's figure", "unrated") else f"{words}, {cb}"
+    return f"collapse: {collapse}; burst: {bb}; tension: {tb}"
 
 
 def _makeup_groups(specs):
@@ -325,10 +330,12 @@ def _inputs(ctx: Context) -> Section:
          ctx.head("tension rating", "force"), ctx.head("collapse rating", "pressure"),
          ctx.head("burst rating", "pressure"), "rating basis"),
         tuple(rows), "lrllrrrrlrrrl", (1.6, 1.0, 1.6, 1.9, 1.7, 1.6, 1.8, 1.8, 2.6, 2.2, 2.2, 2.0, 4.2),
-        note="Tension rating: the smaller of the connection and the pipe body. Ratings are on "
-             "the minimum wall (specified wall less the standard's under-tolerance) unless a "
-             "measured wall is given; API-grade figures therefore sit below the API tables, "
-             "which use the specified wall. 'n/a' means unrated: no rating is ever assumed.",
+        note="Tension rating: the smaller of the connection and the pipe body. Each rating "
+             "follows its own standard's convention, and the last column gives its basis: "
+             "API grades on the specified wall (the API TR 5C3 formulas carry the wall "
+             "tolerance, so the figures match the API tables); other steel on the minimum "
+             "wall (the specified wall less the standard's under-tolerance); a measured wall "
+             "or a maker's figure where given. 'n/a' means unrated: no rating is ever assumed.",
         key="makeup"))
     c = plan.closure
     if c.is_open:
@@ -367,11 +374,18 @@ def _assumptions(ctx: Context) -> Table:
          "effective tension and the neutral point",
          "Lubinski (1951); Bourgoyne et al., Applied Drilling Engineering (1986)"),
         ("Statics only: no drag, surge, acceleration or hole friction", "model limit"),
-        ("Buckling is not checked (effective tension and the neutral point are reported)",
-         "model limit"),
+        ("Buckling below the neutral point is checked with the set-down weight when "
+         "landed: sinusoidal onset "
+         "1.94 (E I w^2)^(1/3), helical onset 5.55 (E I w^2)^(1/3), helix bending stress "
+         "added to the axial stress against yield; screens in compression against their "
+         "critical load. Vertical hole of the bit diameter, no friction",
+         "Lubinski (1950); Lubinski, Althouse and Logan (1962); Wu and Juvkam-Wold "
+         "(1993, from memory)"),
         ("Screens and slotted pipe are open to the hole: a valve below them floats nothing",
          "model limit"),
-        ("Burst by Barlow on the minimum wall", "Barlow; API TR 5C3"),
+        ("Burst: API grades by internal yield 0.875 x 2 Y t / D on the specified wall; "
+         "other steel by Barlow 2 Y t / D on the minimum wall (or the measured wall)",
+         "API TR 5C3; Barlow"),
         ("Block efficiency of the reeving", "API RP 9B form; ADE Table 1.2"),
         ("Hole fluid density and level, fill fluid, float equipment, design factors",
          src_plan),

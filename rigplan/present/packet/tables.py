@@ -18,7 +18,8 @@ def render_csv(job, landing, system: str, info: ReportInfo, state=None) -> str:
     """One row per joint of the plan, in running order, set-aside joints
     included: the running schedule (shoe depth, fill level, action, hook
     load and its band, margin) and the tally (planned and measured lengths,
-    status, reason).  Units in the header."""
+    status, reason).  Units in the header; the caution in a last row that
+    starts with ``#``."""
     j = landing.joints
     chk = landing.chosen
     loads = chk.loads
@@ -72,6 +73,10 @@ def render_csv(job, landing, system: str, info: ReportInfo, state=None) -> str:
                     n(hi[k], "force", fd), n(landing.path.hook_limit, "force", fd),
                     f"{100 * chk.capacity_margin[k]:.1f} %"]
         w.writerow(row)
+    # the caution, as a last comment row (a "#" row is skipped by rigplan's
+    # CSV readers; a spreadsheet shows it under the schedule)
+    for line in W.cautions(landing):
+        w.writerow([f"# CAUTION: {line}"])
     return buf.getvalue()
 
 
