@@ -111,17 +111,14 @@ class JobCode(enum.StrEnum):
     #: the string as measured is longer than the hole: quantities
     #: ``string_length`` and ``hole_depth``; context ``source``
     LONGER_THAN_HOLE = "job.longer_than_hole"
-<<<<<<< HEAD
     #: the string as measured is as long as the hole (within the tolerance
     #: ``tolerance``): the shoe lands on bottom; same quantities
     AT_HOLE_BOTTOM = "job.at_hole_bottom"
-=======
     #: a screen interval lands farther from its planned depth than the plan's
     #: tolerance (measured lengths, joints set aside): context ``labels``
     #: (its joints), ``source``; quantities ``shift`` (+ deeper, nan: every
     #: joint of it set aside) and ``tolerance``
     SCREEN_OFF_PLAN = "job.screen_off_plan"
->>>>>>> main
 
 
 @dataclass
