@@ -144,7 +144,7 @@ def test_joint_by_joint_and_float_collar_by_label():
     fluid_density = "1150 kg/m3"
     [[joint]]
     label = "S1"
-    kind = "float_shoe"
+    kind = "shoe"
     material = "a53b"
     od = "406.4 mm"
     wall = "9.53 mm"
@@ -223,8 +223,9 @@ def test_grout_lighter_than_hole_fluid_is_a_warning():
 
 
 def test_other_warnings():
-    r = parse_plan(MINIMAL.replace('depth = "500 ft"', 'depth = "150 ft"\ndiameter = "8 in"')
-                   .replace('kind = "blank"', 'kind = "float_shoe"'), "t.toml")
+    r = parse_plan(MINIMAL.replace('depth = "500 ft"', 'depth = "15 ft"\ndiameter = "8 in"')
+                   .replace('kind = "blank"', 'kind = "float_shoe"')
+                   .replace("count = 10", "count = 1"), "t.toml")
     text = " | ".join(r.warnings)
     assert "longer than the hole" in text
     assert "not less than the hole diameter" in text

@@ -111,7 +111,10 @@ def _sample(code):
          "measured": (6.0, Kind.LENGTH), "planned": (12.0, Kind.LENGTH),
          "load": (1e5, Kind.FORCE), "capacity": (9e4, Kind.FORCE), "margin": (-0.1, Kind.RATIO),
          "set_down": (4e4, Kind.FORCE), "max_set_down": (3e4, Kind.FORCE),
-         "shift": (-5.0, Kind.LENGTH), "tolerance": (0.6, Kind.LENGTH)}
+         "shift": (-5.0, Kind.LENGTH), "tolerance": (0.6, Kind.LENGTH),
+         "empty_load": (5e4, Kind.FORCE),
+         "grout_top": (100.0, Kind.DEPTH), "screen_top": (150.0, Kind.DEPTH),
+         "screen_bottom": (160.0, Kind.DEPTH)}
     ctx = {"limit": "collapse", "valve_joint": 3, "planned": True, "count": 2, "part": "burst",
            "component": "mast", "path": "main", "empty_limit": "collapse",
            "full_limit": "hoisting capacity", "labels": "J4", "lifts": 10, "message": "m",

@@ -158,7 +158,9 @@ class Limit:
     or the 1-based ``joint`` (limits of one joint), with that joint's
     ``label``; a staged limit gives the split (stage 1 is joints 1..joint).
     ``load`` and ``capacity`` are SI values of ``kind``; both are nan when
-    the limit is a margin only (a staged setting).
+    the limit is a margin only (a staged setting).  ``first_step`` (with
+    ``first_label``) is the first running step at which a per-step limit is
+    exceeded, when it is (the step given is the worst one); None otherwise.
     """
 
     name: LimitName
@@ -169,6 +171,8 @@ class Limit:
     joint: int | None = None
     step: int | None = None
     label: str | None = None
+    first_step: int | None = None
+    first_label: str | None = None
 
     def __post_init__(self) -> None:
         object.__setattr__(self, "name", LimitName(self.name))

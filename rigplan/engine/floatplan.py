@@ -47,7 +47,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from rigplan.engine.axial import StringGeometry, string_geometry, string_load_by_step
-from rigplan.engine.findings import Finding, LimitName, Severity
+from rigplan.engine.findings import Finding, Kind, LimitName, Severity
 from rigplan.engine.hydrostatics import collapse_load
 from rigplan.engine.stringmodel import G, Closure, Hole, JointArrays
 
@@ -186,6 +186,10 @@ class FloatCode(enum.StrEnum):
     #: the fill carried down from above is over the window's upper side
     #: (context ``limit``: that side's :class:`LimitName`, "" for the pipe full)
     CARRIED_FILL_OVER = "float.carried_fill_over"
+    #: the string with no fill above the valve is already over the window's
+    #: upper side at this step: no fill plan helps (context ``limit``;
+    #: quantity ``empty_load``, the empty string's load [N])
+    EMPTY_STRING_OVER = "float.empty_string_over"
     #: no fill level keeps every limit at this step (context ``empty_limit``
     #: and ``full_limit``: the two sides that meet; ``full_limit`` is None when
     #: the window closes against the fill a later step allows)
@@ -434,7 +438,9 @@ class FillSchedule:
     fill_level, fill_volume : inside level [m] and volume above the valve
         [m^3] at each step (after any addition made at that step)
     string_load : true force at the string top [N]
-    capacity_margin : (limit - load) / limit [-]
+    capacity_margin : (limit - load) / (limit + dead load) [-]: the margin on
+        the hook, the planner's hoisting basis (``dead_load`` of the hoisting
+        gear in both; 0: on the string load)
     collapse_utilization : largest DF x load / rating over rated joints [-]
     weight_margin : (load - minimum running weight) / limit [-]
     least_margin : smallest of all margins over all steps [-]
@@ -546,7 +552,7 @@ def _first_over(values: np.ndarray, start: int, threshold: float, stop: int | No
 
 
 def _evaluate(geo, table, sections, hole, fill_density, heights, throughs, full_col,
-              string_limit, min_weight, empty_load, hold=None):
+              string_limit, min_weight, empty_load, hold=None, dead_load=0.0):
     """Loads and margins of candidate schedules, all at once: row ``b`` of
     ``heights`` [m] is candidate ``b``, full to the top (level 0) through
     step ``throughs[b]``, whose collapse utilization there is ``full_col``
@@ -570,7 +576,8 @@ def _evaluate(geo, table, sections, hole, fill_density, heights, throughs, full_
         col[b, :t] = full_col[:t]
         col[b, t:] = util[pos:pos + n - t]
         pos += n - t
-    cap_margin = (string_limit - load) / string_limit
+    # on the hook, as the planner's hoisting limit: dead load in both
+    cap_margin = (string_limit - load) / (string_limit + dead_load)
     w_margin = (load - min_weight) / string_limit
     # A full pipe (or one as full as it holds, ``hold`` [m above the shoe])
     # cannot be made heavier: its weight margin sets no choice.
@@ -587,7 +594,7 @@ def fill_schedule(joints: JointArrays, hole: Hole, closure: Closure, fill_densit
                   string_limit: float, min_running_weight: float = 0.0,
                   collapse_factor: float = 1.0, window: FillWindow | None = None,
                   shares=(1.0, 0.95, 0.9, 0.85, 0.8, 0.7, 0.6, 0.5),
-                  fixed_heights=None) -> FillSchedule:
+                  fixed_heights=None, dead_load: float = 0.0) -> FillSchedule:
     """Fill schedule with the fewest top-ups and, among those, the largest
     least margin.
 
@@ -688,8 +695,16 @@ def fill_schedule(joints: JointArrays, hole: Hole, closure: Closure, fill_densit
                 kk = k + over
                 heights[k:kk] = s
                 failure_step = kk + 1
-                failure = Finding(FloatCode.CARRIED_FILL_OVER, Severity.REASON, step=kk + 1,
-                                  context={"limit": str(window.full_limit[kk])})
+                if hi[kk] < xv - tol:
+                    # the ceiling is below the valve: even empty it is over
+                    failure = Finding(FloatCode.EMPTY_STRING_OVER, Severity.REASON,
+                                      step=kk + 1, label=str(joints.label[kk]),
+                                      context={"limit": str(window.full_limit[kk])},
+                                      quantities={"empty_load": (
+                                          float(window.empty_string_load[kk]), Kind.FORCE)})
+                else:
+                    failure = Finding(FloatCode.CARRIED_FILL_OVER, Severity.REASON,
+                                      step=kk + 1, context={"limit": str(window.full_limit[kk])})
                 heights[kk:] = s
                 break
             heights[k:k + nxt] = s
@@ -723,7 +738,7 @@ def fill_schedule(joints: JointArrays, hole: Hole, closure: Closure, fill_densit
     level, vol, load, capm, col, wm, least, at = _evaluate(
         geo, table, sections, hole, fill_density, np.stack([c[0] for c in candidates]),
         [0] * len(candidates) if k0 else throughs, full_col, string_limit, window.weight_floor, window.empty_string_load,
-        window.hold_height)
+        window.hold_height, dead_load)
     # The best: feasible, then the fewest top-ups, then the largest least
     # margin (to 4 decimals); the first tried on a tie.
     best = None

@@ -102,6 +102,11 @@ class GroutCode(enum.StrEnum):
     OVERLOADED_BEFORE_GROUT = "grout.overloaded_before_grout"  # label; base, utilization
     NO_LIFT_POSSIBLE = "grout.no_lift_possible"                # label; base
     NOT_FEASIBLE = "grout.not_feasible"                        # cause: the reason
+    #: the planned column reaches screen joints: context labels
+    #: (comma-separated); quantities grout_top (depth), screen_top (depth of
+    #: the top of the highest screen covered), screen_bottom (depth of the
+    #: bottom of the lowest screen covered)
+    OVER_SCREENS = "grout.over_screens"
 
 #: Utilization above 1 by less than this counts as within the rating
 #: (rounding of the closed-form lift heights) [-].
@@ -774,6 +779,21 @@ def plan_grout_lifts(joints: JointArrays, hole: Hole, grout: GroutSpec,
     if unrated:
         warnings.append(Finding(GroutCode.UNRATED_JOINTS, Severity.WARNING,
                                 context={"labels": ", ".join(unrated)}))
+    # Grout around a screen seals the intake: the annular seal belongs above
+    # the screens and their filter pack (common practice, no source).
+    from rigplan.engine.rating import PERFORATED_KINDS
+    tol = _ZERO_LIFT * z_shoe
+    covered = [i for i, k in enumerate(joints.kind)
+               if k in PERFORATED_KINDS and bottom[i] < h_plan - tol]
+    if covered:
+        warnings.append(Finding(
+            GroutCode.OVER_SCREENS, Severity.WARNING, joint=covered[0] + 1,
+            label=joints.label[covered[0]],
+            context={"labels": ", ".join(joints.label[i] for i in covered)},
+            quantities={"grout_top": (z_shoe - h_plan, Kind.DEPTH),
+                        "screen_top": (z_shoe - float(max(top[i] for i in covered)), Kind.DEPTH),
+                        "screen_bottom": (z_shoe - float(min(bottom[i] for i in covered)),
+                                          Kind.DEPTH)}))
 
     lifts, limited, reason = [], [], None
     eps = _ZERO_LIFT * z_shoe

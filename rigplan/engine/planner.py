@@ -55,8 +55,10 @@ CANNOT_CONFIRM = Verdict.CANNOT_CONFIRM
 class PlanCode(enum.StrEnum):
     """What the planner has to say (codes of its findings)."""
 
-    #: a limit over: context ``limit``; joint/step/label; quantities
-    #: ``load``, ``capacity`` (SI of the limit's kind) and ``margin``
+    #: a limit over: context ``limit``; joint/step/label (the worst place);
+    #: context ``first_step``/``first_label``: the first running step over
+    #: it (None: not a per-step limit); quantities ``load``, ``capacity``
+    #: (SI of the limit's kind) and ``margin``
     OVER_LIMIT = "plan.over_limit"
     #: the open-ended run fails; cause: its OVER_LIMIT
     OPEN_FAILS = "plan.open_fails"
@@ -73,7 +75,8 @@ class PlanCode(enum.StrEnum):
     NO_LANDING_STRING = "plan.no_landing_string"
     #: the staged setting fails; cause: the staging finding
     STAGED_FAILS = "plan.staged_fails"
-    #: the string is longer than the hole: quantities ``string_length``, ``hole_depth``
+    #: the string is longer than the hole by more than ``HOLE_DEPTH_TOLERANCE``:
+    #: quantities ``string_length``, ``hole_depth``, ``tolerance``
     LONGER_THAN_HOLE = "plan.longer_than_hole"
     #: lands on the rated parts but loaded parts are unrated (see ``unrated``);
     #: context ``count``
@@ -102,6 +105,13 @@ class PlanCode(enum.StrEnum):
     #: top joint of stage 1; quantity ``load`` (the compression at the
     #: joint that fails) -- no set-down weight relieves it
     STAGE1_BUCKLES_ON_BOTTOM = "plan.stage1_buckles_on_bottom"
+    #: crew action: the chosen plan runs open-ended (open, or every stage of a
+    #: staged setting) but the plan names float equipment -- leave the check
+    #: valve out (or fit its auto-fill insert) so the pipe fills from the hole.
+    #: Context ``valve_joint`` (the [float_equipment] valve: 0 float shoe, m a
+    #: collar on the top of joint m, None: none), ``valve_label``, ``staged``
+    #: (bool) and ``float_joints`` (labels of float_shoe/float_collar joints)
+    LEAVE_VALVE_OUT = "plan.leave_valve_out"
 
 
 #: Limit margins below this count as over the limit [-].  A fill schedule
@@ -111,6 +121,12 @@ class PlanCode(enum.StrEnum):
 #: hook load, so they agree only to about 1e-12 of it (1e-9 of a 60 kN load
 #: is 60 micronewtons).
 MARGIN_TOLERANCE = 1e-9
+
+#: A string this much longer than the hole still counts as reaching
+#: bottom, not longer [m]: half a centimetre, below the 0.01 ft / 1 cm a tape
+#: or tally is read to, so a sum of joint lengths that meets the depth to
+#: rounding is not "longer than the hole" (common practice, no source).
+HOLE_DEPTH_TOLERANCE = 0.005
 
 
 @dataclass(frozen=True)
@@ -269,9 +285,13 @@ def check_run(joints: JointArrays, loads: RunningLoads, closure: Closure,
     label = joints.label
     limits = []
     k = int(np.argmin(cap_margin))
+    over = np.flatnonzero(cap_margin < -MARGIN_TOLERANCE)
+    first = int(over[0]) if len(over) else None
     limits.append(Limit(LimitName.HOISTING, float(loads.string_load[k] + dead_load),
                         string_limit + dead_load, float(cap_margin[k]), Kind.FORCE,
-                        step=k + 1, label=label[k]))
+                        step=k + 1, label=label[k],
+                        first_step=None if first is None else first + 1,
+                        first_label=None if first is None else label[first]))
     for name, util, load, cap, kind in (
             (LimitName.CONNECTION_TENSION, t_util, t_load, tension_cap, Kind.FORCE),
             (LimitName.COLLAPSE, c_util, d.collapse * loads.collapse_max, c_rating, Kind.PRESSURE),
@@ -370,7 +390,8 @@ def try_float(joints: JointArrays, hole: Hole, closure: Closure, fill_density: f
         schedule = fill_schedule(joints, hole, closure, fill_density, limit,
                                  settings.min_running_weight, d.collapse, window=window,
                                  fixed_heights=None if record is None or not record.steps else
-                                 record_heights(joints, closure, record, fill_density))
+                                 record_heights(joints, closure, record, fill_density),
+                                 dead_load=dead_load)
         if shown != fill_density and schedule.top_ups:
             schedule = dataclasses.replace(schedule, top_ups=tuple(
                 dataclasses.replace(t, volume=t.volume * fill_density / shown)
@@ -417,7 +438,8 @@ def over_limit(limit: Limit) -> Finding:
                    quantities={"load": (limit.load, limit.kind),
                                "capacity": (limit.capacity, limit.kind),
                                "margin": (limit.margin, Kind.RATIO)},
-                   context={"limit": str(limit.name)})
+                   context={"limit": str(limit.name), "first_step": limit.first_step,
+                            "first_label": limit.first_label})
 
 
 def float_notes(opt: FloatOption, n: int, labels=None) -> list[Finding]:
@@ -666,11 +688,12 @@ def check_hole_depth(inp: PlanInputs, trial: Trial) -> Trial:
     """A string longer than the hole cannot land, whatever else holds."""
     total = float(np.sum(inp.joints.length))
     depth = inp.hole.depth
-    if not (np.isfinite(depth) and total > depth * (1 + 1e-9)):
+    if not (np.isfinite(depth) and total > depth + HOLE_DEPTH_TOLERANCE):
         return trial
     reason = Finding(PlanCode.LONGER_THAN_HOLE, Severity.REASON,
                      quantities={"string_length": (total, Kind.LENGTH),
-                                 "hole_depth": (float(depth), Kind.DEPTH)})
+                                 "hole_depth": (float(depth), Kind.DEPTH),
+                                 "tolerance": (HOLE_DEPTH_TOLERANCE, Kind.LENGTH)})
     limit = Limit(LimitName.HOLE_DEPTH, total, float(depth), float((depth - total) / depth),
                   Kind.LENGTH)
     return dataclasses.replace(trial, reasons=(reason,) + trial.reasons, verdict=CANNOT_LAND,
@@ -701,6 +724,27 @@ def crew_notes(joints: JointArrays, trial: Trial) -> tuple[Finding, ...]:
     for o in shown:
         notes += [f for f in float_notes(o, joints.n, joints.label) if f not in notes]
     return tuple(notes)
+
+
+def valve_left_out(joints: JointArrays, planned: Closure, trial: Trial) -> tuple[Finding, ...]:
+    """The crew action when the plan shown runs open-ended although the plan
+    names float equipment (the planned closure or float_shoe/float_collar
+    joints): the loads shown are those of an open pipe, so the valve must be
+    left out or held open, or every figure is wrong (a closed, empty stage
+    sees the full hole-fluid head outside; common practice, no source)."""
+    kinds = tuple(str(joints.label[j]) for j, k in enumerate(joints.kind)
+                  if k in ("float_shoe", "float_collar"))
+    if planned.is_open and not kinds:
+        return ()
+    if trial.verdict not in (LANDS_OPEN, LANDS_STAGED, CANNOT_CONFIRM):
+        return ()
+    if not trial.chosen.closure.is_open:
+        return ()
+    m = planned.valve_joint
+    label = str(joints.label[m - 1]) if m and 1 <= m <= joints.n else None
+    return (Finding(PlanCode.LEAVE_VALVE_OUT, Severity.ACTION, joint=m or None, label=label,
+                    context={"valve_joint": m, "valve_label": label,
+                             "staged": _staged_chosen(trial), "float_joints": kinds}),)
 
 
 def _staged_chosen(trial: Trial) -> bool:
@@ -860,7 +904,8 @@ def plan_landing(joints: JointArrays, hole: Hole, rig: Rig, settings: Settings,
         switch_joint=switch_point(inp.open_loads.string_load, inp.limit),
         neutral_point=_neutral_point(trial, landed, settings),
         grouting=plan_grouting(inp, grout), landed=landed,
-        unrated=unrated, reasons=trial.reasons, notes=crew_notes(joints, trial),
+        unrated=unrated, reasons=trial.reasons,
+        notes=valve_left_out(joints, closure, trial) + crew_notes(joints, trial),
         buckling=buckling, staged=_staged_chosen(trial),
     )
 

@@ -111,6 +111,9 @@ class JobCode(enum.StrEnum):
     #: the string as measured is longer than the hole: quantities
     #: ``string_length`` and ``hole_depth``; context ``source``
     LONGER_THAN_HOLE = "job.longer_than_hole"
+    #: the string as measured is as long as the hole (within the tolerance
+    #: ``tolerance``): the shoe lands on bottom; same quantities
+    AT_HOLE_BOTTOM = "job.at_hole_bottom"
     #: a screen interval lands farther from its planned depth than the plan's
     #: tolerance (measured lengths, joints set aside): context ``labels``
     #: (its joints), ``source``; quantities ``shift`` (+ deeper, nan: every
@@ -282,10 +285,14 @@ def length_warnings(plan: StringPlan, sources: dict | None = None) -> list[Findi
                                context={"source": sources.get(j.label, src)}))
     total = sum(j.run_length for j in plan.running_joints())
     depth = plan.hole.depth
-    if depth == depth and total > depth:
-        out.append(Finding(JobCode.LONGER_THAN_HOLE, Severity.WARNING,
-                           quantities={"string_length": (total, Kind.LENGTH),
-                                       "hole_depth": (depth, Kind.DEPTH)},
+    from rigplan.engine.planner import HOLE_DEPTH_TOLERANCE as tol
+    lengths = {"string_length": (total, Kind.LENGTH), "hole_depth": (depth, Kind.DEPTH),
+               "tolerance": (tol, Kind.LENGTH)}
+    if depth == depth and total > depth + tol:
+        out.append(Finding(JobCode.LONGER_THAN_HOLE, Severity.WARNING, quantities=lengths,
+                           context={"source": src}))
+    elif depth == depth and total >= depth - tol:
+        out.append(Finding(JobCode.AT_HOLE_BOTTOM, Severity.WARNING, quantities=lengths,
                            context={"source": src}))
     return out
 

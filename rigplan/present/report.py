@@ -12,6 +12,8 @@ import math
 import numpy as np
 
 from rigplan.engine.findings import Kind, Verdict
+from rigplan.engine.grouting import GroutCode
+from rigplan.engine.planner import PlanCode
 from rigplan.present import wording as W
 from rigplan.present.wording import CAUTION, closure_name, percent
 
@@ -106,7 +108,8 @@ def plan_dict(landing, plan=None, warnings=(), rig_name: str = "") -> dict:
         "governing": None if gov is None else {
             "name": str(gov.name), "where": W.limit_place(gov), "load": _f(gov.load),
             "capacity": _f(gov.capacity), "margin": _f(gov.margin),
-            "kind": str(gov.kind), "joint": gov.joint, "step": gov.step},
+            "kind": str(gov.kind), "joint": gov.joint, "step": gov.step,
+            "first_step_over": gov.first_step},
         "units": JSON_UNITS,
         "plan": None if plan is None else {
             "name": plan.name, "well": plan.well, "site": plan.site,
@@ -496,8 +499,11 @@ def text_renderables(landing, plan=None, system: str = "us", warnings=(), rig_na
         out.append(chain_table(cap, system))
     for _, r in W.finding_lines(landing.reasons, system, landing.unrated):
         out.append(Text(f"  - {r}"))
-    for _, r in W.finding_lines(landing.notes, system):
-        out.append(Text(f"  note: {r}", "cyan"))
+    for code, r in W.finding_lines(landing.notes, system):
+        if code == PlanCode.LEAVE_VALVE_OUT:
+            out.append(Text(f"  crew action: {r}", "bold yellow"))
+        else:
+            out.append(Text(f"  note: {r}", "cyan"))
     for _, w in W.finding_lines(warnings, system):
         out.append(Text(f"  warning: {w}", "yellow"))
 
@@ -647,7 +653,7 @@ def text_renderables(landing, plan=None, system: str = "us", warnings=(), rig_na
     if g is not None:
         text = Text("Grouting: ")
         if g.full_column_ok:
-            text.append("the planned column can be placed in one lift")
+            text.append(W.grout_lift_text(g))
         else:
             text.append(f"place in {len(g.lifts)} lifts: " + ", ".join(
                 f"{_q(a, 'length', system, 1)} to {_q(b, 'length', system, 1)} above the shoe"
@@ -655,6 +661,9 @@ def text_renderables(landing, plan=None, system: str = "us", warnings=(), rig_na
             if g.reason is not None:
                 text.append(f" ({W.finding_text(g.reason, system)})")
         out.append(text)
+        for code, w in W.finding_lines(g.warnings, system):
+            if code in (GroutCode.OVER_SCREENS, GroutCode.UNRATED_JOINTS):
+                out.append(Text(f"  warning: grouting: {w}", "yellow"))
     if landing.unrated:
         out.append(Text("Unrated (enter the maker's rating): " + W.unrated_text(landing, system, 12),
                         "yellow"))

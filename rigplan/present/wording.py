@@ -193,10 +193,25 @@ def limit_place(limit: Limit) -> str:
     if limit.name == LimitName.STAGE2_HOISTING:
         return f"stage 2 (from joint {limit.joint + 1}) at the floor"
     if limit.step is not None:
+        if limit.first_step is not None and limit.first_step != limit.step:
+            first = limit.first_label or f"step {limit.first_step}"
+            return (f"step {limit.step} ({limit.label} at the floor; over its limit from "
+                    f"{first}, step {limit.first_step})")
         return f"step {limit.step} ({limit.label} at the floor)"
     if limit.joint is not None:
         return _joint(limit.joint, limit.label)
     return "the string"
+
+
+def _over_place(f: Finding) -> str:
+    """Where a limit is exceeded: from the first step over it (worst at ...)."""
+    first = f.get("first_step")
+    if first is None or f.step is None or first == f.step:
+        return f"at {_finding_place(f)}"
+    first_label = f.get("first_label") or f"step {first}"
+    worst = f.label or f"step {f.step}"
+    return (f"from {first_label} at the floor (step {first}; worst at {worst}, "
+            f"step {f.step})")
 
 
 def _finding_place(f: Finding) -> str:
@@ -245,6 +260,38 @@ def _valve(f: Finding) -> str:
     return closure_name(m, None if not label else [""] * (m - 1) + [label])
 
 
+def _leave_valve_out(f: Finding) -> str:
+    """Crew action: the plan runs open-ended though float equipment is named."""
+    m = f.get("valve_joint")
+    named = []
+    if m is not None:
+        named.append(f"the {_valve(f)}")
+    joints = [x for x in (f.get("float_joints") or ()) if x != f.get("valve_label")]
+    if joints:
+        named.append(("float equipment joint " if len(joints) == 1 else
+                      "float equipment joints ") + ", ".join(joints))
+    how = "in stages" if f.get("staged") else "open-ended"
+    stage = (" Both stages run open-ended: stage 1 fills from the hole as it is lowered on "
+             "the landing string." if f.get("staged") else "")
+    return (f"RUN WITHOUT THE CHECK VALVE: this plan runs {how}, but the plan names "
+            f"{' and '.join(named)}. Leave the valve out (or fit the auto-fill / orifice "
+            "insert so the pipe fills from the hole through the shoe) and check that the "
+            "pipe fills at every joint; with the valve in, the pipe runs empty and the "
+            f"loads, collapse checks and weights in this plan do not apply.{stage}")
+
+
+def grout_lift_text(g) -> str:
+    """The grouting verdict in words: one lift, not confirmable (unrated
+    joints), or the lifts."""
+    if g.full_column_ok and g.unrated:
+        return (f"cannot confirm: {', '.join(g.unrated)} "
+                f"{'has' if len(g.unrated) == 1 else 'have'} no collapse rating (unrated); "
+                "the rated joints take the planned column in one lift")
+    if g.full_column_ok:
+        return "the planned column can be placed in one lift"
+    return ""
+
+
 def _float_name(f: Finding, system: str) -> str:
     return (f"{_valve(f)} with fill "
             f"{fmt(f.value('fill_density'), Kind.DENSITY, system)}")
@@ -256,7 +303,7 @@ def _q(f: Finding, name: str, system: str, digits=None) -> str:
 
 
 _WORDS = {
-    PlanCode.OVER_LIMIT: lambda f, s: f"{f.get('limit')} over its limit at {_finding_place(f)}",
+    PlanCode.OVER_LIMIT: lambda f, s: f"{f.get('limit')} over its limit {_over_place(f)}",
     PlanCode.OPEN_FAILS: lambda f, s: f"open-ended: {finding_text(f.cause, s)}",
     PlanCode.OPTION_FAILS: lambda f, s: (
         f"{'planned ' if f.get('planned') else ''}{closure_name(f.get('valve_joint'))} "
@@ -270,11 +317,13 @@ _WORDS = {
     PlanCode.RUN_WITHOUT_VALVE: lambda f, s: (
         "the planned float equipment does not keep every limit, but the string lands "
         "open-ended: run it without the check valve"),
+    PlanCode.LEAVE_VALVE_OUT: lambda f, s: _leave_valve_out(f),
     PlanCode.NO_LANDING_STRING: lambda f, s: "staged setting: the rig profile has no landing string",
     PlanCode.STAGED_FAILS: lambda f, s: f"staged setting: {finding_text(f.cause, s)}",
     PlanCode.LONGER_THAN_HOLE: lambda f, s: (
         f"the string ({_q(f, 'string_length', s)}) is longer than the hole "
-        f"({_q(f, 'hole_depth', s)}): it cannot be landed; check the tally and the plan"),
+        f"({_q(f, 'hole_depth', s)}) by more than {_q(f, 'tolerance', s, 3)}: it cannot be "
+        "landed; check the tally and the plan"),
     PlanCode.UNRATED_LOADED: lambda f, s: (
         f"lands on the rated parts, but {f.get('count')} loaded "
         f"{'part is' if f.get('count') == 1 else 'parts are'} unrated"),
@@ -304,6 +353,11 @@ _WORDS = {
         f"{_float_name(f, s)}: fill every joint to the top all the way down; floating gains "
         "nothing here"),
     FloatCode.CARRIED_FILL_OVER: lambda f, s: f"the carried fill is over the {f.get('limit') or 'window'}",
+    FloatCode.EMPTY_STRING_OVER: lambda f, s: (
+        f"even empty (no fill at all) the string is over the {f.get('limit') or 'window'} "
+        f"from step {f.step}" + (f" ({f.label} at the floor)" if f.label else "")
+        + f", {_q(f, 'empty_load', s)} of string: too heavy for this hoisting path "
+        "whatever the fill"),
     FloatCode.WINDOW_CLOSED: lambda f, s: (
         f"no fill level works at joint {f.step}: "
         f"{closing_words(f.get('empty_limit'), f.get('full_limit'))}"),
@@ -328,6 +382,11 @@ _WORDS = {
     GroutCode.NO_LIFT_POSSIBLE: lambda f, s: (
         f"no grout can be placed on the lift starting {_q(f, 'base', s)} above the shoe: "
         f"{f.label} reaches its collapse rating / DF at once"),
+    GroutCode.OVER_SCREENS: lambda f, s: (
+        f"the planned grout column (top at {_q(f, 'grout_top', s, 1)}) reaches the screens "
+        f"{f.get('labels')} ({_q(f, 'screen_top', s, 1)} to {_q(f, 'screen_bottom', s, 1)}): "
+        "grout around a screen seals the intake; keep the grout top above the screens and "
+        "their filter pack, or check the grout height and the screen depths"),
     GroutCode.NOT_FEASIBLE: lambda f, s: f"grouting plan not feasible: {finding_text(f.cause, s)}",
     JobCode.FILE_WARNING: lambda f, s: f.get("message"),
     JobCode.MEASURED_FAR_FROM_PLAN: lambda f, s: (
@@ -342,7 +401,12 @@ _WORDS = {
         + ": check the tally and the screen placement before going on"),
     JobCode.LONGER_THAN_HOLE: lambda f, s: (
         f"{f.get('source')}: the string as measured ({_q(f, 'string_length', s)}) is longer "
-        f"than the hole ({_q(f, 'hole_depth', s)})"),
+        f"than the hole ({_q(f, 'hole_depth', s)}) by more than {_q(f, 'tolerance', s, 3)}"),
+    JobCode.AT_HOLE_BOTTOM: lambda f, s: (
+        f"{f.get('source')}: the string as measured ({_q(f, 'string_length', s)}) is as long "
+        f"as the hole ({_q(f, 'hole_depth', s)}, within {_q(f, 'tolerance', s, 3)}): the shoe "
+        "lands on bottom with no room below it for fill or cuttings; check the tally and "
+        "the hole depth"),
 }
 
 #: Every finding code worded here (a test checks none is missing).

@@ -56,6 +56,10 @@ weight (w)::
     type = "float_collar"        # none | float_shoe | float_collar
     collar_joint = 2             # float_collar only: position 1..n or a label
     valve_rating = "..."         # P, differential the valve holds, optional
+                                 # joints of kind float_shoe / float_collar must
+                                 # agree with this table: one float shoe (the
+                                 # bottom joint, type float_shoe), one float
+                                 # collar (on collar_joint); else refused
 
     [running]                    # optional
     fill_density = "8.34 ppg"    # rho, fluid added inside, default 998.2 kg/m3
@@ -487,6 +491,77 @@ def _reorder(joints: list, rows, tally_source: str) -> list:
     return new
 
 
+def _kind_places(top) -> dict:
+    """Where each joint's kind is given: label -> "file: section[i].kind"."""
+    places = {}
+    if "section" in top:
+        n = 0
+        for t in top.tables("section", SECTION_KEYS):
+            count = int(t.raw("count"))
+            for k in range(count):
+                places[f"J{n + k + 1}"] = t.where("kind")
+            n += count
+    elif "joint" in top:
+        for i, t in enumerate(top.tables("joint", JOINT_KEYS), start=1):
+            places[t.text("label", default=f"J{i}").strip()] = t.where("kind")
+    return places
+
+
+def _check_float_kinds(top, ft, running, closure, warnings, source) -> None:
+    """The float_shoe / float_collar joint kinds must agree with [float_equipment].
+
+    The planner models one check valve: the one the [float_equipment] table
+    places.  A joint kind naming another valve would put a valve in the hole
+    the plan does not know about (a float shoe under a planned collar keeps
+    the shoe track empty; a staged or open-ended plan would run closed), so
+    a disagreement is refused (common practice, no source: one valve, one
+    place, named once).
+    """
+    shoes = [i for i, j in enumerate(running, start=1) if j.kind == "float_shoe"]
+    collars = [i for i, j in enumerate(running, start=1) if j.kind == "float_collar"]
+    if not shoes and not collars:
+        return
+    places = _kind_places(top)
+
+    def where(i):
+        return places.get(running[i - 1].label, f"{source}: {running[i - 1].label}")
+
+    def name(i):
+        return running[i - 1].label
+
+    if len(shoes) > 1:
+        raise InputError(where(shoes[1]), f"{len(shoes)} joints are of kind \"float_shoe\" "
+                                          f"({name(shoes[0])}, {name(shoes[1])}"
+                                          f"{', ...' if len(shoes) > 2 else ''}): expected one float "
+                                          "shoe, on the bottom joint; make the others \"blank\"")
+    if shoes and shoes[0] != 1:
+        raise InputError(where(shoes[0]), f"{name(shoes[0])} is of kind \"float_shoe\" but is joint "
+                                          f"{shoes[0]} from the bottom: expected the float shoe on the "
+                                          f"bottom joint ({name(1)})")
+    if len(collars) > 1:
+        raise InputError(where(collars[1]), f"{len(collars)} joints are of kind \"float_collar\" "
+                                            f"({name(collars[0])}, {name(collars[1])}"
+                                            f"{', ...' if len(collars) > 2 else ''}): rigplan plans one "
+                                            "check valve; make the others \"blank\"")
+    if ft is None:
+        warnings.append(f"{source}: the string has float_shoe or float_collar joints but no "
+                        "[float_equipment] table: it is planned open-ended")
+        return
+    m = closure.valve_joint
+    table = ("no float equipment" if m is None else "a float shoe" if m == 0
+             else f"a float collar on {name(m)}")
+    ask = "which valve is in the string? rigplan plans the one [float_equipment] names"
+    if shoes and m != 0:
+        raise InputError(where(shoes[0]), f"{name(1)} is a float_shoe joint but [float_equipment] "
+                                          f"places {table}: {ask}; make {name(1)} kind \"shoe\" "
+                                          "or set type = \"float_shoe\"")
+    if collars and m != collars[0]:
+        raise InputError(where(collars[0]), f"{name(collars[0])} is a float_collar joint but "
+                                            f"[float_equipment] places {table}: {ask}; make "
+                                            f"{name(collars[0])} kind \"blank\" or set type = "
+                                            f"\"float_collar\" and collar_joint = {collars[0]}")
+
+
 def _has_derated_material(joints) -> bool:
     from rigplan.engine import materials
 
@@ -634,9 +709,7 @@ def plan_from_data(data: dict, source: str, base_dir=Path("."), default_name: st
                                                            f"rejected in {by}: move the collar")
             valve_joint = sum(1 for j in joints[:position] if not j.rejected)
             closure = Closure(valve_joint=valve_joint, valve_rating=rating)
-    elif any(j.kind in ("float_shoe", "float_collar") for j in running):
-        warnings.append(f"{source}: the string has float_shoe or float_collar joints but no "
-                        "[float_equipment] table: it is planned open-ended")
+    _check_float_kinds(top, ft, running, closure, warnings, source)
 
     # running settings
     rt = top.table("running", RUNNING_KEYS)

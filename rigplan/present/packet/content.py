@@ -18,6 +18,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from rigplan.engine.findings import Kind, Verdict
+from rigplan.engine.planner import PlanCode
 from rigplan.present import wording as W
 from rigplan.present.wording import CAUTION, closure_name, next_action, step_actions
 from rigplan.present.packet.document import (CrewSheet, Facts, Figure, Packet, Paragraph,
@@ -226,6 +227,9 @@ def _cover(ctx: Context) -> Section:
                                            f"{ctx.as_run.landing.joints.n} joints in the hole, "
                                            f"{len(st.rejected)} set aside"))
     sec.blocks.append(Facts("", tuple(items)))
+    for code, text in W.finding_lines(lp.notes, ctx.system):
+        if code == PlanCode.LEAVE_VALVE_OUT:
+            sec.blocks.append(Paragraph(text, "caution"))
     if lp.reasons or lp.unrated:
         head = "Options set aside: " if lp.lands else "Why it cannot be confirmed: " \
             if lp.verdict == Verdict.CANNOT_CONFIRM else "Why it cannot land: "
@@ -547,7 +551,13 @@ def _fill(ctx: Context) -> Section | None:
             sec.blocks.append(Paragraph("No fill schedule lands this string.", "body"))
     else:
         s = opt.schedule
-        rows = [("fill each joint to the top", f"1-{s.fill_to_top_through}", "", "0")]
+        m0 = opt.closure.valve_joint or 0
+        lo, hi = joint_fill_volumes(lp.joints, m0, s.fill_to_top_through)
+        each = ("" if not math.isfinite(lo) else
+                f"{ctx.n(hi, 'volume', 0)} each" if ctx.n(lo, "volume", 0) == ctx.n(hi, "volume", 0)
+                else f"{ctx.n(lo, 'volume', 0)}-{ctx.n(hi, 'volume', 0)} each")
+        rows = [("fill each joint to the top", f"1-{s.fill_to_top_through}", each,
+                 "0 (full)")]
         for t in s.top_ups:
             rows.append(("top up", str(t.joint), ctx.n(t.volume, "volume", 0),
                          ctx.n(t.level_after, "length", 1)))
@@ -577,6 +587,18 @@ def _fill(ctx: Context) -> Section | None:
                                  "why not"), tuple(rows), "llllrl", (3, 2, 1.2, 1.3, 1.8, 8),
                                 key="float_options"))
     return sec
+
+
+def joint_fill_volumes(joints, valve_joint: int, through: int) -> tuple[float, float]:
+    """Least and largest bore volume of one joint, ``pi/4 d^2 L`` [m^3], of
+    the joints above the valve filled to the top (``valve_joint`` + 1 ..
+    ``through``); nan when there are none."""
+    lo_j, hi_j = int(valve_joint), int(through)
+    if hi_j <= lo_j:
+        return float("nan"), float("nan")
+    bore = np.asarray(joints.bore[lo_j:hi_j], dtype=float)
+    vol = np.pi / 4.0 * bore ** 2 * np.asarray(joints.length[lo_j:hi_j], dtype=float)
+    return float(np.min(vol)), float(np.max(vol))
 
 
 def _least_kept(opt) -> str:
@@ -620,7 +642,8 @@ def _stages_grout(ctx: Context) -> Section | None:
         lifts = getattr(g, "lifts", ())
         rows = [(str(i + 1), ctx.n(a, "length", 1), ctx.n(b, "length", 1))
                 for i, (a, b) in enumerate(lifts)]
-        note = ("The planned column can be placed in one lift." if getattr(g, "full_column_ok", False)
+        note = (W.grout_lift_text(g)[:1].upper() + W.grout_lift_text(g)[1:] + "."
+                if getattr(g, "full_column_ok", False)
                 else f"Place the grout in {len(lifts)} lifts, each set before the next.")
         if getattr(g, "reason", ""):
             note += f" {W.finding_text(g.reason, ctx.system)}"
@@ -654,6 +677,9 @@ def _crew(ctx: Context) -> Section:
               f"if a reading leaves its band (+/- {100 * ctx.info.band:g} % of the predicted "
               f"hook load).",
               f"Plan: {next_action(lp, ctx.system)}."]
+    for code, text in W.finding_lines(lp.notes, ctx.system):
+        if code == PlanCode.LEAVE_VALVE_OUT:
+            legend.insert(0, text)
     opt = lp.best_float
     if opt is not None and (opt.closure.valve_joint or 0) > 0 and not lp.chosen.closure.is_open:
         legend.append("Shoe track: the joints below the float collar; they fill from the hole.")
