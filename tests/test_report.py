@@ -354,3 +354,27 @@ def test_report_libraries_load_only_when_writing():
             "print([m for m in ('matplotlib', 'reportlab') if m in sys.modules])")
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True)
     assert out.stdout.strip() == "[]"
+
+
+def test_as_run_record_keeps_an_undone_alarm(tmp_path, capsys):
+    # a reading that left its band and was then undone stays in the record,
+    # marked as withdrawn; a reading inside the band that was undone does not
+    # become an alarm
+    from rigplan.files.runlog import RunLog
+    plan = tmp_path / "job.toml"
+    shutil.copyfile(FLOATED, plan)
+    doc = _json(capsys, plan, "--rig", "mw80")
+    with RunLog.for_plan(plan) as log:
+        log.record_run("J1", 6.10)
+        pred = doc["steps"][0]["hook_load"]
+        log.observe(1, pred * 1.5, pred)        # 50 % over: outside a 10 % band
+        log.undo()
+        log.observe(1, pred * 1.01, pred)       # inside
+        log.undo()
+    out = tmp_path / "asrun.md"
+    assert main(["report", str(plan), "--rig", "mw80", "--as-run", "-o", str(out),
+                 "--units", "si"]) in (0, 1)
+    record = out.read_text().split("## Record of the run")[1]
+    alarms = record.split("### Alarms raised")[1].split("\n## ")[0]
+    assert "No reading left its band" not in alarms
+    assert alarms.count("\n| 1 |") == 1 and "withdrawn (undone) at" in alarms

@@ -279,6 +279,8 @@ class RunState:
         (the planned length was accepted)
     rejected : label -> reason for joints set aside (not undone)
     observations : weight readings in the order taken (undone ones left out)
+    withdrawn : weight readings later undone, ``(Observation, time of the
+        undo)``, in the order taken (kept for the record)
     next_index : 0-based running-order index of the next joint (the number of
         joints in the hole; array index 0 is joint 1)
     basis : label -> 'measured' or 'planned' for each joint in the hole
@@ -290,6 +292,7 @@ class RunState:
     run: list = field(default_factory=list)
     rejected: dict = field(default_factory=dict)
     observations: list = field(default_factory=list)
+    withdrawn: list = field(default_factory=list)
     next_index: int = 0
     basis: dict = field(default_factory=dict)
     planned_at_entry: dict = field(default_factory=dict)
@@ -1032,9 +1035,13 @@ def _split_sql(script: str) -> list:
 
 
 def _replay(events) -> RunState:
-    undone = {e.ref for e in events if e.kind == "undo"}
+    undone = {e.ref: e.ts for e in events if e.kind == "undo"}
     state = RunState()
     for e in events:
+        if e.kind == "observe" and e.id in undone:
+            state.withdrawn.append((Observation(
+                id=e.id, ts=e.ts, step=e.step, hook_load_n=e.value,
+                predicted_n=e.predicted, note=e.note), undone[e.id]))
         if e.kind == "run" and e.id not in undone:
             basis = e.length_basis
             state.run.append((e.label, e.value if basis == "measured" else None))

@@ -766,6 +766,16 @@ def _as_run(ctx: Context) -> Section:
         rrows.append((ob.ts[:16].replace("T", " "), str(ob.step),
                       ctx.n(ob.hook_load_n, "force", fd),
                       "" if pred is None else ctx.n(pred, "force", fd), diff, out, ob.note or ""))
+    for ob, undo_ts in getattr(state, "withdrawn", ()):
+        # a reading undone after it raised an alarm stays in the record
+        pred = (float(hook_asrun[ob.step - 1]) if 1 <= ob.step <= len(hook_asrun)
+                else ob.predicted_n)
+        if pred is not None and abs(ob.hook_load_n - pred) > ctx.info.band * abs(pred):
+            alarms.append((str(ob.step), ctx.q(ob.hook_load_n, "force", fd),
+                           ctx.q(pred, "force", fd), ctx.q(ob.hook_load_n - pred, "force", fd),
+                           f"read {ob.ts[:16].replace('T', ' ')}, withdrawn (undone) at "
+                           f"{undo_ts[:16].replace('T', ' ')} UTC"
+                           + (f"; {ob.note}" if ob.note else "")))
     sec.blocks.append(Table("Weight readings against the predictions",
                             ("time (UTC)", "step", ctx.head("read", "force"),
                              ctx.head("predicted", "force"), ctx.head("difference", "force"),
