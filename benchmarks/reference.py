@@ -391,6 +391,7 @@ from dataclasses import dataclass as _dataclass  # noqa: E402
 
 import numpy as np  # noqa: E402
 
+from rigplan.engine.axial import RunningLoads  # noqa: E402
 from rigplan.engine.hydrostatics import collapse_load  # noqa: E402
 from rigplan.engine.stringmodel import Closure, Hole, JointArrays  # noqa: E402,F401
 
@@ -555,35 +556,8 @@ def interface_string_load_by_step(geo: InterfaceGeometry, hole: Hole, fill_densi
     return out
 
 
-@dataclass(frozen=True)
-class InterfaceRunningLoads:
-    """Loads over a whole run, SI units.  Index k-1 is running step k;
-    index j-1 is joint j (its top connection for the force envelopes).
-
-    shoe_depth : depth of the shoe at each step [m]
-    fill_level : inside fill level at each step [m] (0 for an open string)
-    string_load : true force at the top of the string at each step [N]
-        (the hook load less the dead load of the hoisting gear)
-    effective_top : effective tension at the top of the string [N]
-    envelope_max, envelope_step : largest true force at each joint's top
-        over all steps [N] and the 1-based step where it first occurs
-    envelope_min, envelope_min_step : least true force (most compressive)
-    collapse_max, collapse_step : largest collapse load P_o - P_in on each
-        joint over all steps [Pa] and where it occurs
-    burst_max : largest burst load P_in - P_o on each joint [Pa]
-    """
-
-    shoe_depth: np.ndarray
-    fill_level: np.ndarray
-    string_load: np.ndarray
-    effective_top: np.ndarray
-    envelope_max: np.ndarray
-    envelope_step: np.ndarray
-    envelope_min: np.ndarray
-    envelope_min_step: np.ndarray
-    collapse_max: np.ndarray
-    collapse_step: np.ndarray
-    burst_max: np.ndarray
+#: The previous engine returns the same fields as today's (one definition).
+InterfaceRunningLoads = RunningLoads
 
 
 def interface_running_loads(joints: JointArrays, hole: Hole, closure: Closure,
