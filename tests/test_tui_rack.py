@@ -57,3 +57,27 @@ async def test_rack_screen_on_a_job_without_old_casing_shows_no_empty_charts(tmp
         assert "not a liner job" in str(screen.query_one("#rack-liner").render())
         assert not screen.query_one("#rack-charts").display
         assert str(screen.query_one("#rack-caution").render()).startswith(CAUTION[:20])
+
+
+async def test_packet_from_the_app_is_written_beside_the_plan(tmp_path):
+    # The same packet as `rigplan report`, reachable from the app; it never
+    # replaces a file (rule of the project: nothing the user has is overwritten).
+    import pypdf
+    for name in ("cv3-8in-a53b.toml", "cv3-8in-a53b.tally.csv"):
+        shutil.copy(ROOT / "strings" / name, tmp_path / name)
+    (tmp_path / "cv3-8in-a53b.packet.pdf").write_text("keep me")
+    session = JobSession(tmp_path / "cv3-8in-a53b.toml", ROOT / "rigs" / "th30.toml")
+    app = RigplanApp(session)
+    async with app.run_test(size=(120, 40)) as pilot:
+        await pilot.press("o")
+        import asyncio
+        for _ in range(200):                 # the packet is written in a worker thread
+            await asyncio.sleep(0.1)
+            if (tmp_path / "cv3-8in-a53b-2.packet.pdf").exists():
+                break
+        await app.workers.wait_for_complete()
+        await pilot.pause()
+    assert (tmp_path / "cv3-8in-a53b.packet.pdf").read_text() == "keep me"
+    out = tmp_path / "cv3-8in-a53b-2.packet.pdf"
+    text = " ".join(p.extract_text() for p in pypdf.PdfReader(str(out)).pages)
+    assert "LANDS OPEN" in text.upper()

@@ -356,6 +356,20 @@ class RigplanApp(App):
     def action_help(self) -> None:
         self.push_screen(HelpScreen(help_sections()))
 
+    def action_write_packet(self) -> None:
+        """Write the job packet (PDF) beside the plan, in a worker (about a second)."""
+        self.notify("Writing the job packet ...", timeout=3)
+        self.run_worker(self._write_packet, thread=True, exclusive=True, group="packet")
+
+    def _write_packet(self) -> None:
+        from rigplan.tui.session import write_packet
+        try:
+            out = write_packet(self.session)
+        except (InputError, OSError, ValueError) as exc:
+            self.call_from_thread(self._error, exc)
+            return
+        self.call_from_thread(self.notify, f"Job packet written to {out.name}", timeout=8)
+
     def action_export_tally(self) -> None:
         try:
             path = self.session.export_tally()

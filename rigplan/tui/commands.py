@@ -124,6 +124,11 @@ ACTIONS = (
     ActionSpec("next_chart", "c", "c", "Next chart",
                "Show the next chart (one at a time in a small terminal)", CHARTS, short="Chart",
                words=("chart", "plot", "fill window", "utilization")),
+    ActionSpec("write_packet", "o", "o", "Write job packet (PDF)",
+               "Write the job packet for the job file beside the plan (<plan>.packet.pdf): the "
+               "plan, the schematic, charts, the crew sheet and, once joints are run, the record "
+               "of the run; never over an existing file", short="Packet", show=False,
+               words=("packet", "report", "pdf", "print", "job file")),
     ActionSpec("help", "question_mark,f1", "? F1", "Keys", "List every key",
                words=('keys', 'help')),
     ActionSpec("quit", "q", "q", "Quit", "Leave the app (the run log is already saved)",

@@ -829,3 +829,33 @@ FIELD_RANGES = {"od": "diameter", "wall": "wall", "length": "joint_length",
 SETTING_RANGES = {"hole_fluid_density": "fluid_density", "hole_fluid_level": "depth",
                   "fill_density": "fluid_density", "min_running_weight": "force",
                   "set_down_weight": "force"}
+
+
+def write_packet(session, suffix: str = ".pdf"):
+    """Write the job packet beside the plan (``<plan>.packet.pdf``, never over a file).
+
+    The plan as planned, on the session's rig and path, and, once joints
+    are in the hole, the record of the run: the same packet as
+    ``rigplan report PLAN --rig RIG [--as-run] -o FILE``.
+    """
+    import dataclasses
+    from rigplan.files.atomicio import atomic_write_bytes
+    from rigplan.files.job import plan_job
+    from rigplan.files.linerjob import free_path
+    from rigplan.present.packet import render
+    from rigplan.present.packet.content import AsRun, ReportInfo
+    planned = plan_job(session.base_plan, session.rig, session.path_name)
+    job = dataclasses.replace(session.job, plan=session.base_plan, rig=session.rig,
+                              path_name=session.path_name)
+    as_run = None
+    if session.state.run and session.landing is not None:
+        as_run = AsRun(session.base_plan, planned, session.state, session.plan, session.landing)
+    meta = dict(getattr(session.base_plan, "report", {}) or {})
+    info = ReportInfo(revision=meta.get("revision", ""), date=meta.get("date", ""),
+                      prepared_by=meta.get("prepared_by", ""),
+                      reviewed_by=meta.get("reviewed_by", ""))
+    data = render(suffix.lstrip("."), job, planned, session.units, info, (), as_run,
+                  session.rig.name)
+    out = free_path(session.plan_path.with_name(session.plan_path.stem + ".packet" + suffix))
+    atomic_write_bytes(out, data)
+    return out
