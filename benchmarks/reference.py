@@ -391,7 +391,7 @@ from dataclasses import dataclass as _dataclass  # noqa: E402
 
 import numpy as np  # noqa: E402
 
-from rigplan.engine.axial import RunningLoads  # noqa: E402
+from rigplan.engine.axial import RunningLoads, _loads_at  # noqa: E402  (one kernel)
 from rigplan.engine.hydrostatics import collapse_load  # noqa: E402
 from rigplan.engine.stringmodel import Closure, Hole, JointArrays  # noqa: E402,F401
 
@@ -672,31 +672,6 @@ def _step_segments(geo: InterfaceGeometry, hole: Hole, level: np.ndarray):
     for k in np.flatnonzero(~covered):
         segments.append((int(k), int(k), 0))
     return segments
-
-
-def _loads_at(geo, hole, fill_density, level, k, j):
-    """Extreme collapse loads on joints ``j`` (above the valve) at steps
-    ``k`` (broadcast arrays of 0-based indices): max and min of
-    ``P_o - P_in`` over each joint's bottom, top, fill surface and annulus
-    fluid top [Pa]."""
-    zs = geo.top[k]
-    lv = level[k]
-    x0 = geo.bottom[j]
-    x1 = geo.top[j]
-    h_o = hole.fluid_level
-    points = [x0, x1, np.clip(zs - lv, x0, x1)]
-    if h_o > 0:
-        points.append(np.clip(zs - h_o, x0, x1))
-    worst = best = None
-    for p in points:
-        d = collapse_load(zs - p, hole.fluid_density, h_o, fill_density, lv,
-                          overwrite=True)
-        if worst is None:
-            worst, best = d, d.copy()
-        else:
-            np.maximum(worst, d, out=worst)
-            np.minimum(best, d, out=best)
-    return worst, best
 
 
 def collapse_envelope(geo: InterfaceGeometry, hole: Hole, fill_density: float,
